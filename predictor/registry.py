@@ -1,0 +1,131 @@
+"""The one registry of published relations.
+
+A model module registers a relation by decorating its function with `@model(...)`. The app,
+the CLI, the README table and the dispatchers (`relative_viscosity`, `max_packing`, ...) all
+read this registry, so adding a relation is one function plus its decorator.
+"""
+
+from __future__ import annotations
+
+import inspect
+from collections.abc import Callable
+from dataclasses import dataclass
+
+import numpy as np
+
+from .errors import InputRangeError, UnknownModelError
+
+KINDS = ("suspension", "emulsion", "packing", "liquid", "shear")
+
+
+@dataclass(frozen=True)
+class Param:
+    """One parameter of a relation: its unit (pint spelling), bounds and meaning."""
+
+    name: str
+    unit: str
+    bounds: tuple[float, float]
+    description: str
+
+
+@dataclass(frozen=True)
+class ModelSpec:
+    """Frozen metadata of one registered relation.
+
+    `phi_range` is the range of volume fraction the relation was derived or fitted for;
+    with `phi_range_relative` it is a range of phi / phi_max instead.
+    """
+
+    name: str
+    kind: str
+    func: Callable
+    params: tuple[Param, ...]
+    validity: str
+    source: str
+    phi_range: tuple[float, float] = (0.0, 1.0)
+    phi_range_relative: bool = False
+
+    def defaults(self) -> dict[str, float]:
+        """Default parameter values, read from the function signature."""
+        sig = inspect.signature(self.func)
+        return {
+            p.name: p.default
+            for p in sig.parameters.values()
+            if p.default is not inspect.Parameter.empty and p.name in self.param_names()
+        }
+
+    def param_names(self) -> tuple[str, ...]:
+        return tuple(p.name for p in self.params)
+
+    def check_params(self, params: dict) -> dict[str, float]:
+        """Defaults overlaid with `params`; unknown names or values out of bounds raise."""
+        unknown = set(params) - set(self.param_names())
+        if unknown:
+            name = sorted(unknown)[0]
+            raise InputRangeError(
+                name, params[name], f"one of the parameters of {self.name}: "
+                f"{', '.join(self.param_names()) or 'none'}"
+            )
+        values = {**self.defaults(), **params}
+        for p in self.params:
+            value = np.asarray(values[p.name], dtype=float)
+            low, high = p.bounds
+            if not np.all(np.isfinite(value)) or np.any(value < low) or np.any(value > high):
+                bad = value[~(np.isfinite(value) & (value >= low) & (value <= high))].flat[0]
+                raise InputRangeError(
+                    p.name, bad, f"{low:g} to {high:g} [{p.unit}] for {self.name}"
+                )
+        return values
+
+    def validity_message(self, phi, params: dict) -> str | None:
+        """A plain sentence when some phi lies outside the relation's validity range."""
+        phi = np.asarray(phi, dtype=float)
+        if self.phi_range_relative:
+            scale = np.asarray(params.get("phi_max", 1.0), dtype=float)
+            x, what = phi / scale, "phi/phi_max"
+        else:
+            x, what = phi, "phi"
+        low, high = self.phi_range
+        outside = (x < low) | (x > high)
+        if not np.any(outside):
+            return None
+        worst = float(np.max(x[outside])) if np.any(x > high) else float(np.min(x[outside]))
+        return (
+            f"{self.name} is used at {what} = {worst:.3g}, outside its validity range "
+            f"{low:g} to {high:g} ({self.validity})."
+        )
+
+
+_MODELS: dict[str, ModelSpec] = {}
+
+
+def model(kind: str, *params: Param, validity: str, source: str,
+          phi_range=(0.0, 1.0), phi_range_relative=False):
+    """Register the decorated function as a relation of `kind`; the function is unchanged."""
+    if kind not in KINDS:
+        raise ValueError(f"kind {kind!r} is not one of {KINDS}")
+
+    def register(func):
+        name = func.__name__.replace("_", "-")
+        if name in _MODELS:
+            raise RuntimeError(f"model {name!r} registered twice")
+        _MODELS[name] = ModelSpec(name, kind, func, tuple(params), validity, source,
+                                  tuple(phi_range), phi_range_relative)
+        return func
+
+    return register
+
+
+def models(kind: str | None = None) -> list[ModelSpec]:
+    """Every registered relation, or those of one kind, in registration order."""
+    return [s for s in _MODELS.values() if kind is None or s.kind == kind]
+
+
+def get_model(name: str, kind: str | tuple[str, ...] | None = None) -> ModelSpec:
+    """The spec registered under `name`; `UnknownModelError` lists the valid names."""
+    kinds = (kind,) if isinstance(kind, str) else kind
+    valid = [s.name for s in models() if kinds is None or s.kind in kinds]
+    spec = _MODELS.get(str(name).strip().lower().replace("_", "-").replace(" ", "-"))
+    if spec is None or spec.name not in valid:
+        raise UnknownModelError("model", name, valid)
+    return spec
