@@ -3,7 +3,8 @@
 Importing the package imports every model module, so every relation is registered.
 """
 
-from . import suspension  # noqa: F401  (registers the relations)
+# Import every model module so that every relation is registered.
+from . import emulsion, liquids, packing, shear, sizes, stability, suspension  # noqa: F401
 from .errors import (
     FitError,
     InputRangeError,
@@ -13,7 +14,7 @@ from .errors import (
     UnknownModelError,
     ValidityWarning,
 )
-from .registry import Param, ModelSpec, get_model, models
+from .registry import ModelSpec, Param, get_model, models
 from .viscosity import relative_viscosity
 
 __all__ = [

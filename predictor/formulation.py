@@ -1,0 +1,362 @@
+"""Orchestration: a Formulation (liquid + dispersed ingredients) -> flow curve, sweep, limits.
+
+This layer only sequences calls to the model modules and collects results into plain data
+(frozen dataclasses, pandas DataFrames with unit-named columns). No relation is written here.
+
+How a formulation becomes one viscosity (documented choices, common practice, no source):
+
+- loadings are converted to volume fractions with `composition.volume_fractions`;
+- each solid's volume is swollen by its adsorbed layer (`suspension.effective_volume_fraction`,
+  radius = half its Sauter diameter);
+- phi_max of the solids comes from their combined size distribution (`packing.max_packing`)
+  times a volume-weighted shape factor (`packing.phi_max_for_aspect_ratio`), unless the user
+  gives phi_max for an ingredient, which then replaces that ingredient's own estimate;
+- droplets are first mixed into the liquid (emulsion relation, droplet fraction counted in the
+  liquid + droplets), and the emulsion is the medium the solids see (a Farris-style nesting).
+"""
+
+from __future__ import annotations
+
+import dataclasses
+from dataclasses import dataclass, field
+
+import numpy as np
+import pandas as pd
+
+from . import composition, liquids, packing, sizes
+from .errors import InputRangeError
+from .registry import get_model
+
+SOLID, DROPLET = "solid", "droplet"
+RANDOM_CLOSE_SPHERES = 0.64  # Berryman, Phys. Rev. A 27, 1053 (1983): 0.64 +- 0.02
+
+
+@dataclass(frozen=True)
+class Liquid:
+    """The continuous phase.
+
+    `preset` "water" or "glycerol-water" computes a Newtonian viscosity from the temperature;
+    otherwise `law` names a registry relation of kind "liquid" and `params` holds its SI
+    parameters. An Arrhenius shift applies where `activation_temperature_K` is given.
+    """
+
+    name: str = "water"
+    preset: str = "water"                       # "water" | "glycerol-water" | "" (use law)
+    law: str = "newtonian"
+    params: dict = field(default_factory=dict)  # SI values, names as in the registry
+    temperature_K: float = 298.15
+    density_kg_per_m3: float = 997.0
+    glycerol_mass_fraction: float = 0.0
+    reference_temperature_K: float = 298.15
+    activation_temperature_K: float | None = None
+
+    def newtonian_viscosity_Pa_s(self) -> float:
+        """Viscosity of a Newtonian liquid at `temperature_K` (presets or the law's value)."""
+        if self.preset == "water":
+            return float(liquids.water_viscosity(self.temperature_K))
+        if self.preset == "glycerol-water":
+            return float(liquids.glycerol_water_viscosity(self.glycerol_mass_fraction,
+                                                          self.temperature_K))
+        if self.preset:
+            raise InputRangeError("liquid preset", self.preset, "'water', 'glycerol-water' or ''")
+        value = self.params.get("viscosity_Pa_s", 1e-3)
+        return float(value) * self.shift_factor()
+
+    def shift_factor(self) -> float:
+        """Arrhenius factor from the reference to the working temperature (1 if none given)."""
+        if self.activation_temperature_K is None or self.preset:
+            return 1.0
+        return float(liquids.arrhenius_shift(self.temperature_K, self.reference_temperature_K,
+                                             self.activation_temperature_K))
+
+
+@dataclass(frozen=True)
+class Ingredient:
+    """One dispersed ingredient: a solid powder or a droplet phase.
+
+    `loading` is a fraction (0-1) of the whole formulation on `basis` ("mass" or "volume").
+    `size` is a `sizes.SizeDistribution`; when None, a single size `diameter_m` is used.
+    """
+
+    name: str
+    density_kg_per_m3: float
+    loading: float
+    basis: str = "mass"
+    kind: str = SOLID
+    diameter_m: float = 1e-6
+    size: sizes.SizeDistribution | None = None
+    aspect_ratio: float = 1.0
+    layer_thickness_m: float = 0.0
+    phi_max: float | None = None
+    intrinsic_viscosity: float | None = None
+    droplet_viscosity_Pa_s: float | None = None
+    interfacial_tension_N_per_m: float | None = None
+
+    def distribution(self) -> sizes.SizeDistribution:
+        return self.size if self.size is not None else sizes.single(self.diameter_m)
+
+
+@dataclass(frozen=True)
+class Formulation:
+    """A liquid and its dispersed ingredients, with the relations chosen to describe them."""
+
+    liquid: Liquid = field(default_factory=Liquid)
+    ingredients: tuple[Ingredient, ...] = ()
+    name: str = ""
+    description: str = ""
+    model: str = "krieger-dougherty"          # suspension relation for the solids
+    model_params: dict = field(default_factory=dict)  # overrides, e.g. from a calibration
+    droplet_model: str = "phan-thien-pham"    # emulsion relation for the droplets
+
+    def __post_init__(self):
+        object.__setattr__(self, "ingredients", tuple(self.ingredients))
+        for i, ing in enumerate(self.ingredients):
+            if ing.kind not in (SOLID, DROPLET):
+                raise InputRangeError(f"ingredients[{i}].kind", ing.kind, "'solid' or 'droplet'")
+            if ing.basis not in ("mass", "volume"):
+                raise InputRangeError(f"ingredients[{i}].basis", ing.basis, "'mass' or 'volume'")
+
+
+@dataclass(frozen=True)
+class Mixture:
+    """What a formulation resolves to: volume fractions, packing limit, parameters.
+
+    Arrays run over the ingredients in their order. `solid_shares` are the solids' shares of
+    the total effective solid volume; the loading sweep scales the solids along them.
+    """
+
+    phi: np.ndarray                 # volume fraction of each ingredient [-]
+    mass_fraction: np.ndarray       # mass fraction of each ingredient [-]
+    is_solid: np.ndarray            # bool per ingredient
+    swelling: np.ndarray            # (1 + delta/a)**3 per ingredient [-]
+    phi_solids: float               # sum of solid volume fractions [-]
+    phi_solids_effective: float     # including adsorbed layers [-]
+    phi_droplets: float             # sum of droplet volume fractions [-]
+    phi_max: float                  # packing limit of the solids [-]
+    intrinsic_viscosity: float      # of the solids [-]
+    liquid_viscosity_Pa_s: float    # Newtonian viscosity of the liquid at its temperature
+    density_kg_per_m3: float        # of the whole formulation
+
+    @property
+    def headroom(self) -> float:
+        """Jamming headroom phi_eff / phi_max of the solids (1 = jammed)."""
+        return self.phi_solids_effective / self.phi_max if self.phi_max else 0.0
+
+
+def mixture(formulation: Formulation) -> Mixture:
+    """Resolve loadings, packing limit and shape parameters of `formulation`."""
+    ings = formulation.ingredients
+    liq = formulation.liquid
+    eta_l = liq.newtonian_viscosity_Pa_s()
+    if not ings:
+        return Mixture(np.zeros(0), np.zeros(0), np.zeros(0, bool), np.zeros(0), 0.0, 0.0, 0.0,
+                       RANDOM_CLOSE_SPHERES, 2.5, eta_l, liq.density_kg_per_m3)
+    rho = np.array([i.density_kg_per_m3 for i in ings], dtype=float)
+    phi = composition.volume_fractions([i.loading for i in ings],
+                                       [i.basis == "mass" for i in ings], rho,
+                                       liq.density_kg_per_m3)
+    w = composition.mass_fractions(phi, rho, liq.density_kg_per_m3)
+    is_solid = np.array([i.kind == SOLID for i in ings])
+    dists = [i.distribution() for i in ings]
+    swelling = np.array([
+        (1.0 + i.layer_thickness_m / (0.5 * d.sauter_diameter_m)) ** 3 if i.kind == SOLID else 1.0
+        for i, d in zip(ings, dists, strict=True)])
+    phi_s = float(phi[is_solid].sum())
+    phi_eff = float((phi * swelling)[is_solid].sum())
+    phi_max, eta_i = _solid_packing(ings, dists, phi * swelling, is_solid)
+    return Mixture(phi, w, is_solid, swelling, phi_s, phi_eff, float(phi[~is_solid].sum()),
+                   phi_max, eta_i, eta_l,
+                   float(composition.mixture_density(phi, rho, liq.density_kg_per_m3)))
+
+
+def _solid_packing(ings, dists, phi_eff, is_solid):
+    """phi_max and intrinsic viscosity of the solids (see the module docstring)."""
+    solid = [k for k in range(len(ings)) if is_solid[k]]
+    if not solid:
+        return RANDOM_CLOSE_SPHERES, 2.5
+    weights = phi_eff[solid]
+    weights = weights / weights.sum() if weights.sum() > 0 else np.full(len(solid), 1 / len(solid))
+    shape = np.array([packing.phi_max_for_aspect_ratio(ings[k].aspect_ratio)
+                      / packing.phi_max_for_aspect_ratio(1.0) for k in solid])
+    eta_i = np.array([ings[k].intrinsic_viscosity if ings[k].intrinsic_viscosity is not None
+                      else packing.intrinsic_viscosity_for_aspect_ratio(ings[k].aspect_ratio)
+                      for k in solid])
+    if any(ings[k].phi_max is not None for k in solid):
+        own = np.array([ings[k].phi_max if ings[k].phi_max is not None else
+                        shape[j] * packing.max_packing(dists[k].diameters_m, dists[k].fractions)
+                        for j, k in enumerate(solid)])
+        phi_max = float(weights @ own)
+    else:
+        combined = sizes.blend([dists[k] for k in solid], weights, basis="volume")
+        phi_max = float(weights @ shape) * float(
+            packing.max_packing(combined.diameters_m, combined.fractions))
+    return phi_max, float(weights @ eta_i)
+
+
+def _relation_params(spec, mix: Mixture, overrides: dict) -> dict:
+    """The relation's own parameters, filled from the mixture, then from the overrides."""
+    known = {"phi_max": mix.phi_max, "intrinsic_viscosity": mix.intrinsic_viscosity}
+    params = {k: v for k, v in known.items() if k in spec.param_names()}
+    params.update({k: v for k, v in overrides.items() if k in spec.param_names()})
+    return params
+
+
+def relative_viscosity_at(formulation: Formulation, phi_solids_effective,
+                          mix: Mixture | None = None):
+    """Relative viscosity of the formulation (Newtonian view) at effective solid fractions.
+
+    Vectorised over `phi_solids_effective`; droplets stay at their own loading.
+    """
+    mix = mix or mixture(formulation)
+    spec = get_model(formulation.model, kind="suspension")
+    params = spec.check_params(_relation_params(spec, mix, formulation.model_params))
+    phi = np.asarray(phi_solids_effective, dtype=float)
+    eta_s = np.where(phi < 1.0, spec.func(np.clip(phi, 0.0, 1.0), **params), np.inf)
+    return eta_s * droplet_factor(formulation, mix)
+
+
+def droplet_factor(formulation: Formulation, mix: Mixture) -> float:
+    """Relative viscosity of the droplets in the liquid (1 without droplets)."""
+    drops = [(k, i) for k, i in enumerate(formulation.ingredients) if i.kind == DROPLET]
+    if not drops or mix.phi_droplets <= 0.0:
+        return 1.0
+    phi_d = mix.phi_droplets / max(1.0 - mix.phi_solids, 1e-12)
+    volume = np.array([mix.phi[k] for k, _ in drops])
+    eta_d = np.array([i.droplet_viscosity_Pa_s if i.droplet_viscosity_Pa_s is not None
+                      else mix.liquid_viscosity_Pa_s for _, i in drops])
+    ratio = float(volume @ eta_d / volume.sum()) / mix.liquid_viscosity_Pa_s
+    spec = get_model(formulation.droplet_model, kind="emulsion")
+    params = {"viscosity_ratio": ratio} if "viscosity_ratio" in spec.param_names() else {}
+    params.update({k: v for k, v in formulation.model_params.items() if k in spec.param_names()})
+    return float(spec.func(min(phi_d, 1.0), **spec.check_params(params)))
+
+
+def predict(formulation: Formulation, shear_rate_1_per_s=None) -> pd.DataFrame:
+    """Flow curve of the formulation: viscosity and stress at each shear rate.
+
+    Parameters
+    ----------
+    formulation : Formulation
+    shear_rate_1_per_s : float or array_like, optional
+        Shear rates; default 61 points log-spaced from 1e-3 to 1e5. [1/s]
+
+    Returns
+    -------
+    pandas.DataFrame
+        Columns shear_rate_1_per_s, viscosity_Pa_s, shear_stress_Pa, relative_viscosity,
+        liquid_viscosity_Pa_s; `attrs` holds phi, phi_max and headroom.
+    """
+    rates = np.logspace(-3, 5, 61) if shear_rate_1_per_s is None else np.atleast_1d(
+        np.asarray(shear_rate_1_per_s, dtype=float))
+    if not np.all(np.isfinite(rates)) or np.any(rates <= 0):
+        raise InputRangeError("shear_rate_1_per_s", rates[~(np.isfinite(rates) & (rates > 0))][0],
+                              "a positive, finite shear rate")
+    mix = mixture(formulation)
+    eta_r = float(relative_viscosity_at(formulation, mix.phi_solids_effective, mix))
+    eta = np.full_like(rates, eta_r * mix.liquid_viscosity_Pa_s)
+    frame = pd.DataFrame({
+        "shear_rate_1_per_s": rates,
+        "viscosity_Pa_s": eta,
+        "shear_stress_Pa": eta * rates,
+        "relative_viscosity": np.full_like(rates, eta_r),
+        "liquid_viscosity_Pa_s": np.full_like(rates, mix.liquid_viscosity_Pa_s),
+    })
+    frame.attrs.update(phi=mix.phi_solids_effective, phi_max=mix.phi_max, headroom=mix.headroom)
+    return frame
+
+
+def loading_sweep(formulation: Formulation, phi=None, n: int = 200) -> pd.DataFrame:
+    """Viscosity against total solid volume fraction, solids scaled along their shares.
+
+    Parameters
+    ----------
+    formulation : Formulation
+    phi : array_like, optional
+        Total effective solid volume fractions; default `n` points from 0 to just below
+        phi_max.
+    n : int
+        Number of points of the default grid.
+
+    Returns
+    -------
+    pandas.DataFrame
+        Columns phi, mass_fraction (of all solids), relative_viscosity, viscosity_Pa_s;
+        `attrs` holds phi_max and the current loading.
+    """
+    mix = mixture(formulation)
+    grid = np.linspace(0.0, mix.phi_max * 0.995, n) if phi is None else np.asarray(phi, float)
+    eta_r = relative_viscosity_at(formulation, grid, mix)
+    frame = pd.DataFrame({
+        "phi": grid,
+        "mass_fraction": solid_mass_fraction(formulation, grid, mix),
+        "relative_viscosity": eta_r,
+        "viscosity_Pa_s": eta_r * mix.liquid_viscosity_Pa_s,
+    })
+    frame.attrs.update(phi_max=mix.phi_max, phi_current=mix.phi_solids_effective)
+    return frame
+
+
+def solid_mass_fraction(formulation: Formulation, phi_solids_effective,
+                        mix: Mixture | None = None):
+    """Total mass fraction of the solids when their effective volume fraction is scaled."""
+    mix = mix or mixture(formulation)
+    phi_eff = np.atleast_1d(np.asarray(phi_solids_effective, dtype=float))
+    if not mix.is_solid.any():
+        return np.zeros_like(phi_eff)
+    rho = np.array([i.density_kg_per_m3 for i in formulation.ingredients])
+    shares = np.where(mix.is_solid, mix.phi * mix.swelling, 0.0)
+    shares = shares / shares.sum() if shares.sum() > 0 else mix.is_solid / mix.is_solid.sum()
+    bare = phi_eff[:, None] * shares / mix.swelling            # real solid volume per ingredient
+    drops = np.where(mix.is_solid, 0.0, mix.phi)
+    phi_all = np.clip(bare + drops, 0.0, None)
+    phi_all = phi_all / np.maximum(phi_all.sum(axis=1, keepdims=True), 1.0)
+    w = composition.mass_fractions(phi_all, rho, formulation.liquid.density_kg_per_m3)
+    return w[:, mix.is_solid].sum(axis=1)
+
+
+def max_loading(formulation: Formulation, viscosity_limit_Pa_s: float,
+                shear_rate_1_per_s: float = 1.0) -> float:
+    """Highest effective solid volume fraction whose viscosity stays under a limit.
+
+    Solved on the monotone relative-viscosity curve by bisection; returns 0 when even the
+    liquid (with its droplets) exceeds the limit.
+    """
+    limit = float(viscosity_limit_Pa_s)
+    if not np.isfinite(limit) or limit <= 0:
+        raise InputRangeError("viscosity_limit_Pa_s", limit, "a positive, finite viscosity")
+    rate = float(shear_rate_1_per_s)
+    if not np.isfinite(rate) or rate <= 0:
+        raise InputRangeError("shear_rate_1_per_s", rate, "a positive, finite shear rate")
+    mix = mixture(formulation)
+    eta_l = mix.liquid_viscosity_Pa_s
+    target = limit / eta_l
+
+    def eta_r(x):
+        return relative_viscosity_at(formulation, x, mix)
+
+    low, high = 0.0, mix.phi_max
+    if float(eta_r(low)) >= target:
+        return 0.0
+    for _ in range(80):  # bisection to below 1e-15 of phi_max; monotone in phi
+        mid = 0.5 * (low + high)
+        if float(eta_r(mid)) < target:
+            low = mid
+        else:
+            high = mid
+    return low
+
+
+def with_solids_scaled(formulation: Formulation, phi_solids_effective: float) -> Formulation:
+    """A copy of `formulation` whose solids sit at a new total effective volume fraction."""
+    mix = mixture(formulation)
+    if mix.phi_solids_effective <= 0:
+        raise InputRangeError("solid loading", 0.0, "a formulation with some solid to scale")
+    factor = phi_solids_effective / mix.phi_solids_effective
+    new = []
+    for k, ing in enumerate(formulation.ingredients):
+        if ing.kind == SOLID:
+            new.append(dataclasses.replace(ing, loading=float(mix.phi[k] * factor),
+                                           basis="volume"))
+        else:
+            new.append(dataclasses.replace(ing, loading=float(mix.phi[k]), basis="volume"))
+    return dataclasses.replace(formulation, ingredients=tuple(new))

@@ -1,0 +1,259 @@
+"""Scenario files (`*.loadline.json`): a Formulation written out with its units, and read back.
+
+The format is our own: human-readable JSON with a `schema_version`; every dimensional value
+is written as {"value": <SI float>, "unit": "<pint unit>"} and may be edited by hand to any
+unit pint reads ("120 cP", or {"value": 120, "unit": "cP"}). Floats are written with
+Python's shortest exact repr, so a round trip is exact. Writes are atomic (temporary file,
+fsync, rename) and the previous good file is kept beside as `<name>.bak`.
+"""
+
+from __future__ import annotations
+
+import json
+import math
+import os
+import pathlib
+import tempfile
+
+from . import sizes
+from .errors import LoadlineError, ScenarioError
+from .formulation import Formulation, Ingredient, Liquid
+from .units import parse_quantity
+
+SCHEMA_VERSION = 1
+FORMAT = "loadline-scenario"
+SUFFIX = ".loadline.json"
+MAX_BYTES = 5_000_000
+
+# JSON key -> (dataclass field, dimension, unit written)
+_LIQUID_QUANTITIES = {
+    "temperature": ("temperature_K", "temperature", "K"),
+    "density": ("density_kg_per_m3", "density", "kg/m**3"),
+    "reference_temperature": ("reference_temperature_K", "temperature", "K"),
+    "activation_temperature": ("activation_temperature_K", "temperature", "K"),
+}
+_INGREDIENT_QUANTITIES = {
+    "density": ("density_kg_per_m3", "density", "kg/m**3"),
+    "diameter": ("diameter_m", "length", "m"),
+    "layer_thickness": ("layer_thickness_m", "length", "m"),
+    "droplet_viscosity": ("droplet_viscosity_Pa_s", "viscosity", "Pa*s"),
+    "interfacial_tension": ("interfacial_tension_N_per_m", "interfacial_tension", "N/m"),
+}
+_INGREDIENT_NUMBERS = ("aspect_ratio", "phi_max", "intrinsic_viscosity")
+
+# Older schema versions -> function upgrading a document by one version.
+_MIGRATIONS: dict[int, callable] = {}
+
+
+def _quantity(value, unit: str) -> dict | None:
+    return None if value is None else {"value": float(value), "unit": unit}
+
+
+def _read_quantity(raw, dimension: str, field: str):
+    if raw is None:
+        return None
+    if isinstance(raw, dict):
+        if "value" not in raw:
+            raise ScenarioError(f"{field}: expected {{'value': ..., 'unit': ...}}, got {raw!r}.")
+        value = raw["value"]
+        if isinstance(value, bool) or not isinstance(value, int | float):
+            raise ScenarioError(f"{field}: value {value!r} is not a number.")
+        unit = str(raw.get("unit", "")).strip()
+        result = parse_quantity(f"{value!r} {unit}" if unit else float(value), dimension, field)
+    elif isinstance(raw, int | float) and not isinstance(raw, bool):
+        result = float(raw)
+    elif isinstance(raw, str):
+        result = parse_quantity(raw, dimension, field)
+    else:
+        raise ScenarioError(f"{field}: {raw!r} is not a quantity.")
+    if not math.isfinite(result):
+        raise ScenarioError(f"{field} = {result!r} is not a finite number.")
+    return result
+
+
+def scenario_to_dict(formulation: Formulation) -> dict:
+    """The JSON-ready document of `formulation` (schema version `SCHEMA_VERSION`)."""
+    from .registry import get_model
+
+    liq = formulation.liquid
+    law_units = {}
+    if liq.law:
+        law_units = {p.name: p.unit for p in get_model(liq.law, kind="liquid").params}
+    liquid = {
+        "name": liq.name,
+        "preset": liq.preset,
+        "law": liq.law,
+        "parameters": {k: {"value": float(v), "unit": law_units.get(k, "")}
+                       for k, v in liq.params.items()},
+        "glycerol_mass_fraction": float(liq.glycerol_mass_fraction),
+    }
+    for key, (attr, _, unit) in _LIQUID_QUANTITIES.items():
+        liquid[key] = _quantity(getattr(liq, attr), unit)
+    ingredients = []
+    for ing in formulation.ingredients:
+        doc = {"name": ing.name, "kind": ing.kind,
+               "loading": {"value": float(ing.loading), "basis": ing.basis}}
+        for key, (attr, _, unit) in _INGREDIENT_QUANTITIES.items():
+            doc[key] = _quantity(getattr(ing, attr), unit)
+        for key in _INGREDIENT_NUMBERS:
+            value = getattr(ing, key)
+            doc[key] = None if value is None else float(value)
+        doc["size_distribution"] = None if ing.size is None else ing.size.to_dict()
+        ingredients.append(doc)
+    return {
+        "format": FORMAT,
+        "schema_version": SCHEMA_VERSION,
+        "name": formulation.name,
+        "description": formulation.description,
+        "relations": {"solids": formulation.model, "droplets": formulation.droplet_model,
+                      "parameters": {k: float(v) for k, v in formulation.model_params.items()}},
+        "liquid": liquid,
+        "ingredients": ingredients,
+    }
+
+
+def scenario_from_dict(doc: dict) -> Formulation:
+    """Build a Formulation from a scenario document, migrating older schema versions."""
+    try:
+        return _from_dict(doc)
+    except LoadlineError:
+        raise
+    except (KeyError, TypeError, ValueError, AttributeError) as err:
+        raise ScenarioError(f"the scenario is malformed: {type(err).__name__}: {err}") from None
+
+
+def _from_dict(doc: dict) -> Formulation:
+    if not isinstance(doc, dict) or doc.get("format") != FORMAT:
+        raise ScenarioError(f"not a Loadline scenario: the field 'format' must be {FORMAT!r}.")
+    version = doc.get("schema_version")
+    if not isinstance(version, int) or isinstance(version, bool) or version < 1:
+        raise ScenarioError(f"schema_version = {version!r}: expected a whole number from 1.")
+    if version > SCHEMA_VERSION:
+        raise ScenarioError(f"schema_version = {version} is newer than this Loadline reads "
+                            f"(up to {SCHEMA_VERSION}); update Loadline to open it.")
+    while version < SCHEMA_VERSION:
+        doc = _MIGRATIONS[version](doc)
+        version = doc["schema_version"]
+    raw = doc["liquid"]
+    liquid_kwargs = {}
+    for key, (attr, dimension, _) in _LIQUID_QUANTITIES.items():
+        value = _read_quantity(raw.get(key), dimension, f"liquid.{key}")
+        if value is not None:
+            liquid_kwargs[attr] = value
+    params = {}
+    for name, q in (raw.get("parameters") or {}).items():
+        unit = q.get("unit", "") if isinstance(q, dict) else ""
+        value = q.get("value") if isinstance(q, dict) else q
+        params[name] = _si_from_unit(value, unit, f"liquid.parameters.{name}")
+    liquid = Liquid(name=str(raw.get("name", "")), preset=str(raw.get("preset", "")),
+                    law=str(raw.get("law", "newtonian")), params=params,
+                    glycerol_mass_fraction=float(raw.get("glycerol_mass_fraction", 0.0)),
+                    **liquid_kwargs)
+    ingredients = []
+    for k, item in enumerate(doc.get("ingredients", [])):
+        where = f"ingredients[{k}]"
+        kwargs = {}
+        for key, (attr, dimension, _) in _INGREDIENT_QUANTITIES.items():
+            value = _read_quantity(item.get(key), dimension, f"{where}.{key}")
+            if value is not None:
+                kwargs[attr] = value
+        for key in _INGREDIENT_NUMBERS:
+            if item.get(key) is not None:
+                kwargs[key] = float(item[key])
+        loading = item["loading"]
+        dist = item.get("size_distribution")
+        ingredients.append(Ingredient(
+            name=str(item.get("name", f"ingredient {k + 1}")), kind=str(item.get("kind", "solid")),
+            loading=float(loading["value"]), basis=str(loading.get("basis", "mass")),
+            size=None if dist is None else sizes.SizeDistribution.from_dict(dist), **kwargs))
+    relations = doc.get("relations", {})
+    return Formulation(
+        liquid=liquid, ingredients=tuple(ingredients), name=str(doc.get("name", "")),
+        description=str(doc.get("description", "")),
+        model=str(relations.get("solids", "krieger-dougherty")),
+        droplet_model=str(relations.get("droplets", "phan-thien-pham")),
+        model_params={k: float(v) for k, v in relations.get("parameters", {}).items()})
+
+
+def _si_from_unit(value, unit: str, field: str) -> float:
+    """SI value of a law parameter whose unit may be a power-law unit (Pa*s**n)."""
+    if isinstance(value, bool) or not isinstance(value, int | float):
+        raise ScenarioError(f"{field}: value {value!r} is not a number.")
+    from .units import Q_
+
+    try:
+        q = Q_(float(value), unit or "")
+        return float(q.to_base_units().magnitude)
+    except Exception as err:  # pint raises many kinds; report them as one
+        raise ScenarioError(f"{field}: unit {unit!r} is not understood ({err}).") from None
+
+
+def dumps(formulation: Formulation) -> str:
+    """The scenario document as JSON text."""
+    return json.dumps(scenario_to_dict(formulation), indent=2, ensure_ascii=False) + "\n"
+
+
+def loads(text: str) -> Formulation:
+    """A Formulation from JSON text; `ScenarioError` with the reason if it is not one."""
+    try:
+        doc = json.loads(text)
+    except json.JSONDecodeError as err:
+        raise ScenarioError(f"the scenario is not valid JSON (line {err.lineno}, "
+                            f"column {err.colno}: {err.msg}).") from None
+    return scenario_from_dict(doc)
+
+
+def read_scenario(path) -> Formulation:
+    """Read a `*.loadline.json` file.
+
+    Raises
+    ------
+    ScenarioError
+        Missing, too large, not JSON, malformed, or newer than this version; the message
+        names the last good copy (`.bak`) when one exists.
+    """
+    path = pathlib.Path(path)
+    try:
+        if path.stat().st_size > MAX_BYTES:
+            raise ScenarioError(f"{path.name} is larger than {MAX_BYTES // 1_000_000} MB; "
+                                "a scenario is a few kB.")
+        text = path.read_text(encoding="utf-8-sig")
+    except OSError as err:
+        raise ScenarioError(f"cannot read {path}: {err.strerror or err}.") from None
+    except UnicodeDecodeError:
+        raise ScenarioError(f"{path.name} is not UTF-8 text.") from None
+    try:
+        return loads(text)
+    except ScenarioError as err:
+        backup = path.with_name(path.name + ".bak")
+        hint = f" The last good copy is kept in {backup.name}." if backup.exists() else ""
+        raise ScenarioError(f"{path.name}: {err}{hint}") from None
+
+
+def write_scenario(formulation: Formulation, path) -> pathlib.Path:
+    """Write `formulation` to `path` atomically; keep the previous good file as `.bak`."""
+    path = pathlib.Path(path)
+    text = dumps(formulation)
+    loads(text)  # never write what cannot be read back
+    path.parent.mkdir(parents=True, exist_ok=True)
+    if path.exists():
+        try:
+            loads(path.read_text(encoding="utf-8-sig"))
+            _atomic_write(path.with_name(path.name + ".bak"), path.read_bytes())
+        except (LoadlineError, OSError, UnicodeDecodeError):
+            pass  # the old file is not a good copy: keep the .bak we have
+    _atomic_write(path, text.encode("utf-8"))
+    return path
+
+
+def _atomic_write(path: pathlib.Path, data: bytes) -> None:
+    fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent)
+    try:
+        with os.fdopen(fd, "wb") as handle:
+            handle.write(data)
+            handle.flush()
+            os.fsync(handle.fileno())
+        os.replace(tmp, path)
+    except BaseException:
+        pathlib.Path(tmp).unlink(missing_ok=True)
+        raise

@@ -1,0 +1,36 @@
+"""`make bench`: every benchmark, each measured side by side with its baseline in one run.
+
+Each module `bench_*.py` in this folder has `run() -> list[dict]` (rows made with
+`common.row`). Prints one table; nothing here is a pass/fail test.
+"""
+
+from __future__ import annotations
+
+import importlib
+import pathlib
+import sys
+
+sys.path.insert(0, str(pathlib.Path(__file__).resolve().parents[2]))
+
+
+def main(argv: list[str]) -> int:
+    import pandas as pd
+
+    folder = pathlib.Path(__file__).parent
+    names = sorted(p.stem for p in folder.glob("bench_*.py"))
+    if argv:
+        names = [n for n in names if any(a in n for a in argv)]
+    rows = []
+    for name in names:
+        module = importlib.import_module(f"tests.benchmarks.{name}")
+        print(f"running {name} ...", flush=True)
+        rows.extend(module.run())
+    table = pd.DataFrame(rows)
+    with pd.option_context("display.max_colwidth", 60, "display.width", 200,
+                           "display.float_format", "{:.3g}".format):
+        print(table.to_string(index=False))
+    return 0
+
+
+if __name__ == "__main__":
+    raise SystemExit(main(sys.argv[1:]))
