@@ -1,0 +1,114 @@
+"""The orchestration layer: right relation, right SI inputs, consistent results."""
+
+import dataclasses
+import pathlib
+
+import numpy as np
+import pytest
+
+import predictor as pr
+from predictor import formulation as fm
+from predictor import liquids, packing
+from predictor.scenario import read_scenario
+
+DEMO = pathlib.Path(__file__).parents[1] / "data_demo"
+
+
+def one_powder(loading=0.4, basis="mass", **kw):
+    liquid = fm.Liquid(name="oil", preset="", law="newtonian", params={"viscosity_Pa_s": 0.1},
+                       density_kg_per_m3=1000.0)
+    powder = fm.Ingredient("powder", density_kg_per_m3=3900.0, loading=loading, basis=basis,
+                           diameter_m=10e-6, **kw)
+    return fm.Formulation(liquid=liquid, ingredients=(powder,))
+
+
+def test_mixture_volume_fraction_by_hand():
+    # 40 wt% at 3.9 g/cm3 in a 1.0 g/cm3 liquid: phi = 0.145985 (hand calculation).
+    mix = fm.mixture(one_powder())
+    assert mix.phi_solids == pytest.approx(0.1459854, rel=1e-6)
+    assert mix.mass_fraction[0] == pytest.approx(0.4)
+
+
+def test_user_phi_max_and_intrinsic_viscosity_are_used():
+    f = one_powder(phi_max=0.55, intrinsic_viscosity=3.0)
+    mix = fm.mixture(f)
+    assert (mix.phi_max, mix.intrinsic_viscosity) == (0.55, 3.0)
+    frame = fm.predict(f, [1.0])
+    expected = pr.relative_viscosity(mix.phi_solids, "krieger-dougherty", phi_max=0.55,
+                                     intrinsic_viscosity=3.0)
+    assert frame["relative_viscosity"].iloc[0] == pytest.approx(expected, rel=1e-9)
+
+
+def test_packing_called_with_si_diameters(mocker):
+    spy = mocker.spy(packing, "max_packing")
+    fm.mixture(one_powder())
+    diameters = np.asarray(spy.call_args.args[0])
+    assert diameters.max() == pytest.approx(10e-6)
+
+
+def test_water_preset_calls_water_viscosity_in_kelvin(mocker):
+    spy = mocker.spy(liquids, "water_viscosity")
+    f = dataclasses.replace(one_powder(), liquid=fm.Liquid(temperature_K=293.15))
+    mix = fm.mixture(f)
+    assert spy.call_args.args[0] == pytest.approx(293.15)
+    # IAPWS R12-08 check value at 0.101325 MPa and 20 degC: 1.001596 mPa s (seen).
+    assert mix.liquid_viscosity_Pa_s == pytest.approx(1.001596e-3, rel=1e-3)
+
+
+def test_layer_swells_the_solid_volume():
+    bare = fm.mixture(one_powder())
+    coated = fm.mixture(one_powder(layer_thickness_m=0.5e-6))
+    # a 0.5 um layer on 5 um radius: factor 1.1**3 = 1.331 (geometry).
+    assert coated.phi_solids_effective == pytest.approx(bare.phi_solids * 1.331, rel=1e-9)
+
+
+def test_max_loading_matches_inverted_krieger_dougherty():
+    # Krieger-Dougherty inverts in closed form: phi = phi_max (1 - r**(-1/([eta] phi_max))).
+    f = one_powder(phi_max=0.6)
+    mix = fm.mixture(f)
+    limit = 2.0  # Pa s, i.e. eta_r = 20 in a 0.1 Pa s liquid
+    expected = 0.6 * (1 - 20.0 ** (-1 / (mix.intrinsic_viscosity * 0.6)))
+    assert fm.max_loading(f, limit, 10.0) == pytest.approx(expected, rel=1e-9)
+
+
+def test_max_loading_is_zero_when_the_liquid_alone_is_too_thick():
+    assert fm.max_loading(one_powder(), 0.05, 1.0) == 0.0
+
+
+@pytest.mark.parametrize("limit,rate", [(-1.0, 1.0), (np.nan, 1.0), (1.0, 0.0), (1.0, np.inf)])
+def test_max_loading_refuses_bad_input(limit, rate):
+    with pytest.raises(pr.InputRangeError):
+        fm.max_loading(one_powder(), limit, rate)
+
+
+def test_loading_sweep_rises_to_the_asymptote():
+    sweep = fm.loading_sweep(one_powder(phi_max=0.6), n=50)
+    assert np.all(np.diff(sweep["viscosity_Pa_s"]) > 0)
+    assert sweep["phi"].max() < 0.6 and sweep.attrs["phi_max"] == 0.6
+    assert np.all(np.diff(sweep["mass_fraction"]) > 0)
+
+
+def test_sweep_mass_fraction_matches_composition_at_current_loading():
+    f = one_powder()
+    mix = fm.mixture(f)
+    w = fm.solid_mass_fraction(f, [mix.phi_solids_effective], mix)
+    assert w[0] == pytest.approx(0.4, rel=1e-9)
+
+
+def test_scaled_copy_sits_at_the_new_loading():
+    f = fm.with_solids_scaled(one_powder(), 0.3)
+    assert fm.mixture(f).phi_solids_effective == pytest.approx(0.3)
+
+
+def test_loading_beyond_packing_gives_inf_not_garbage():
+    f = one_powder(loading=0.7, basis="volume", phi_max=0.6)
+    frame = fm.predict(f, [1.0])
+    assert np.isinf(frame["viscosity_Pa_s"].iloc[0])
+
+
+@pytest.mark.parametrize("name", ["mineral_coating", "ceramic_slip", "hand_cream"])
+def test_demo_scenarios_predict_finite_viscosity(name):
+    f = read_scenario(DEMO / f"{name}.loadline.json")
+    frame = fm.predict(f, [1.0, 100.0])
+    assert np.all(np.isfinite(frame["viscosity_Pa_s"]))
+    assert np.all(frame["viscosity_Pa_s"] > fm.mixture(f).liquid_viscosity_Pa_s)
