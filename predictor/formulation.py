@@ -12,7 +12,10 @@ How a formulation becomes one viscosity (documented choices, common practice, no
   times a volume-weighted shape factor (`packing.phi_max_for_aspect_ratio`), unless the user
   gives phi_max for an ingredient, which then replaces that ingredient's own estimate;
 - droplets are first mixed into the liquid (emulsion relation, droplet fraction counted in the
-  liquid + droplets), and the emulsion is the medium the solids see (a Farris-style nesting).
+  liquid + droplets), and the emulsion is the medium the solids see (a Farris-style nesting);
+- the flow curve (`predict`) lets the solids' relative viscosity depend on the stress
+  (Brownian thinning, optional frictional thickening) in the liquid's own law, solved by
+  `shear.flow_curve`; see `predict` for the packing limits and radius it uses.
 """
 
 from __future__ import annotations
@@ -23,7 +26,7 @@ from dataclasses import dataclass, field
 import numpy as np
 import pandas as pd
 
-from . import composition, liquids, packing, sizes
+from . import composition, liquids, packing, shear, sizes
 from .errors import InputRangeError
 from .registry import get_model
 
@@ -93,7 +96,9 @@ class Ingredient:
     interfacial_tension_N_per_m: float | None = None
 
     def distribution(self) -> sizes.SizeDistribution:
-        return self.size if self.size is not None else sizes.single(self.diameter_m)
+        if self.size is not None:
+            return self.size
+        return sizes.SizeDistribution.single(self.diameter_m)
 
 
 @dataclass(frozen=True)
@@ -107,6 +112,8 @@ class Formulation:
     model: str = "krieger-dougherty"          # suspension relation for the solids
     model_params: dict = field(default_factory=dict)  # overrides, e.g. from a calibration
     droplet_model: str = "phan-thien-pham"    # emulsion relation for the droplets
+    thickening_onset_stress_Pa: float | None = None   # frictional thickening; None: off
+    phi_max_frictional: float | None = None   # None: FRICTIONAL_RATIO * phi_max
 
     def __post_init__(self):
         object.__setattr__(self, "ingredients", tuple(self.ingredients))
@@ -187,7 +194,8 @@ def _solid_packing(ings, dists, phi_eff, is_solid):
                         for j, k in enumerate(solid)])
         phi_max = float(weights @ own)
     else:
-        combined = sizes.blend([dists[k] for k in solid], weights, basis="volume")
+        combined = sizes.SizeDistribution.blend([dists[k] for k in solid], weights,
+                                                basis="volume")
         phi_max = float(weights @ shape) * float(
             packing.max_packing(combined.diameters_m, combined.fractions))
     return phi_max, float(weights @ eta_i)
@@ -231,38 +239,174 @@ def droplet_factor(formulation: Formulation, mix: Mixture) -> float:
     return float(spec.func(min(phi_d, 1.0), **spec.check_params(params)))
 
 
+#: Zero-shear over high-shear packing limit of Brownian hard spheres, 0.63/0.71 (de Kruif et
+#: al., J. Chem. Phys. 83, 4717, 1985; from memory, not checked against the source).
+ZERO_SHEAR_RATIO = 0.63 / 0.71
+#: Frictional over frictionless jamming point, 0.58/0.64 (Wyart & Cates 2014 and Singh et al.
+#: 2018 for friction coefficients near 1; from memory, not checked against the source).
+FRICTIONAL_RATIO = 0.58 / 0.64
+#: Default shear rates of `predict`: 61 points, log-spaced over 1e-3 to 1e5 1/s.
+DEFAULT_RANGE_1_PER_S = (1e-3, 1e5)
+#: Units of the law parameters scaled by the Arrhenius factor (time-temperature
+#: superposition also scales time constants; common practice, no source).
+_SHIFTED_UNITS = ("Pa*s", "s")
+
+
+def liquid_law_of(liquid: Liquid) -> tuple[str, dict]:
+    """Registry law name and SI parameters of the liquid at its working temperature.
+
+    Presets ("water", "glycerol-water") are Newtonian at their computed viscosity. A law's
+    viscosity-like and time-constant parameters are multiplied by the Arrhenius factor
+    `Liquid.shift_factor()` (1 when no activation temperature is given); yield stresses
+    and flow indices are kept.
+    """
+    if liquid.preset:
+        return "newtonian", {"viscosity_Pa_s": liquid.newtonian_viscosity_Pa_s()}
+    spec = get_model(liquid.law, kind="liquid")
+    params = spec.check_params(dict(liquid.params))
+    shift = liquid.shift_factor()
+    units = {p.name: p.unit for p in spec.params}
+    return spec.name, {k: v * shift if units[k] in _SHIFTED_UNITS else v
+                       for k, v in params.items()}
+
+
+def _solid_radius_m(formulation: Formulation, mix: Mixture) -> float | None:
+    """Sauter radius of all solids together (total volume over total surface)."""
+    solids = [(k, i) for k, i in enumerate(formulation.ingredients) if i.kind == SOLID]
+    volume = np.array([mix.phi[k] for k, _ in solids])
+    if not solids or volume.sum() <= 0:
+        return None
+    radius = np.array([0.5 * i.distribution().sauter_diameter_m for _, i in solids])
+    return float(volume.sum() / np.sum(volume / radius))
+
+
+def flow_curve_of(formulation: Formulation, shear_rate_1_per_s=None,
+                  mix: Mixture | None = None):
+    """The `shear.FlowCurve` of a formulation (see `predict` for the choices made)."""
+    rates = _rates(shear_rate_1_per_s)
+    mix = mix or mixture(formulation)
+    law, params = liquid_law_of(formulation.liquid)
+    spec = get_model(formulation.model, kind="suspension")
+    rel = spec.check_params(_relation_params(spec, mix, formulation.model_params))
+    phi_max = float(rel.pop("phi_max", mix.phi_max))
+    phi = mix.phi_solids_effective
+    medium = droplet_factor(formulation, mix)
+    if phi >= 1.0:
+        inf = np.full_like(rates, np.inf)
+        eta_l = np.asarray(liquids.liquid_viscosity(rates, law, **params)) * np.ones_like(rates)
+        return shear.FlowCurve(rates, inf, inf, inf, eta_l, np.full(rates.shape, "jammed"),
+                               {"shear_jamming_1_per_s": 0.0},
+                               (f"phi = {phi:.3g}: the solids fill the volume; no flow.",))
+    onset = formulation.thickening_onset_stress_Pa
+    frictional = formulation.phi_max_frictional
+    if onset is not None and frictional is None:
+        frictional = FRICTIONAL_RATIO * phi_max
+    return shear.flow_curve(
+        rates, phi, liquid_law_name=law, liquid_params=params, medium_factor=medium,
+        relation=spec.name, relation_params=rel, phi_max_zero_shear=ZERO_SHEAR_RATIO * phi_max,
+        phi_max_high_shear=phi_max, phi_max_frictional=frictional, onset_stress_Pa=onset,
+        radius_m=_solid_radius_m(formulation, mix),
+        temperature_K=formulation.liquid.temperature_K)
+
+
+def _rates(shear_rate_1_per_s):
+    if shear_rate_1_per_s is None:
+        return np.logspace(*np.log10(DEFAULT_RANGE_1_PER_S), 61)
+    rates = np.atleast_1d(np.asarray(shear_rate_1_per_s, dtype=float))
+    if not np.all(np.isfinite(rates)) or np.any(rates <= 0):
+        raise InputRangeError("shear_rate_1_per_s", rates[~(np.isfinite(rates) & (rates > 0))][0],
+                              "a positive, finite shear rate")
+    return rates
+
+
 def predict(formulation: Formulation, shear_rate_1_per_s=None) -> pd.DataFrame:
-    """Flow curve of the formulation: viscosity and stress at each shear rate.
+    """Flow curve of the formulation: viscosity, stress and regime at each shear rate.
+
+    The solids' relative viscosity depends on the stress (Brownian thinning between a
+    zero-shear and a high-shear plateau, optional frictional thickening) and the liquid may
+    be non-Newtonian; `shear.flow_curve` solves for the stress at every rate. Choices made
+    here (common practice, no source, unless noted):
+
+    - high-shear packing limit = the solids' phi_max (`mixture`); zero-shear limit =
+      `ZERO_SHEAR_RATIO` times it; frictional limit = `Formulation.phi_max_frictional` or
+      `FRICTIONAL_RATIO` times it, used only when `thickening_onset_stress_Pa` is set;
+    - the Brownian radius is the Sauter radius of all solids together; above 3 um the
+      Brownian term is left out;
+    - droplets scale the liquid's stress by their relative viscosity (Farris-style nesting);
+    - the liquid law comes from `liquid_law_of` (presets are Newtonian).
 
     Parameters
     ----------
     formulation : Formulation
     shear_rate_1_per_s : float or array_like, optional
-        Shear rates; default 61 points log-spaced from 1e-3 to 1e5. [1/s]
+        Shear rates, > 0; default 61 points log-spaced from 1e-3 to 1e5. [1/s]
 
     Returns
     -------
     pandas.DataFrame
-        Columns shear_rate_1_per_s, viscosity_Pa_s, shear_stress_Pa, relative_viscosity,
-        liquid_viscosity_Pa_s; `attrs` holds phi, phi_max and headroom.
+        Columns shear_rate_1_per_s, viscosity_Pa_s, shear_stress_Pa, relative_viscosity
+        (over the liquid at the same rate), liquid_viscosity_Pa_s, regime (see
+        `shear.REGIMES`). `attrs` holds phi, phi_max, headroom, `markers` (dict of floats:
+        plateaus, onsets, discontinuous-thickening range, shear jamming, apparent yield
+        stress) and `warnings` (tuple of str).
     """
-    rates = np.logspace(-3, 5, 61) if shear_rate_1_per_s is None else np.atleast_1d(
-        np.asarray(shear_rate_1_per_s, dtype=float))
-    if not np.all(np.isfinite(rates)) or np.any(rates <= 0):
-        raise InputRangeError("shear_rate_1_per_s", rates[~(np.isfinite(rates) & (rates > 0))][0],
-                              "a positive, finite shear rate")
     mix = mixture(formulation)
-    eta_r = float(relative_viscosity_at(formulation, mix.phi_solids_effective, mix))
-    eta = np.full_like(rates, eta_r * mix.liquid_viscosity_Pa_s)
+    curve = flow_curve_of(formulation, shear_rate_1_per_s, mix)
     frame = pd.DataFrame({
-        "shear_rate_1_per_s": rates,
-        "viscosity_Pa_s": eta,
-        "shear_stress_Pa": eta * rates,
-        "relative_viscosity": np.full_like(rates, eta_r),
-        "liquid_viscosity_Pa_s": np.full_like(rates, mix.liquid_viscosity_Pa_s),
+        "shear_rate_1_per_s": curve.shear_rate_1_per_s,
+        "viscosity_Pa_s": curve.viscosity_Pa_s,
+        "shear_stress_Pa": curve.shear_stress_Pa,
+        "relative_viscosity": curve.relative_viscosity,
+        "liquid_viscosity_Pa_s": curve.liquid_viscosity_Pa_s,
+        "regime": curve.regime,
     })
-    frame.attrs.update(phi=mix.phi_solids_effective, phi_max=mix.phi_max, headroom=mix.headroom)
+    frame.attrs.update(phi=mix.phi_solids_effective, phi_max=mix.phi_max, headroom=mix.headroom,
+                       markers=dict(curve.markers), warnings=tuple(curve.warnings))
     return frame
+
+
+def flow_curve_summary(formulation: Formulation, shear_rate_1_per_s=None) -> dict:
+    """Markers and warnings of the flow curve as one plain dict (for the app and the CLI).
+
+    Keys: phi, phi_max, headroom, warnings, and every marker of `shear.flow_curve`
+    (``thinning_onset_1_per_s``, ``dst_low_1_per_s``, ``apparent_yield_stress_Pa``, ...).
+    """
+    attrs = predict(formulation, shear_rate_1_per_s).attrs
+    return {"phi": attrs["phi"], "phi_max": attrs["phi_max"], "headroom": attrs["headroom"],
+            **attrs["markers"], "warnings": attrs["warnings"]}
+
+
+def process_viscosities(formulation: Formulation, windows=None) -> pd.DataFrame:
+    """Viscosity at the ends of each process's shear-rate window.
+
+    Parameters
+    ----------
+    formulation : Formulation
+    windows : sequence of (name, low, high), optional
+        Shear-rate windows in 1/s; default `shear.PROCESS_SHEAR_RATES` (common practice,
+        no source).
+
+    Returns
+    -------
+    pandas.DataFrame
+        One row per window: process, low_1_per_s, high_1_per_s, viscosity_low_Pa_s,
+        viscosity_high_Pa_s, regime_low, regime_high.
+    """
+    windows = tuple(shear.PROCESS_SHEAR_RATES if windows is None else windows)
+    for name, low, high in windows:
+        if not (np.isfinite(low) and np.isfinite(high) and 0 < low <= high):
+            raise InputRangeError(f"window {name!r}", (low, high),
+                                  "finite shear rates with 0 < low <= high [1/s]")
+    rates = np.array([[w[1], w[2]] for w in windows], dtype=float).ravel()
+    frame = predict(formulation, rates)
+    eta = frame["viscosity_Pa_s"].to_numpy().reshape(-1, 2)
+    regime = frame["regime"].to_numpy().reshape(-1, 2)
+    return pd.DataFrame({
+        "process": [w[0] for w in windows],
+        "low_1_per_s": rates[0::2], "high_1_per_s": rates[1::2],
+        "viscosity_low_Pa_s": eta[:, 0], "viscosity_high_Pa_s": eta[:, 1],
+        "regime_low": regime[:, 0], "regime_high": regime[:, 1],
+    })
 
 
 def loading_sweep(formulation: Formulation, phi=None, n: int = 200) -> pd.DataFrame:
