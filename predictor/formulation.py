@@ -21,13 +21,14 @@ How a formulation becomes one viscosity (documented choices, common practice, no
 from __future__ import annotations
 
 import dataclasses
+import warnings
 from dataclasses import dataclass, field
 
 import numpy as np
 import pandas as pd
 
 from . import composition, liquids, packing, shear, sizes
-from .errors import InputRangeError
+from .errors import InputRangeError, ValidityWarning
 from .registry import get_model
 
 SOLID, DROPLET = "solid", "droplet"
@@ -54,7 +55,11 @@ class Liquid:
     activation_temperature_K: float | None = None
 
     def newtonian_viscosity_Pa_s(self) -> float:
-        """Viscosity of a Newtonian liquid at `temperature_K` (presets or the law's value)."""
+        """Viscosity at `temperature_K` of a preset or Newtonian liquid.
+
+        For a non-Newtonian law this is its apparent viscosity at 1 1/s (a reference value
+        for viscosity ratios and the Newtonian sweep; flow curves use the whole law).
+        """
         if self.preset == "water":
             return float(liquids.water_viscosity(self.temperature_K))
         if self.preset == "glycerol-water":
@@ -62,6 +67,9 @@ class Liquid:
                                                           self.temperature_K))
         if self.preset:
             raise InputRangeError("liquid preset", self.preset, "'water', 'glycerol-water' or ''")
+        if self.law != "newtonian":
+            law, params = liquid_law_of(self)
+            return float(liquids.liquid_viscosity(1.0, law, **params))
         value = self.params.get("viscosity_Pa_s", 1e-3)
         return float(value) * self.shift_factor()
 
@@ -171,6 +179,9 @@ def mixture(formulation: Formulation) -> Mixture:
     phi_s = float(phi[is_solid].sum())
     phi_eff = float((phi * swelling)[is_solid].sum())
     phi_max, eta_i = _solid_packing(ings, dists, phi * swelling, is_solid)
+    # A calibration (model_params) overrides the estimates everywhere, not only in the relation.
+    phi_max = float(formulation.model_params.get("phi_max", phi_max))
+    eta_i = float(formulation.model_params.get("intrinsic_viscosity", eta_i))
     return Mixture(phi, w, is_solid, swelling, phi_s, phi_eff, float(phi[~is_solid].sum()),
                    phi_max, eta_i, eta_l,
                    float(composition.mixture_density(phi, rho, liq.density_kg_per_m3)))
@@ -198,7 +209,8 @@ def _solid_packing(ings, dists, phi_eff, is_solid):
                                                 basis="volume")
         phi_max = float(weights @ shape) * float(
             packing.max_packing(combined.diameters_m, combined.fractions))
-    return phi_max, float(weights @ eta_i)
+    # clip: a weighted mean of equal values must not round outside their range
+    return phi_max, float(np.clip(weights @ eta_i, eta_i.min(), eta_i.max()))
 
 
 def _relation_params(spec, mix: Mixture, overrides: dict) -> dict:
@@ -409,7 +421,8 @@ def process_viscosities(formulation: Formulation, windows=None) -> pd.DataFrame:
     })
 
 
-def loading_sweep(formulation: Formulation, phi=None, n: int = 200) -> pd.DataFrame:
+def loading_sweep(formulation: Formulation, phi=None, n: int = 200,
+                  shear_rate_1_per_s: float | None = None) -> pd.DataFrame:
     """Viscosity against total solid volume fraction, solids scaled along their shares.
 
     Parameters
@@ -420,24 +433,49 @@ def loading_sweep(formulation: Formulation, phi=None, n: int = 200) -> pd.DataFr
         phi_max.
     n : int
         Number of points of the default grid.
+    shear_rate_1_per_s : float, optional
+        Evaluate the full flow curve (thinning, thickening, non-Newtonian liquid) at this
+        shear rate; None gives the Newtonian view: the relation at phi_max times the
+        liquid's Newtonian viscosity. [1/s]
 
     Returns
     -------
     pandas.DataFrame
         Columns phi, mass_fraction (of all solids), relative_viscosity, viscosity_Pa_s;
-        `attrs` holds phi_max and the current loading.
+        `attrs` holds phi_max, the current loading and the shear rate.
     """
     mix = mixture(formulation)
-    grid = np.linspace(0.0, mix.phi_max * 0.995, n) if phi is None else np.asarray(phi, float)
-    eta_r = relative_viscosity_at(formulation, grid, mix)
+    grid = np.linspace(0.0, mix.phi_max * 0.995, n) if phi is None else np.atleast_1d(
+        np.asarray(phi, float))
+    if grid.size and (not np.all(np.isfinite(grid)) or grid.min() < 0 or grid.max() > 1):
+        raise InputRangeError("phi", grid[~((grid >= 0) & (grid <= 1))][0], "0 to 1")
+    if shear_rate_1_per_s is None:
+        eta_r = relative_viscosity_at(formulation, grid, mix)
+        eta = eta_r * mix.liquid_viscosity_Pa_s
+    else:
+        rate = _rates(shear_rate_1_per_s)[:1]
+        curves = [flow_curve_of(formulation, rate, _at_loading(mix, x)) for x in grid]
+        eta = np.array([c.viscosity_Pa_s[0] for c in curves])
+        eta_r = np.array([c.relative_viscosity[0] for c in curves])
     frame = pd.DataFrame({
         "phi": grid,
         "mass_fraction": solid_mass_fraction(formulation, grid, mix),
         "relative_viscosity": eta_r,
-        "viscosity_Pa_s": eta_r * mix.liquid_viscosity_Pa_s,
+        "viscosity_Pa_s": eta,
     })
-    frame.attrs.update(phi_max=mix.phi_max, phi_current=mix.phi_solids_effective)
+    frame.attrs.update(phi_max=mix.phi_max, phi_current=mix.phi_solids_effective,
+                       shear_rate_1_per_s=shear_rate_1_per_s)
     return frame
+
+
+def _at_loading(mix: Mixture, phi_solids_effective: float) -> Mixture:
+    """`mix` with its solids scaled, along their shares, to a new effective fraction."""
+    x = float(phi_solids_effective)
+    if mix.phi_solids_effective > 0:
+        bare = mix.phi_solids * x / mix.phi_solids_effective
+    else:
+        bare = x / float(np.mean(mix.swelling[mix.is_solid])) if mix.is_solid.any() else 0.0
+    return dataclasses.replace(mix, phi_solids_effective=x, phi_solids=bare)
 
 
 def solid_mass_fraction(formulation: Formulation, phi_solids_effective,
@@ -460,10 +498,25 @@ def solid_mass_fraction(formulation: Formulation, phi_solids_effective,
 
 def max_loading(formulation: Formulation, viscosity_limit_Pa_s: float,
                 shear_rate_1_per_s: float = 1.0) -> float:
-    """Highest effective solid volume fraction whose viscosity stays under a limit.
+    """Highest effective solid volume fraction whose viscosity at a shear rate stays under a limit.
 
-    Solved on the monotone relative-viscosity curve by bisection; returns 0 when even the
-    liquid (with its droplets) exceeds the limit.
+    The solids are scaled along their shares (droplets stay); the viscosity at the shear
+    rate comes from the full flow curve (`flow_curve_of`), so thinning, thickening and a
+    non-Newtonian liquid count. Solved by bisection to 1e-9 in phi on the rising curve;
+    returns 0 when the liquid alone (with its droplets) already exceeds the limit.
+
+    Parameters
+    ----------
+    formulation : Formulation
+    viscosity_limit_Pa_s : float
+        Highest acceptable viscosity. [Pa*s]
+    shear_rate_1_per_s : float
+        Shear rate at which the limit applies. [1/s]
+
+    Returns
+    -------
+    float
+        Total effective solid volume fraction. [-]
     """
     limit = float(viscosity_limit_Pa_s)
     if not np.isfinite(limit) or limit <= 0:
@@ -472,21 +525,20 @@ def max_loading(formulation: Formulation, viscosity_limit_Pa_s: float,
     if not np.isfinite(rate) or rate <= 0:
         raise InputRangeError("shear_rate_1_per_s", rate, "a positive, finite shear rate")
     mix = mixture(formulation)
-    eta_l = mix.liquid_viscosity_Pa_s
-    target = limit / eta_l
+    rates = np.array([rate])
 
-    def eta_r(x):
-        return relative_viscosity_at(formulation, x, mix)
+    def too_thick(x):
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore", ValidityWarning)
+            eta = flow_curve_of(formulation, rates, _at_loading(mix, x)).viscosity_Pa_s[0]
+        return not eta < limit       # nan or inf count as too thick
 
     low, high = 0.0, mix.phi_max
-    if float(eta_r(low)) >= target:
+    if too_thick(low):
         return 0.0
-    for _ in range(80):  # bisection to below 1e-15 of phi_max; monotone in phi
+    while high - low > 1e-9:
         mid = 0.5 * (low + high)
-        if float(eta_r(mid)) < target:
-            low = mid
-        else:
-            high = mid
+        low, high = (low, mid) if too_thick(mid) else (mid, high)
     return low
 
 

@@ -34,7 +34,8 @@ CASES = [
          "Eilers, Kolloid-Z. 97 (1941) 313: [1 + 1.25*0.4/(1 - 0.625)]**2 = (7/3)**2",
          "hand calculation; from memory", models=("eilers",)),
     Case("suspension.mooney", {"phi": 0.3, "crowding_factor": 1.5}, "3.910",
-         "Mooney, J. Colloid Sci. 6 (1951) 162: exp(2.5*0.3/(1 - 1.5*0.3)) = exp(1.3636)", "hand calculation; from memory",
+         "Mooney, J. Colloid Sci. 6 (1951) 162: exp(2.5*0.3/(1 - 1.5*0.3)) = exp(1.3636)",
+         "hand calculation; from memory",
          models=("mooney",)),
     Case("suspension.chong", {"phi": 0.3, "phi_max": 0.6}, "3.0625",
          "Chong, Christiansen & Baer, J. Appl. Polym. Sci. 15 (1971) 2007: "
