@@ -52,3 +52,60 @@ def scalar_or_array(result, *inputs):
     if result.ndim == 0 and all(np.ndim(x) == 0 for x in inputs):
         return float(result)
     return result
+
+
+def guarded(func):
+    """Turn numpy floating-point faults and shape mismatches into `InputRangeError`.
+
+    Applied to every public function of the model modules (a meta-test checks it), so that
+    absurd magnitudes (overflow), invalid operations (NaN) and arrays that do not broadcast
+    give one clear message naming the inputs, never a bare numpy warning or a silent NaN.
+    A relation that divides by zero on purpose (a documented divergence) wraps that step in
+    its own ``np.errstate``, which takes precedence.
+    """
+    import functools
+    import inspect
+
+    signature = inspect.signature(func)
+
+    def describe(args, kwargs) -> str:
+        try:
+            bound = signature.bind(*args, **kwargs)
+        except TypeError:
+            return "the inputs"
+        parts = []
+        for name, value in bound.arguments.items():
+            arr = np.asarray(value) if not isinstance(value, str | dict) else None
+            if arr is not None and arr.dtype.kind in "fiu":
+                text = f"{float(arr):.3g}" if arr.ndim == 0 else f"array{arr.shape}"
+                parts.append(f"{name}={text}")
+        return ", ".join(parts) or "the inputs"
+
+    @functools.wraps(func)
+    def wrapper(*args, **kwargs):
+        try:
+            with np.errstate(over="raise", invalid="raise", divide="raise"):
+                return func(*args, **kwargs)
+        except FloatingPointError as err:
+            raise InputRangeError(
+                describe(args, kwargs), "(this combination)",
+                f"inputs of realistic magnitude; {func.__name__} hits a floating-point "
+                f"{str(err).replace('encountered in ', 'in ')}") from None
+        except (ValueError, IndexError) as err:
+            if isinstance(err, InputRangeError) or not _is_shape_error(err):
+                raise
+            raise InputRangeError(describe(args, kwargs), "(these shapes)",
+                                  f"array arguments whose shapes broadcast together "
+                                  f"in {func.__name__}") from None
+
+    wrapper.__loadline_guarded__ = True
+    return wrapper
+
+
+def _is_shape_error(err: Exception) -> bool:
+    from .errors import LoadlineError
+
+    text = str(err)
+    return not isinstance(err, LoadlineError) and any(
+        key in text for key in ("broadcast", "shape", "dimension", "axis", "size 0",
+                                "zero-size", "out of bounds"))

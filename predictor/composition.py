@@ -7,10 +7,11 @@ from __future__ import annotations
 
 import numpy as np
 
-from ._checks import as_array, positive
+from ._checks import as_array, fraction, guarded, positive
 from .errors import InputRangeError
 
 
+@guarded
 def volume_fractions(loadings, is_mass, densities_kg_per_m3, liquid_density_kg_per_m3):
     r"""Volume fraction of each ingredient from loadings given on a mass or volume basis.
 
@@ -74,7 +75,11 @@ def volume_fractions(loadings, is_mass, densities_kg_per_m3, liquid_density_kg_p
     a = np.where(mass[..., :, None], w[..., :, None] * (rho - rho_l)[..., None, :]
                  - eye * rho[..., :, None], eye)
     b = np.where(mass, -w * rho_l, w)
-    phi = np.linalg.solve(a, b[..., None])[..., 0]
+    try:
+        phi = np.linalg.solve(a, b[..., None])[..., 0]
+    except np.linalg.LinAlgError:
+        raise InputRangeError("densities_kg_per_m3", "(these densities)",
+                              "densities for which the mass balance has one solution") from None
     total = phi.sum(axis=-1)
     if np.any(phi < -1e-12) or np.any(total > 1.0 + 1e-9):
         raise InputRangeError("loadings", float(np.max(total)),
@@ -82,6 +87,7 @@ def volume_fractions(loadings, is_mass, densities_kg_per_m3, liquid_density_kg_p
     return np.clip(phi, 0.0, 1.0)
 
 
+@guarded
 def mass_fractions(phi, densities_kg_per_m3, liquid_density_kg_per_m3):
     r"""Mass fraction of each ingredient from its volume fraction (ideal mixing).
 
@@ -124,6 +130,7 @@ def mass_fractions(phi, densities_kg_per_m3, liquid_density_kg_per_m3):
                      + masses.sum(axis=-1, keepdims=True))
 
 
+@guarded
 def mixture_density(phi, densities_kg_per_m3, liquid_density_kg_per_m3):
     """Density of the formulation from volume fractions (ideal mixing). [kg/m**3]
 
@@ -132,7 +139,10 @@ def mixture_density(phi, densities_kg_per_m3, liquid_density_kg_per_m3):
     >>> mixture_density([0.2], [2500.0], 1000.0)
     1300.0
     """
-    phi = np.atleast_1d(as_array(phi, "phi"))
+    phi = np.atleast_1d(fraction(phi, "phi"))
+    if np.any(phi.sum(axis=-1) > 1.0):
+        raise InputRangeError("phi", float(np.max(phi.sum(axis=-1))),
+                              "volume fractions adding up to at most 1")
     rho = positive(densities_kg_per_m3, "density_kg_per_m3")
     rho_l = positive(liquid_density_kg_per_m3, "liquid density_kg_per_m3")
     result = rho_l * (1.0 - phi.sum(axis=-1)) + (rho * phi).sum(axis=-1)

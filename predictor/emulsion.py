@@ -35,7 +35,7 @@ import warnings
 
 import numpy as np
 
-from ._checks import as_array, fraction, in_range, positive, scalar_or_array
+from ._checks import as_array, fraction, guarded, in_range, positive, scalar_or_array
 from .errors import InputRangeError, LoadlineError, ValidityWarning
 from .registry import Param, model
 
@@ -92,6 +92,7 @@ def _warn(message: str) -> None:
 @model("emulsion", VISCOSITY_RATIO,
        validity="dilute emulsions of spherical Newtonian droplets, phi below about 0.03",
        source="Taylor, Proc. R. Soc. A 1932", phi_range=(0.0, 0.03))
+@guarded
 def taylor(phi, viscosity_ratio=1.0):
     r"""Relative viscosity of a dilute emulsion of Newtonian droplets.
 
@@ -262,6 +263,7 @@ def _compiled_kernel():
 
 
 
+@guarded
 def differential_scheme_solve(log_right_side, viscosity_ratio, *, tol=1e-13, max_iter=50):
     r"""Solve the differential-scheme equation of emulsions for the relative viscosity.
 
@@ -315,6 +317,9 @@ def differential_scheme_solve(log_right_side, viscosity_ratio, *, tol=1e-13, max
     >>> differential_scheme_solve(2.5 * np.log(2.0), 0.0)
     2.0
     """
+    if isinstance(max_iter, bool) or not isinstance(max_iter, int | np.integer) or max_iter < 1:
+        raise InputRangeError("max_iter", max_iter, "a whole number of iterations >= 1")
+    tol = float(in_range(tol, "tol", 0.0, 0.1, low_open=True))
     c = np.asarray(log_right_side, dtype=float)
     if np.any(np.isnan(c)) or np.any(c < 0.0):
         bad = c[np.isnan(c) | (c < 0.0)].flat[0]
@@ -344,6 +349,7 @@ def differential_scheme_solve(log_right_side, viscosity_ratio, *, tol=1e-13, max
        validity="concentrated emulsions of Newtonian droplets; no packing limit in the "
                 "relation, so unrealistic above droplet packing, about 0.64",
        source="Phan-Thien & Pham, J. Non-Newton. Fluid Mech. 1997", phi_range=(0.0, 0.64))
+@guarded
 def phan_thien_pham(phi, viscosity_ratio=1.0):
     r"""Relative viscosity of a concentrated emulsion from a differential scheme (implicit).
 
@@ -414,6 +420,7 @@ def phan_thien_pham(phi, viscosity_ratio=1.0):
 @model("emulsion", VISCOSITY_RATIO, PHI_MAX, PAL_VARIANT,
        validity="0 <= phi < phi_max; concentrated emulsions of Newtonian droplets",
        source="Pal, J. Rheol. 2001", phi_range=(0.0, 1.0), phi_range_relative=True)
+@guarded
 def pal(phi, viscosity_ratio=1.0, phi_max=0.64, variant=2):
     r"""Relative viscosity of a concentrated emulsion with a droplet packing limit (implicit).
 
@@ -499,6 +506,7 @@ def pal(phi, viscosity_ratio=1.0, phi_max=0.64, variant=2):
 # --------------------------------------------------------------------------------------------
 
 
+@guarded
 def capillary_number(continuous_viscosity_Pa_s, shear_rate_1_per_s, droplet_radius_m,
                      interfacial_tension_N_per_m):
     r"""Capillary number of a droplet in simple shear: viscous over interfacial stress.
@@ -566,6 +574,7 @@ def _taylor_deformation_factor(lam):
                         (19.0 * lam + 16.0) / (16.0 * lam + 16.0))
 
 
+@guarded
 def taylor_deformation(capillary_number, viscosity_ratio=1.0):
     r"""Steady deformation of a droplet in simple shear at small capillary number.
 
@@ -626,6 +635,7 @@ def taylor_deformation(capillary_number, viscosity_ratio=1.0):
     return scalar_or_array(deformation, ca, lam)
 
 
+@guarded
 def deformation_onset_shear_rate(continuous_viscosity_Pa_s, droplet_radius_m,
                                  interfacial_tension_N_per_m, viscosity_ratio=1.0,
                                  deformation=0.1):
@@ -692,6 +702,7 @@ def deformation_onset_shear_rate(continuous_viscosity_Pa_s, droplet_radius_m,
 DE_BRUIJN_LOWEST_RATIO = 1e-4
 
 
+@guarded
 def critical_capillary_de_bruijn(viscosity_ratio):
     r"""Critical capillary number for droplet breakup in simple shear (fit of Grace's curve).
 
@@ -763,6 +774,7 @@ def critical_capillary_de_bruijn(viscosity_ratio):
     return scalar_or_array(ca, lam)
 
 
+@guarded
 def max_stable_droplet_diameter(continuous_viscosity_Pa_s, shear_rate_1_per_s,
                                 interfacial_tension_N_per_m, viscosity_ratio=1.0):
     r"""Largest droplet diameter that survives steady simple shear at a process shear rate.
@@ -854,6 +866,7 @@ def _check_fitted(name, phi, low, high):
               f"fitted ({low:g} to {high:g}).")
 
 
+@guarded
 def shear_modulus_princen_kiss(phi, interfacial_tension_N_per_m, sauter_diameter_m):
     r"""Static shear modulus of a highly concentrated (jammed) emulsion.
 
@@ -912,6 +925,7 @@ def shear_modulus_princen_kiss(phi, interfacial_tension_N_per_m, sauter_diameter
     return scalar_or_array(g, phi, gamma, d32)
 
 
+@guarded
 def yield_stress_princen_kiss(phi, interfacial_tension_N_per_m, sauter_diameter_m):
     r"""Yield stress of a highly concentrated (jammed) emulsion.
 
@@ -968,6 +982,7 @@ def yield_stress_princen_kiss(phi, interfacial_tension_N_per_m, sauter_diameter_
     return scalar_or_array(scale * np.cbrt(phi) * np.clip(y, 0.0, None), phi, gamma, d32)
 
 
+@guarded
 def shear_modulus_mason(phi, interfacial_tension_N_per_m, sauter_diameter_m, phi_c=MASON_PHI_C):
     r"""Plateau shear modulus of a compressed emulsion just above droplet packing.
 
@@ -1033,6 +1048,7 @@ def shear_modulus_mason(phi, interfacial_tension_N_per_m, sauter_diameter_m, phi
     return scalar_or_array(g, phi, gamma, d32, phi_c)
 
 
+@guarded
 def yield_stress_mason(phi, interfacial_tension_N_per_m, sauter_diameter_m, phi_c=MASON_PHI_C):
     r"""Yield stress of a compressed emulsion just above droplet packing.
 
@@ -1095,6 +1111,7 @@ def yield_stress_mason(phi, interfacial_tension_N_per_m, sauter_diameter_m, phi_
 JAMMED_YIELD_RELATIONS = ("mason", "princen-kiss")
 
 
+@guarded
 def flow_stress_jammed(phi, shear_rate_1_per_s, continuous_viscosity_Pa_s,
                        interfacial_tension_N_per_m, sauter_diameter_m, viscosity_ratio=1.0,
                        phi_c=MASON_PHI_C, yield_relation="mason"):

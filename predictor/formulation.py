@@ -130,6 +130,40 @@ class Formulation:
                 raise InputRangeError(f"ingredients[{i}].kind", ing.kind, "'solid' or 'droplet'")
             if ing.basis not in ("mass", "volume"):
                 raise InputRangeError(f"ingredients[{i}].basis", ing.basis, "'mass' or 'volume'")
+            for name, (low, high) in _INGREDIENT_RANGES.items():
+                _check_range(f"ingredients[{i}].{name}", getattr(ing, name), low, high)
+            if ing.size is not None:
+                d = ing.size.diameters_m
+                _check_range(f"ingredients[{i}].size (smallest class)", float(d.min()), 1e-9, 1e-2)
+                _check_range(f"ingredients[{i}].size (largest class)", float(d.max()), 1e-9, 1e-2)
+        for name, (low, high) in _LIQUID_RANGES.items():
+            _check_range(f"liquid.{name}", getattr(self.liquid, name), low, high)
+        _check_range("thickening_onset_stress_Pa", self.thickening_onset_stress_Pa, 1e-9, 1e7)
+        _check_range("phi_max_frictional", self.phi_max_frictional, 0.05, 1.0)
+
+
+# Screening limits of the inputs (our own choice, wide enough for real formulations; common
+# practice, no source). None means "not given" and is allowed where the field is optional.
+_INGREDIENT_RANGES = {
+    "density_kg_per_m3": (10.0, 25_000.0), "loading": (0.0, 1.0), "diameter_m": (1e-9, 1e-2),
+    "aspect_ratio": (0.01, 100.0), "layer_thickness_m": (0.0, 1e-5), "phi_max": (0.05, 1.0),
+    "intrinsic_viscosity": (1.0, 100.0), "droplet_viscosity_Pa_s": (1e-7, 1e7),
+    "interfacial_tension_N_per_m": (1e-7, 1.0),
+}
+_LIQUID_RANGES = {
+    "temperature_K": (150.0, 700.0), "density_kg_per_m3": (10.0, 25_000.0),
+    "glycerol_mass_fraction": (0.0, 1.0), "reference_temperature_K": (150.0, 700.0),
+    "activation_temperature_K": (0.0, 1e5),
+}
+
+
+def _check_range(field_name: str, value, low: float, high: float) -> None:
+    if value is None:
+        return
+    if isinstance(value, bool) or not isinstance(value, int | float | np.floating):
+        raise InputRangeError(field_name, value, f"a number from {low:g} to {high:g}")
+    if not (np.isfinite(value) and low <= value <= high):
+        raise InputRangeError(field_name, value, f"a number from {low:g} to {high:g}")
 
 
 @dataclass(frozen=True)

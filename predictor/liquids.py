@@ -23,7 +23,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from ._checks import fraction, in_range, positive, scalar_or_array
+from ._checks import fraction, guarded, in_range, positive, scalar_or_array
 from .errors import InputRangeError
 from .registry import Param, get_model, model
 
@@ -51,6 +51,7 @@ _KELL_NUM = np.array([999.83952, 16.945176, -7.9870401e-3, -46.170461e-6, 105.56
 _KELL_DEN = 16.879850e-3
 
 
+@guarded
 def iapws_2008_viscosity(temperature_K, density_kg_per_m3):
     r"""Viscosity of water substance from temperature and density (IAPWS 2008).
 
@@ -122,6 +123,7 @@ def iapws_2008_viscosity(temperature_K, density_kg_per_m3):
     return scalar_or_array(_MU_STAR_Pa_s * mu0 * mu1, t, rho)
 
 
+@guarded
 def water_density(temperature_K):
     r"""Density of air-free liquid water at 101.325 kPa, from Kell's correlation.
 
@@ -174,6 +176,7 @@ def water_density(temperature_K):
     return scalar_or_array(num / (1.0 + _KELL_DEN * t), t90)
 
 
+@guarded
 def water_viscosity(temperature_K):
     r"""Viscosity of liquid water at atmospheric pressure, 0 to 100 degC.
 
@@ -221,6 +224,7 @@ def water_viscosity(temperature_K):
     return scalar_or_array(iapws_2008_viscosity(t, water_density(t)), t)
 
 
+@guarded
 def glycerol_water_viscosity(glycerol_mass_fraction, temperature_K):
     r"""Viscosity of a glycerol-water mixture from its glycerol mass fraction and temperature.
 
@@ -282,6 +286,7 @@ def glycerol_water_viscosity(glycerol_mass_fraction, temperature_K):
 # --- Temperature shift -------------------------------------------------------------------
 
 
+@guarded
 def arrhenius_shift(temperature_K, reference_temperature_K, activation_temperature_K):
     r"""Arrhenius (Andrade) factor eta(T) / eta(T_ref) of a liquid's viscosity.
 
@@ -327,6 +332,7 @@ def arrhenius_shift(temperature_K, reference_temperature_K, activation_temperatu
     return scalar_or_array(np.exp(ta * (1.0 / t - 1.0 / tr)), t, tr, ta)
 
 
+@guarded
 def arrhenius_viscosity(temperature_K, reference_viscosity_Pa_s, reference_temperature_K,
                         activation_temperature_K):
     r"""Viscosity at a temperature from a reference value and an Arrhenius activation.
@@ -367,6 +373,7 @@ def arrhenius_viscosity(temperature_K, reference_viscosity_Pa_s, reference_tempe
                            activation_temperature_K)
 
 
+@guarded
 def arrhenius_from_two_points(temperature_1_K, viscosity_1_Pa_s, temperature_2_K,
                               viscosity_2_Pa_s):
     r"""Activation temperature E/R of the Arrhenius law through two measured viscosities.
@@ -442,6 +449,7 @@ def _power(x, exponent):
 
 @model("liquid", VISCOSITY, validity="Newtonian liquids: viscosity independent of shear rate",
        source="Newton's law of viscosity")
+@guarded
 def newtonian(shear_rate_1_per_s, viscosity_Pa_s=1e-3):
     r"""Apparent viscosity of a Newtonian liquid: the same at every shear rate.
 
@@ -483,6 +491,7 @@ def newtonian(shear_rate_1_per_s, viscosity_Pa_s=1e-3):
 @model("liquid", CONSISTENCY, FLOW_INDEX,
        validity="over the measured range only: no plateau at low or high shear rate",
        source="Ostwald-de Waele power law")
+@guarded
 def power_law(shear_rate_1_per_s, consistency_Pa_s=1.0, flow_index=0.5):
     r"""Apparent viscosity of a power-law (Ostwald-de Waele) liquid.
 
@@ -544,6 +553,7 @@ def _check_plateaus(eta0, eta_inf):
        Param("yasuda_exponent", "-", (0.1, 5.0), "transition sharpness a (2: Carreau)"),
        validity="shear-thinning polymer solutions and melts with two plateaus",
        source="Carreau 1972; Yasuda, Armstrong & Cohen 1981")
+@guarded
 def carreau_yasuda(shear_rate_1_per_s, zero_shear_viscosity_Pa_s=1.0,
                    infinite_shear_viscosity_Pa_s=1e-3, time_constant_s=1.0, flow_index=0.5,
                    yasuda_exponent=2.0):
@@ -613,6 +623,7 @@ def carreau_yasuda(shear_rate_1_per_s, zero_shear_viscosity_Pa_s=1.0,
        Param("cross_exponent", "-", (0.1, 1.0), "exponent m of the Cross law"),
        validity="shear-thinning dispersions and polymer solutions with two plateaus",
        source="Cross, J. Colloid Sci. 1965")
+@guarded
 def cross(shear_rate_1_per_s, zero_shear_viscosity_Pa_s=1.0, infinite_shear_viscosity_Pa_s=1e-3,
           time_constant_s=1.0, cross_exponent=2.0 / 3.0):
     r"""Apparent viscosity of a Cross liquid (two plateaus joined by a power law).
@@ -673,6 +684,7 @@ def cross(shear_rate_1_per_s, zero_shear_viscosity_Pa_s=1.0, infinite_shear_visc
                               "plastic viscosity mu_p"),
        validity="yield-stress liquids with a linear flow curve above the yield stress",
        source="Bingham 1922")
+@guarded
 def bingham(shear_rate_1_per_s, yield_stress_Pa=10.0, plastic_viscosity_Pa_s=0.1):
     r"""Apparent viscosity of a Bingham plastic: a yield stress, then a constant slope.
 
@@ -723,6 +735,7 @@ def bingham(shear_rate_1_per_s, yield_stress_Pa=10.0, plastic_viscosity_Pa_s=0.1
 @model("liquid", YIELD, CONSISTENCY, FLOW_INDEX,
        validity="yield-stress liquids: gels, pastes, muds, concentrated emulsions",
        source="Herschel & Bulkley 1926")
+@guarded
 def herschel_bulkley(shear_rate_1_per_s, yield_stress_Pa=10.0, consistency_Pa_s=1.0,
                      flow_index=0.5):
     r"""Apparent viscosity of a Herschel-Bulkley liquid: yield stress plus a power law.
@@ -780,6 +793,7 @@ def herschel_bulkley(shear_rate_1_per_s, yield_stress_Pa=10.0, consistency_Pa_s=
                               "Casson viscosity mu_c"),
        validity="yield-stress dispersions: inks, chocolate, blood, pigment pastes",
        source="Casson 1959")
+@guarded
 def casson(shear_rate_1_per_s, yield_stress_Pa=10.0, casson_viscosity_Pa_s=0.1):
     r"""Apparent viscosity of a Casson liquid.
 
@@ -831,6 +845,7 @@ def casson(shear_rate_1_per_s, yield_stress_Pa=10.0, casson_viscosity_Pa_s=0.1):
 # --- Dispatchers: viscosity, stress and the inverse (stress -> shear rate) ------------------
 
 
+@guarded
 def liquid_viscosity(shear_rate_1_per_s, law: str = "newtonian", **params):
     """Apparent viscosity of a liquid law from the registry, parameters checked.
 
@@ -858,6 +873,7 @@ def liquid_viscosity(shear_rate_1_per_s, law: str = "newtonian", **params):
     return spec.func(shear_rate_1_per_s, **spec.check_params(params))
 
 
+@guarded
 def liquid_stress(shear_rate_1_per_s, law: str = "newtonian", **params):
     """Shear stress of a liquid law at a shear rate (the yield stress at zero rate).
 
@@ -944,6 +960,7 @@ def _invert_numerically(func, tau, values):
     return np.where(tau > 0, np.exp(0.5 * (lo + hi)), 0.0)
 
 
+@guarded
 def liquid_shear_rate(shear_stress_Pa, law: str = "newtonian", **params):
     """Shear rate at which a liquid law carries a given shear stress (the inverse law).
 
@@ -1023,6 +1040,7 @@ class LiquidLaw:
         return float(self.params.get("yield_stress_Pa", 0.0))
 
 
+@guarded
 def liquid_law(law: str = "newtonian", **params) -> LiquidLaw:
     """The registered liquid law `law` with its parameters checked against the registry.
 
@@ -1050,6 +1068,7 @@ def liquid_law(law: str = "newtonian", **params) -> LiquidLaw:
 # --- Rigid particles in a non-Newtonian liquid -------------------------------------------
 
 
+@guarded
 def local_shear_rate_factor(phi, relative_viscosity):
     r"""Ratio of the root-mean-square local shear rate in the liquid to the macroscopic rate.
 
@@ -1095,6 +1114,7 @@ def local_shear_rate_factor(phi, relative_viscosity):
     return scalar_or_array(np.sqrt(g / (1.0 - phi)), phi, g)
 
 
+@guarded
 def chateau_yield_stress_factor(phi, relative_viscosity):
     r"""Yield stress of a suspension of rigid particles in a yield-stress liquid, relative.
 
@@ -1137,6 +1157,7 @@ def chateau_yield_stress_factor(phi, relative_viscosity):
     return scalar_or_array(np.sqrt((1.0 - phi) * g), phi, g)
 
 
+@guarded
 def chateau_consistency_factor(phi, relative_viscosity, flow_index):
     r"""Consistency of a suspension of rigid particles in a power-law liquid, relative.
 
@@ -1181,6 +1202,7 @@ def chateau_consistency_factor(phi, relative_viscosity, flow_index):
     return scalar_or_array((1.0 - phi) ** ((1.0 - n) / 2.0) * g ** ((1.0 + n) / 2.0), phi, g, n)
 
 
+@guarded
 def suspension_in_liquid_stress(shear_rate_1_per_s, phi, relative_viscosity,
                                 law: str = "newtonian", **params):
     r"""Shear stress of rigid particles in a (non-Newtonian) liquid at a shear rate.

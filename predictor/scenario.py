@@ -106,7 +106,10 @@ def scenario_to_dict(formulation: Formulation) -> dict:
         "name": formulation.name,
         "description": formulation.description,
         "relations": {"solids": formulation.model, "droplets": formulation.droplet_model,
-                      "parameters": {k: float(v) for k, v in formulation.model_params.items()}},
+                      "parameters": {k: float(v) for k, v in formulation.model_params.items()},
+                      "thickening_onset_stress": _quantity(
+                          formulation.thickening_onset_stress_Pa, "Pa"),
+                      "phi_max_frictional": formulation.phi_max_frictional},
         "liquid": liquid,
         "ingredients": ingredients,
     }
@@ -165,14 +168,48 @@ def _from_dict(doc: dict) -> Formulation:
         ingredients.append(Ingredient(
             name=str(item.get("name", f"ingredient {k + 1}")), kind=str(item.get("kind", "solid")),
             loading=float(loading["value"]), basis=str(loading.get("basis", "mass")),
-            size=None if dist is None else sizes.SizeDistribution.from_dict(dist), **kwargs))
+            size=_read_distribution(dist, f"{where}.size_distribution"), **kwargs))
     relations = doc.get("relations", {})
     return Formulation(
         liquid=liquid, ingredients=tuple(ingredients), name=str(doc.get("name", "")),
         description=str(doc.get("description", "")),
         model=str(relations.get("solids", "krieger-dougherty")),
         droplet_model=str(relations.get("droplets", "phan-thien-pham")),
-        model_params={k: float(v) for k, v in relations.get("parameters", {}).items()})
+        model_params={k: float(v) for k, v in relations.get("parameters", {}).items()},
+        thickening_onset_stress_Pa=_read_quantity(relations.get("thickening_onset_stress"),
+                                                  "stress", "relations.thickening_onset_stress"),
+        phi_max_frictional=(None if relations.get("phi_max_frictional") is None
+                            else float(relations["phi_max_frictional"])))
+
+
+def _read_distribution(raw, field: str):
+    """A SizeDistribution from its table form, or from a generator written by hand.
+
+    Generators: {"type": "lognormal", "median": "5 um", "geometric_std": 1.8,
+    "basis": "volume"}, {"type": "rosin-rammler", "characteristic": "20 um",
+    "uniformity": 1.2}, {"type": "single", "diameter": "2 um"}. They are written back as
+    the table they generate, so a round trip of the Formulation stays exact.
+    """
+    if raw is None:
+        return None
+    if not isinstance(raw, dict):
+        raise ScenarioError(f"{field}: expected an object, got {raw!r}.")
+    kind = raw.get("type", "table")
+    dist = sizes.SizeDistribution
+    if kind == "table":
+        return dist.from_dict(raw)
+    if kind == "lognormal":
+        return dist.lognormal(_read_quantity(raw.get("median"), "length", f"{field}.median"),
+                              float(raw.get("geometric_std", 1.0)),
+                              basis=str(raw.get("basis", "volume")))
+    if kind == "rosin-rammler":
+        return dist.rosin_rammler(
+            _read_quantity(raw.get("characteristic"), "length", f"{field}.characteristic"),
+            float(raw.get("uniformity", 1.0)))
+    if kind == "single":
+        return dist.single(_read_quantity(raw.get("diameter"), "length", f"{field}.diameter"))
+    raise ScenarioError(f"{field}.type = {kind!r}: expected 'table', 'lognormal', "
+                        "'rosin-rammler' or 'single'.")
 
 
 def _si_from_unit(value, unit: str, field: str) -> float:
@@ -182,7 +219,7 @@ def _si_from_unit(value, unit: str, field: str) -> float:
     from .units import Q_
 
     try:
-        q = Q_(float(value), unit or "")
+        q = Q_(float(value), "" if unit.strip() in ("", "-") else unit)
         return float(q.to_base_units().magnitude)
     except Exception as err:  # pint raises many kinds; report them as one
         raise ScenarioError(f"{field}: unit {unit!r} is not understood ({err}).") from None

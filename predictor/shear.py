@@ -23,7 +23,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from ._checks import as_array, in_range, positive, scalar_or_array
+from ._checks import as_array, guarded, in_range, positive, scalar_or_array
 from .errors import InputRangeError, ValidityWarning
 from .liquids import liquid_law
 from .registry import get_model
@@ -59,6 +59,7 @@ ONSET_CHANGE = 0.10
 BROWNIAN_RADIUS_LIMIT_m = 3e-6
 
 
+@guarded
 def peclet_number(shear_rate_1_per_s, radius_m, viscosity_Pa_s, temperature_K):
     r"""Peclet number of Brownian spheres in shear: shear rate over diffusion rate.
 
@@ -108,6 +109,7 @@ def peclet_number(shear_rate_1_per_s, radius_m, viscosity_Pa_s, temperature_K):
     return scalar_or_array(pe, rate, a, eta, t)
 
 
+@guarded
 def reduced_stress(shear_stress_Pa, radius_m, temperature_K):
     r"""Shear stress in units of the Brownian stress scale k_B T / a**3.
 
@@ -149,6 +151,7 @@ def reduced_stress(shear_stress_Pa, radius_m, temperature_K):
     return scalar_or_array(sigma * a**3 / (BOLTZMANN_J_PER_K * t), sigma, a, t)
 
 
+@guarded
 def krieger_shear_thinning(reduced_stress, zero_shear_relative_viscosity,
                            high_shear_relative_viscosity,
                            critical_reduced_stress=CRITICAL_REDUCED_STRESS):
@@ -210,6 +213,7 @@ def krieger_shear_thinning(reduced_stress, zero_shear_relative_viscosity,
     return scalar_or_array(eta, s, eta0, eta_inf, sc)
 
 
+@guarded
 def thinning_onset_reduced_stress(zero_shear_relative_viscosity, high_shear_relative_viscosity,
                                   critical_reduced_stress=CRITICAL_REDUCED_STRESS,
                                   drop=ONSET_CHANGE):
@@ -247,8 +251,9 @@ def thinning_onset_reduced_stress(zero_shear_relative_viscosity, high_shear_rela
     >>> thinning_onset_reduced_stress(20.0, 4.0, 0.1, 0.1)
     0.0142857
     """
-    eta0 = as_array(zero_shear_relative_viscosity, "zero_shear_relative_viscosity")
-    eta_inf = as_array(high_shear_relative_viscosity, "high_shear_relative_viscosity")
+    eta0 = in_range(zero_shear_relative_viscosity, "zero_shear_relative_viscosity", 1.0, np.inf)
+    eta_inf = in_range(high_shear_relative_viscosity, "high_shear_relative_viscosity", 1.0,
+                       np.inf)
     sc = positive(critical_reduced_stress, "critical_reduced_stress")
     d = in_range(drop, "drop", 0.0, 1.0, low_open=True, high_open=True)
     target = (1.0 - d) * eta0
@@ -258,6 +263,7 @@ def thinning_onset_reduced_stress(zero_shear_relative_viscosity, high_shear_rela
     return scalar_or_array(s, eta0, eta_inf, sc, d)
 
 
+@guarded
 def wyart_cates_jamming_fraction(shear_stress_Pa, onset_stress_Pa, phi_frictionless=0.64,
                                  phi_frictional=0.58):
     r"""Stress-dependent jamming volume fraction of Wyart & Cates.
@@ -312,6 +318,7 @@ def wyart_cates_jamming_fraction(shear_stress_Pa, onset_stress_Pa, phi_frictionl
     return scalar_or_array(f * pm + (1.0 - f) * p0, sigma, star, p0, pm)
 
 
+@guarded
 def wyart_cates(phi, shear_stress_Pa, onset_stress_Pa, phi_frictionless=0.64,
                 phi_frictional=0.58):
     r"""Relative viscosity of a dense non-Brownian suspension with frictional thickening.
@@ -510,6 +517,7 @@ def _refine(model, rates, lo, hi):
     return np.where(np.abs(f_lo) < np.abs(f_hi), lo, hi)
 
 
+@guarded
 def flow_curve(shear_rate_1_per_s, phi, *, liquid_law_name="newtonian", liquid_params=None,
                medium_factor=1.0, relation="krieger-dougherty", relation_params=None,
                phi_max_zero_shear=None, phi_max_high_shear=0.64, phi_max_frictional=None,
@@ -621,6 +629,15 @@ def flow_curve(shear_rate_1_per_s, phi, *, liquid_law_name="newtonian", liquid_p
     rates = np.atleast_1d(as_array(shear_rate_1_per_s, "shear_rate_1_per_s")).astype(float)
     if np.any(rates <= 0):
         raise InputRangeError("shear_rate_1_per_s", rates[rates <= 0][0], "a rate > 0")
+    scalars = {"phi": phi, "medium_factor": medium_factor,
+               "phi_max_zero_shear": phi_max_zero_shear, "phi_max_high_shear": phi_max_high_shear,
+               "phi_max_frictional": phi_max_frictional, "onset_stress_Pa": onset_stress_Pa,
+               "radius_m": radius_m, "temperature_K": temperature_K,
+               "critical_reduced_stress": critical_reduced_stress,
+               "points_per_decade": points_per_decade}
+    for name, value in scalars.items():
+        if value is not None and np.ndim(value) != 0:
+            raise InputRangeError(name, f"an array of shape {np.shape(value)}", "a single number")
     phi = float(in_range(phi, "phi", 0.0, 1.0, high_open=True))
     phi_hs = float(in_range(phi_max_high_shear, "phi_max_high_shear", 0.0, 1.0, low_open=True))
     if phi_max_zero_shear is not None:
@@ -811,6 +828,17 @@ def _onset_markers(model, markers, grid, sig_jam):
         s = _first_crossing(model, aux, g_aux, (1 - ONSET_CHANGE) * float(model.g0), False)
         if np.isfinite(s):
             markers["thinning_onset_1_per_s"] = rate_at(s)
+    eta_rest = float(np.asarray(model.law.viscosity(0.0)))
+    if not np.isfinite(markers["thinning_onset_1_per_s"]) and np.isfinite(eta_rest):
+        # No Brownian thinning: the onset of thinning of the whole suspension (a thinning
+        # liquid), by the same 10 % definition against its zero-shear viscosity.
+        g_rest = float(model.g0) if model.brownian else float(model.g_hs)
+        rates_aux = model.rate(aux, g_aux)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            eta_aux = aux / rates_aux
+        below = np.nonzero(eta_aux < (1 - ONSET_CHANGE) * g_rest * model.medium * eta_rest)[0]
+        if below.size and below[0] > 0:
+            markers["thinning_onset_1_per_s"] = float(rates_aux[below[0]])
     if model.thickening:
         i_min = int(np.argmin(g_aux))
         s = _first_crossing(model, aux[i_min:], g_aux[i_min:],

@@ -12,7 +12,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from ._checks import as_array, fraction, in_range, positive, scalar_or_array
+from ._checks import as_array, fraction, guarded, in_range, positive, scalar_or_array
+from .errors import InputRangeError
 
 STANDARD_GRAVITY = 9.80665            # m/s2, CGPM 1901 conventional value
 BOLTZMANN = 1.380649e-23              # J/K, exact in the SI since 2019
@@ -20,6 +21,7 @@ RICHARDSON_ZAKI_STOKES = 4.65         # Stokes-regime exponent, Richardson & Zak
 BERIS_CRITICAL = 0.143                # Beris et al. (1985), abstract: sphere falls only below
 
 
+@guarded
 def stokes_velocity(diameter_m, particle_density_kg_per_m3, liquid_density_kg_per_m3,
                     viscosity_Pa_s, gravity_m_per_s2=STANDARD_GRAVITY):
     r"""Terminal velocity of a single sphere in creeping flow (Stokes' law).
@@ -72,6 +74,7 @@ def stokes_velocity(diameter_m, particle_density_kg_per_m3, liquid_density_kg_pe
     return scalar_or_array(v, d, rho_p, rho_f, eta, g)
 
 
+@guarded
 def particle_reynolds(diameter_m, velocity_m_per_s, liquid_density_kg_per_m3,
                       viscosity_Pa_s):
     """Particle Reynolds number rho_f |v| d / eta, to check that Stokes' law applies. [-]
@@ -88,6 +91,7 @@ def particle_reynolds(diameter_m, velocity_m_per_s, liquid_density_kg_per_m3,
     return scalar_or_array(rho_f * np.abs(v) * d / eta, d, v, rho_f, eta)
 
 
+@guarded
 def richardson_zaki(phi, exponent=RICHARDSON_ZAKI_STOKES):
     r"""Hindrance factor of settling in a suspension, v / v0 = (1 - phi)^n.
 
@@ -130,6 +134,7 @@ def richardson_zaki(phi, exponent=RICHARDSON_ZAKI_STOKES):
     return scalar_or_array((1.0 - phi) ** n, phi, n)
 
 
+@guarded
 def richardson_zaki_exponent(reynolds):
     r"""Richardson-Zaki exponent n from the particle Reynolds number (no wall effect).
 
@@ -164,6 +169,7 @@ def richardson_zaki_exponent(reynolds):
     return scalar_or_array(n, re)
 
 
+@guarded
 def hindered_settling_velocity(diameter_m, phi, particle_density_kg_per_m3,
                                liquid_density_kg_per_m3, viscosity_Pa_s,
                                exponent=RICHARDSON_ZAKI_STOKES,
@@ -218,6 +224,7 @@ def hindered_settling_velocity(diameter_m, phi, particle_density_kg_per_m3,
                            gravity_m_per_s2)
 
 
+@guarded
 def clear_layer_time(height_m, velocity_m_per_s):
     r"""Time for a clear (or serum) layer of a given height to form.
 
@@ -256,6 +263,7 @@ def clear_layer_time(height_m, velocity_m_per_s):
     return scalar_or_array(t, h, v)
 
 
+@guarded
 def gravitational_peclet(diameter_m, particle_density_kg_per_m3, liquid_density_kg_per_m3,
                          temperature_K=298.15, gravity_m_per_s2=STANDARD_GRAVITY):
     r"""Gravitational Peclet number: settling over Brownian motion across one radius.
@@ -309,6 +317,7 @@ def gravitational_peclet(diameter_m, particle_density_kg_per_m3, liquid_density_
     return scalar_or_array(pe, d, drho, temp, g)
 
 
+@guarded
 def gravitational_length(diameter_m, particle_density_kg_per_m3, liquid_density_kg_per_m3,
                          temperature_K=298.15, gravity_m_per_s2=STANDARD_GRAVITY):
     r"""Scale height k_B T / (Delta m g) of the sedimentation-equilibrium profile. [m]
@@ -333,6 +342,7 @@ def gravitational_length(diameter_m, particle_density_kg_per_m3, liquid_density_
                            liquid_density_kg_per_m3, temperature_K, gravity_m_per_s2)
 
 
+@guarded
 def beris_yield_parameter(yield_stress_Pa, diameter_m, particle_density_kg_per_m3,
                           liquid_density_kg_per_m3, gravity_m_per_s2=STANDARD_GRAVITY):
     r"""Yield-stress parameter Y of a sphere in a Bingham liquid (held when Y > 0.143).
@@ -412,6 +422,7 @@ class StorageVerdict:
     richardson_zaki_exponent: float
 
 
+@guarded
 def storage_verdict(diameter_m, particle_density_kg_per_m3, liquid_density_kg_per_m3,
                     viscosity_Pa_s, phi=0.0, yield_stress_Pa=0.0, *,
                     clear_layer_m=1e-3, storage_time_s=180 * 86400.0,
@@ -473,8 +484,8 @@ def storage_verdict(diameter_m, particle_density_kg_per_m3, liquid_density_kg_pe
             "container_height_m": container_height_m}
     for name, value in args.items():
         if np.ndim(value) != 0:
-            raise ValueError(f"storage_verdict takes scalars; {name} has shape "
-                             f"{np.shape(value)}")
+            raise InputRangeError(name, f"an array of shape {np.shape(value)}",
+                                  "a single number (storage_verdict takes scalars)")
     storage = float(positive(storage_time_s, "storage_time_s"))
     layer = float(positive(clear_layer_m, "clear_layer_m"))
     height = float(positive(container_height_m, "container_height_m"))

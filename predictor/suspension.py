@@ -13,7 +13,7 @@ from __future__ import annotations
 
 import numpy as np
 
-from ._checks import as_array, fraction, in_range, positive, scalar_or_array
+from ._checks import as_array, fraction, guarded, in_range, positive, scalar_or_array
 from .registry import Param, model
 
 PHI_MAX = Param("phi_max", "-", (0.2, 1.0), "maximum packing fraction")
@@ -30,6 +30,7 @@ def _reduced(phi, phi_max):
 @model("suspension", INTRINSIC,
        validity="dilute, non-interacting spheres, phi below about 0.03",
        source="Einstein, Ann. Phys. 1906/1911", phi_range=(0.0, 0.03))
+@guarded
 def einstein(phi, intrinsic_viscosity=2.5):
     r"""Relative viscosity of a dilute suspension of rigid spheres.
 
@@ -83,6 +84,7 @@ BATCHELOR_COEFFICIENTS = {"brownian": 6.2, "pure-straining": 7.6, "simple-shear"
        Param("huggins_coefficient", "-", (5.0, 7.6), "coefficient k_H of the phi**2 term"),
        validity="semi-dilute spheres, phi below about 0.1",
        source="Batchelor & Green 1972; Batchelor 1977", phi_range=(0.0, 0.1))
+@guarded
 def batchelor(phi, huggins_coefficient=6.2):
     r"""Relative viscosity of a semi-dilute suspension of spheres, to second order in phi.
 
@@ -133,6 +135,7 @@ def batchelor(phi, huggins_coefficient=6.2):
 @model("suspension", PHI_MAX, INTRINSIC,
        validity="0 <= phi < phi_max; hard spheres or particles of known [eta]",
        source="Krieger & Dougherty, Trans. Soc. Rheol. 1959")
+@guarded
 def krieger_dougherty(phi, phi_max=0.64, intrinsic_viscosity=2.5):
     r"""Relative viscosity of a concentrated suspension, diverging at phi_max.
 
@@ -185,6 +188,7 @@ def krieger_dougherty(phi, phi_max=0.64, intrinsic_viscosity=2.5):
 @model("suspension", PHI_MAX,
        validity="0 <= phi < phi_max; concentrated suspensions and dispersions",
        source="Quemada, Rheol. Acta 1977")
+@guarded
 def quemada(phi, phi_max=0.64):
     r"""Relative viscosity from Quemada's minimum-energy-dissipation argument.
 
@@ -230,6 +234,7 @@ def quemada(phi, phi_max=0.64):
 @model("suspension", PHI_MAX,
        validity="0 <= phi < phi_max; fitted to latex suspensions",
        source="Maron & Pierce, J. Colloid Sci. 1956")
+@guarded
 def maron_pierce(phi, phi_max=0.64):
     r"""Relative viscosity of the Maron-Pierce form, diverging at phi_max.
 
@@ -273,6 +278,7 @@ def maron_pierce(phi, phi_max=0.64):
 @model("suspension", PHI_MAX,
        validity="0 <= phi < phi_max; bitumen emulsions and filled suspensions",
        source="Eilers, Kolloid-Z. 1941")
+@guarded
 def eilers(phi, phi_max=0.64):
     r"""Relative viscosity from Eilers' empirical relation, diverging at phi_max.
 
@@ -322,6 +328,7 @@ def eilers(phi, phi_max=0.64):
        INTRINSIC,
        validity="0 <= phi < 1/k; monodisperse spheres for k about 1.35-1.91",
        source="Mooney, J. Colloid Sci. 1951")
+@guarded
 def mooney(phi, crowding_factor=1.43, intrinsic_viscosity=2.5):
     r"""Relative viscosity from Mooney's self-crowding argument.
 
@@ -371,6 +378,7 @@ def mooney(phi, crowding_factor=1.43, intrinsic_viscosity=2.5):
 @model("suspension", PHI_MAX,
        validity="0 <= phi < phi_max; glass beads in polymer melts and liquids",
        source="Chong, Christiansen & Baer, J. Appl. Polym. Sci. 1971")
+@guarded
 def chong(phi, phi_max=0.64):
     r"""Relative viscosity from the relation of Chong, Christiansen & Baer.
 
@@ -417,6 +425,7 @@ def chong(phi, phi_max=0.64):
 @model("suspension",
        validity="spheres, phi up to about 0.6 (range of the data correlated)",
        source="Thomas, J. Colloid Sci. 1965", phi_range=(0.0, 0.6))
+@guarded
 def thomas(phi):
     r"""Relative viscosity from Thomas' correlation of many published data sets.
 
@@ -461,6 +470,7 @@ def thomas(phi):
        validity="concentrated only, phi/phi_max above about 0.8 (asymptotic near phi_max)",
        source="Frankel & Acrivos, Chem. Eng. Sci. 1967",
        phi_range=(0.8, 1.0), phi_range_relative=True)
+@guarded
 def frankel_acrivos(phi, phi_max=0.64):
     r"""Relative viscosity of a suspension close to its maximum packing (lubrication limit).
 
@@ -506,6 +516,7 @@ def frankel_acrivos(phi, phi_max=0.64):
     return scalar_or_array(eta, phi, phi_max)
 
 
+@guarded
 def effective_volume_fraction(phi, layer_thickness_m, radius_m):
     r"""Volume fraction swollen by an adsorbed or steric layer around each particle.
 

@@ -4,10 +4,12 @@ from __future__ import annotations
 
 import warnings
 
+from ._checks import guarded
 from .errors import ValidityWarning
 from .registry import get_model
 
 
+@guarded
 def relative_viscosity(phi, model: str = "krieger-dougherty", **params):
     """Relative viscosity of a suspension or emulsion from any registered relation.
 

@@ -111,4 +111,4 @@ def test_demo_scenarios_predict_finite_viscosity(name):
     f = read_scenario(DEMO / f"{name}.loadline.json")
     frame = fm.predict(f, [1.0, 100.0])
     assert np.all(np.isfinite(frame["viscosity_Pa_s"]))
-    assert np.all(frame["viscosity_Pa_s"] > fm.mixture(f).liquid_viscosity_Pa_s)
+    assert np.all(frame["viscosity_Pa_s"] > frame["liquid_viscosity_Pa_s"])

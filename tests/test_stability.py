@@ -108,7 +108,7 @@ def test_bad_inputs_raise_with_the_field_named():
         stability.richardson_zaki(1.2)
     with pytest.raises(InputRangeError, match="yield_stress_Pa"):
         stability.beris_yield_parameter(-1.0, 1e-6, 2650.0, 1000.0)
-    with pytest.raises(ValueError, match="scalars"):
+    with pytest.raises(InputRangeError, match="scalars"):
         stability.storage_verdict(np.array([1e-6, 2e-6]), 2650.0, 1000.0, 1e-3)
 
 
