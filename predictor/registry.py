@@ -129,3 +129,19 @@ def get_model(name: str, kind: str | tuple[str, ...] | None = None) -> ModelSpec
     if spec is None or spec.name not in valid:
         raise UnknownModelError("model", name, valid)
     return spec
+
+
+def models_markdown(kind: str | None = None) -> str:
+    """The registry as a Markdown table (the README's table is generated from this)."""
+    lines = ["| relation | kind | parameters (default) | valid for | source |",
+             "| --- | --- | --- | --- | --- |"]
+    for spec in models(kind):
+        defaults = spec.defaults()
+        params = ", ".join(f"`{p.name}` ({_short(defaults.get(p.name))})" for p in spec.params)
+        lines.append(f"| `{spec.name}` | {spec.kind} | {params or '-'} | {spec.validity} | "
+                     f"{spec.source} |")
+    return "\n".join(lines) + "\n"
+
+
+def _short(value) -> str:
+    return f"{value:g}" if isinstance(value, int | float) and not isinstance(value, bool) else "-"

@@ -1,0 +1,574 @@
+"""Altair chart builders: DataFrames in, a Vega-Lite spec (dict) out; no physics, no
+Streamlit.
+
+Colours are the Okabe-Ito palette (distinguishable with the common colour-vision
+deficiencies). Every axis carries a quantity and a unit. `big=True` is the presentation
+layout: larger type and taller charts for a projector.
+"""
+
+from __future__ import annotations
+
+import json
+import math
+
+import altair as alt
+import numpy as np
+import pandas as pd
+from altair.utils import schemapi
+
+OKABE_ITO = ["#0072B2", "#D55E00", "#009E73", "#CC79A7", "#E69F00", "#56B4E9", "#000000",
+             "#F0E442"]
+BLUE, VERMILLION, GREEN, PURPLE, ORANGE, SKY, BLACK, YELLOW = OKABE_ITO
+GREY = "#7F7F7F"
+
+
+def _height(big: bool, normal: int = 380) -> int:
+    return int(normal * 1.45) if big else normal
+
+
+def config(big: bool = False) -> dict:
+    """Common type sizes and a plain frame; larger in the presentation layout."""
+    k = 1.45 if big else 1.0
+    return {
+        "axis": {"labelFontSize": 12 * k, "titleFontSize": 13 * k, "grid": True,
+                 "gridColor": "#E6E6E6", "titleFontWeight": "normal"},
+        "legend": {"labelFontSize": 12 * k, "titleFontSize": 12 * k, "orient": "bottom",
+                   "direction": "horizontal", "columns": 4, "symbolStrokeWidth": 3},
+        "title": {"fontSize": 15 * k, "anchor": "start", "fontWeight": "normal"},
+        "view": {"strokeWidth": 0},
+        "text": {"fontSize": 12 * k},
+    }
+
+
+# Altair checks every object against the Vega-Lite schema as it is built; that costs more
+# than the rest of a page run. The finished specs are checked once, in the tests
+# (tests/app/test_charts.py validates every builder's output), so the eager check is off.
+schemapi.disable_debug_mode()
+
+
+class Figure:
+    """Altair charts on named datasets, turned into one Vega-Lite spec (a plain dict).
+
+    Keeping the frames out of the Altair objects until the end avoids copying them at every
+    `.properties()`/`.encode()` step, and `to_dict(validate=False)` skips a second schema
+    check; together this keeps an interaction well inside its time budget.
+    """
+
+    def __init__(self):
+        self.frames: dict[str, pd.DataFrame] = {}
+
+    def chart(self, frame: pd.DataFrame) -> alt.Chart:
+        name = f"frame_{len(self.frames)}"
+        self.frames[name] = frame
+        return alt.Chart(alt.NamedData(name))
+
+    def spec(self, chart, big: bool = False) -> dict:
+        spec = chart.to_dict(validate=False)
+        spec["config"] = config(big)
+        spec["datasets"] = dict(self.frames)
+        return spec
+
+
+def _palette(names: list[str]) -> alt.Scale:
+    return alt.Scale(domain=names, range=[OKABE_ITO[i % len(OKABE_ITO)]
+                                          for i in range(len(names))])
+
+
+def decades(low: float, high: float) -> list[float]:
+    """Powers of ten covering [low, high] (tick values of a log axis)."""
+    lo, hi = decade_domain(low, high)
+    return [10.0 ** k for k in range(round(math.log10(lo)), round(math.log10(hi)) + 1)]
+
+
+def decade_domain(low: float, high: float) -> list[float]:
+    low = max(low, 1e-300)
+    high = max(high, low * 10)
+    return [10.0 ** math.floor(math.log10(low)), 10.0 ** math.ceil(math.log10(high))]
+
+
+def _top_axis_expr(ticks: list[tuple[float, float]]) -> str:
+    """A Vega expression writing the wt% label at each phi tick."""
+    expr = "''"
+    for phi, wt in reversed(ticks):
+        expr = f"abs(datum.value - {phi!r}) < 1e-9 ? '{wt:.0f}' : {expr}"
+    return expr
+
+
+def loading_sweep(curves: pd.DataFrame, *, y_title: str, series: str = "relation",
+                  series_title: str = "Relation", phi_max: float | None = None,
+                  phi_max_range: tuple[float, float] | None = None,
+                  current: dict | None = None, limit: dict | None = None,
+                  band: pd.DataFrame | None = None, wt_ticks=None, big: bool = False,
+                  x_title: str = "Effective solids volume fraction φ [–]") -> dict:
+    """Viscosity against volume fraction on a log axis.
+
+    `curves`: columns phi, viscosity, <series>. `band`: phi, low, high (shaded). `current`:
+    {"phi", "viscosity", "label"}. `limit`: {"viscosity", "phi", "label"}. `wt_ticks`:
+    [(phi, wt%)], drawn as a second x axis on top.
+    """
+    fig = Figure()
+    data = curves[(curves["viscosity"] > 0) & curves["viscosity"].notna()
+                  & (curves["viscosity"] < float("inf"))]
+    names = list(dict.fromkeys(data[series]))
+    x_max = max(float(data["phi"].max()) if len(data) else 0.0,
+                phi_max_range[1] if phi_max_range else 0.0, phi_max or 0.0) * 1.04
+    x_scale = alt.Scale(domain=[0, round(min(max(x_max, 0.05), 1.0), 3)], nice=False,
+                        zero=True)
+    y_low = float(data["viscosity"].min()) if len(data) else 1.0
+    focus = max([y_low] + [float(d["viscosity"]) for d in (current, limit)
+                           if d and d.get("viscosity")])
+    y_high = min(float(data["viscosity"].max()) if len(data) else 10.0, 300.0 * focus)
+    y_domain = decade_domain(y_low, y_high)
+    y_scale = alt.Scale(type="log", domain=y_domain, nice=False)
+    y_axis = alt.Axis(values=decades(y_low, y_high), format=",~g")
+    layers = []
+    if phi_max_range is not None and phi_max_range[1] > phi_max_range[0]:
+        layers.append(fig.chart(pd.DataFrame([{
+            "low": phi_max_range[0], "high": phi_max_range[1],
+            "what": "packing-limit range of the estimators"}])).mark_rect(
+            color=ORANGE, opacity=0.18, clip=True).encode(
+            x=alt.X("low:Q", scale=x_scale, axis=None), x2="high:Q",
+            tooltip=[alt.Tooltip("what:N", title=" "), alt.Tooltip("low:Q", format=".3f",
+                     title="lowest φmax"), alt.Tooltip("high:Q", format=".3f",
+                                                       title="highest φmax")]))
+    if band is not None and len(band):
+        band = band.assign(high=band["high"].clip(upper=y_domain[1]),
+                           low=band["low"].clip(lower=y_domain[0], upper=y_domain[1]))
+        layers.append(fig.chart(band).mark_area(color=BLUE, opacity=0.18, clip=True).encode(
+            x=alt.X("phi:Q", scale=x_scale, axis=None),
+            y=alt.Y("low:Q", scale=y_scale, title=y_title), y2="high:Q"))
+    dash = alt.StrokeDash(f"{series}:N", legend=None, scale=alt.Scale(
+        domain=names or [""], range=[[1, 0]] + [[6, 3]] * max(len(names) - 1, 0)))
+    layers.append(fig.chart(data).mark_line(strokeWidth=3 if big else 2.4, clip=True).encode(
+        x=alt.X("phi:Q", scale=x_scale, title=x_title, axis=alt.Axis(format=".2f")),
+        y=alt.Y("viscosity:Q", scale=y_scale, title=y_title, axis=y_axis),
+        color=alt.Color(f"{series}:N", scale=_palette(names), title=series_title,
+                        sort=names),
+        strokeDash=dash,
+        tooltip=[alt.Tooltip(f"{series}:N", title=series_title),
+                 alt.Tooltip("phi:Q", format=".3f", title="φ"),
+                 alt.Tooltip("viscosity:Q", format=".4g", title=y_title)]))
+    if phi_max is not None:
+        rule = pd.DataFrame([{"phi": phi_max, "text": f"packing limit φmax {phi_max:.3f}"}])
+        base = fig.chart(rule)
+        layers.append(base.mark_rule(color=VERMILLION, strokeDash=[8, 4], strokeWidth=2)
+                      .encode(x=alt.X("phi:Q", scale=x_scale, axis=None)))
+        layers.append(base.mark_text(color=VERMILLION, align="right", dx=-6, y=12,
+                                     fontWeight="bold")
+                      .encode(x=alt.X("phi:Q", scale=x_scale, axis=None), text="text:N"))
+    if limit is not None and limit.get("viscosity"):
+        lim = pd.DataFrame([limit])
+        layers.append(fig.chart(lim).mark_rule(color=GREY, strokeDash=[2, 3]).encode(
+            y=alt.Y("viscosity:Q", scale=y_scale, title=y_title)))
+        layers.append(fig.chart(lim).mark_text(color=GREY, align="left", dx=4, dy=-7,
+                                               x=4).encode(
+            y=alt.Y("viscosity:Q", scale=y_scale, title=y_title), text="label:N"))
+    if current is not None and current.get("viscosity"):
+        cur = pd.DataFrame([current])
+        layers.append(fig.chart(cur).mark_point(shape="diamond", size=260 if big else 170,
+                                                filled=True, color=BLACK).encode(
+            x=alt.X("phi:Q", scale=x_scale, axis=None),
+            y=alt.Y("viscosity:Q", scale=y_scale, title=y_title),
+            tooltip=[alt.Tooltip("label:N", title="current loading")]))
+        layers.append(fig.chart(cur).mark_text(align="right", dx=-12, dy=-10,
+                                               fontWeight="bold", color=BLACK).encode(
+            x=alt.X("phi:Q", scale=x_scale, axis=None),
+            y=alt.Y("viscosity:Q", scale=y_scale, title=y_title), text="label:N"))
+    if wt_ticks:
+        top = pd.DataFrame({"phi": [p for p, _ in wt_ticks]})
+        layers.append(fig.chart(top).mark_tick(opacity=0).encode(
+            x=alt.X("phi:Q", scale=x_scale, title="Solids in the formulation [wt%]",
+                    axis=alt.Axis(orient="top", values=[p for p, _ in wt_ticks],
+                                  labelExpr=_top_axis_expr(wt_ticks), grid=False))))
+    chart = alt.layer(*layers).resolve_axis(x="independent").properties(
+        height=_height(big), width="container")
+    return fig.spec(chart, big)
+
+
+def lines(data: pd.DataFrame, *, x: str, y: str, series: str, x_title: str, y_title: str,
+          series_title: str, x_log: bool = False, y_log: bool = False,
+          big: bool = False, points: bool = False) -> dict:
+    """A plain multi-series line chart (scenario comparisons, fit curves...)."""
+    fig = Figure()
+    names = list(dict.fromkeys(data[series]))
+    chart = fig.chart(data).mark_line(point=points, strokeWidth=2.4).encode(
+        x=alt.X(f"{x}:Q", title=x_title, scale=alt.Scale(type="log" if x_log else "linear")),
+        y=alt.Y(f"{y}:Q", title=y_title, scale=alt.Scale(type="log" if y_log else "linear")),
+        color=alt.Color(f"{series}:N", title=series_title, scale=_palette(names), sort=names),
+        tooltip=[alt.Tooltip(f"{series}:N", title=series_title),
+                 alt.Tooltip(f"{x}:Q", format=".4g", title=x_title),
+                 alt.Tooltip(f"{y}:Q", format=".4g", title=y_title)],
+    ).properties(height=_height(big), width="container")
+    return fig.spec(chart, big)
+
+
+def to_png(spec: dict) -> bytes:
+    """The chart as PNG bytes, rendered offline by vl-convert."""
+    import vl_convert as vlc
+
+    return vlc.vegalite_to_png(export_json(spec), scale=2)
+
+
+def to_svg(spec: dict) -> str:
+    import vl_convert as vlc
+
+    return vlc.vegalite_to_svg(export_json(spec))
+
+
+def export_json(spec: dict) -> str:
+    """The spec as standalone Vega-Lite JSON: data inlined, fixed width instead of the
+    page's container width."""
+    out = {k: v for k, v in spec.items() if k != "datasets"}
+    out["datasets"] = {name: _records(frame) for name, frame in spec.get("datasets", {}).items()}
+
+    def fix(node):
+        if isinstance(node, dict):
+            if node.get("width") == "container":
+                node["width"] = 820
+            for value in node.values():
+                fix(value)
+        elif isinstance(node, list):
+            for item in node:
+                fix(item)
+    fix(out)
+    return json.dumps(out)
+
+
+def _records(frame) -> list[dict]:
+    if not isinstance(frame, pd.DataFrame):
+        return frame
+    clean = frame.replace([np.inf, -np.inf], np.nan)
+    clean = clean.astype(object).where(clean.notna(), None)
+    return clean.to_dict("records")
+
+
+AXIS_EXTENT = 64   # px kept for every y axis so stacked panels line up
+
+
+def flow_curve(curve: pd.DataFrame, *, windows: pd.DataFrame, x_title: str, y_title: str,
+               stress_title: str | None, selected: str | None = None,
+               markers: pd.DataFrame | None = None, point: dict | None = None,
+               big: bool = False, width: int | str = "container", joined: bool = False):
+    """Panels stacked on one shear-rate axis: process windows, viscosity, stress (log-log).
+
+    `curve`: rate, viscosity, stress[, regime]. `windows`: name, low, high (same x unit).
+    `markers`: rate, label (vertical rules, e.g. onsets). `point`: rate, viscosity, stress.
+    Returns the styled panels (drawn one under the other), or with `joined` one chart of
+    fixed width (for PNG/SVG export).
+    """
+    fig = Figure()
+    if joined:
+        width = 820
+    lo = float(curve["rate"].min())
+    hi = float(curve["rate"].max())
+    x_scale = alt.Scale(type="log", domain=[lo, hi], nice=False)
+    x_axis = alt.Axis(values=decades(lo, hi), format="~g")
+    shown = windows[(windows["high"] > lo) & (windows["low"] < hi)].copy()
+    shown["low_c"] = shown["low"].clip(lower=lo)
+    shown["high_c"] = shown["high"].clip(upper=hi)
+    shown["chosen"] = shown["name"] == selected
+    row = 34 if big else 27
+    strip_y = alt.Y("name:N", sort=list(shown["name"]), title=None,
+                    axis=alt.Axis(labels=False, ticks=False, domain=False, minExtent=AXIS_EXTENT,
+                                  maxExtent=AXIS_EXTENT),
+                    scale=alt.Scale(paddingInner=0.1))
+    colour = alt.Color("chosen:N", legend=None,
+                       scale=alt.Scale(domain=[True, False], range=[VERMILLION, SKY]))
+    strip = alt.layer(
+        fig.chart(shown).mark_bar(height=7 if not big else 9, yOffset=5, cornerRadius=2).encode(
+            x=alt.X("low_c:Q", scale=x_scale, axis=None), x2="high_c:Q", y=strip_y,
+            color=colour, tooltip=[alt.Tooltip("name:N", title="process"),
+                                   alt.Tooltip("low:Q", format="~g", title="from"),
+                                   alt.Tooltip("high:Q", format="~g", title="to")]),
+        fig.chart(shown).mark_text(align="left", baseline="bottom", dx=2, dy=1).encode(
+            x=alt.X("low_c:Q", scale=x_scale, axis=None), y=strip_y, text="name:N",
+            color=alt.Color("chosen:N", legend=None, scale=alt.Scale(
+                domain=[True, False], range=[VERMILLION, "#333333"]))),
+    ).properties(height=row * max(len(shown), 1), width=width,
+                 title=f"Typical process shear rates [{x_title.split('[')[-1].rstrip(']')}]")
+
+    def panel(field: str, title: str, with_regime: bool) -> dict:
+        data = curve[(curve[field] > 0) & (curve[field] < float("inf"))]
+        vlo = float(data[field].min()) if len(data) else 1e-3
+        vhi = float(data[field].max()) if len(data) else 1.0
+        y_scale = alt.Scale(type="log", domain=decade_domain(vlo, vhi), nice=False)
+        y_enc = alt.Y(f"{field}:Q", scale=y_scale, title=title,
+                      axis=alt.Axis(values=decades(vlo, vhi), format=",~g",
+                                    minExtent=AXIS_EXTENT, maxExtent=AXIS_EXTENT))
+        x_enc = alt.X("rate:Q", scale=x_scale, title=x_title, axis=x_axis)
+        layers = []
+        if selected is not None and bool(shown["chosen"].any()):
+            layers.append(fig.chart(shown[shown["chosen"]]).mark_rect(
+                color=VERMILLION, opacity=0.10).encode(
+                x=alt.X("low_c:Q", scale=x_scale, title=x_title, axis=x_axis), x2="high_c:Q"))
+        base = fig.chart(data).encode(x=x_enc)
+        layers.append(base.mark_line(color=BLUE, strokeWidth=3 if big else 2.4).encode(
+            y=y_enc, tooltip=[alt.Tooltip("rate:Q", format=".3g", title=x_title),
+                              alt.Tooltip(f"{field}:Q", format=".4g", title=title)]))
+        if with_regime and "regime" in data:
+            regimes = list(dict.fromkeys(data["regime"]))
+            bands = data.assign(rate_next=data["rate"].shift(-1).fillna(data["rate"].iloc[-1]))
+            layers.append(fig.chart(bands).mark_rect(y=alt.expr("height - 9"),
+                                                     y2=alt.expr("height"), strokeWidth=0.6)
+                          .encode(x=x_enc, x2="rate_next:Q",
+                                  color=alt.Color("regime:N", title="Regime", scale=alt.Scale(
+                              domain=regimes, range=[REGIME_COLOURS.get(r, GREY)
+                                                     for r in regimes])),
+                                  stroke=alt.Stroke("regime:N", legend=None, scale=alt.Scale(
+                                      domain=regimes, range=[REGIME_COLOURS.get(r, GREY)
+                                                             for r in regimes])),
+                                  tooltip=[alt.Tooltip("regime:N", title="regime")]))
+        if markers is not None and len(markers):
+            layers.append(fig.chart(markers).mark_rule(color=BLACK, strokeDash=[6, 3]).encode(
+                x=x_enc))
+            layers.append(fig.chart(markers).mark_text(
+                align="left", dx=4, y=10, color=BLACK, fontWeight="bold").encode(
+                x=x_enc, text="label:N"))
+        if point is not None and point.get(field, 0) > 0:
+            layers.append(fig.chart(pd.DataFrame([point])).mark_point(
+                shape="diamond", filled=True, color=BLACK, size=260 if big else 170).encode(
+                x=x_enc, y=y_enc))
+        return alt.layer(*layers).properties(height=_height(big, 280), width=width)
+
+    panels = [strip, panel("viscosity", y_title, True)]
+    if stress_title:
+        panels.append(panel("stress", stress_title, False))
+    if joined:
+        joined_chart = alt.vconcat(*panels, spacing=12).resolve_scale(color="independent")
+        return fig.spec(joined_chart, big)
+    return [fig.spec(p, big) for p in panels]
+
+
+REGIME_COLOURS = {"plateau": GREEN, "thinning": SKY, "thickening": ORANGE, "yield": PURPLE,
+                  "discontinuous-thickening": VERMILLION, "jammed": BLACK}
+
+
+def png_of(build) -> bytes:
+    """PNG of the chart that `build()` returns (built only when the download is asked)."""
+    return to_png(build())
+
+
+def svg_of(build) -> str:
+    return to_svg(build())
+
+
+REGIME_SHADES = {"dilute": "#F2F2F2", "concentrated": "#FFFFFF", "jammed": "#E8E1EE"}
+
+
+def phase_ratio(frame: pd.DataFrame, *, y_title: str, yield_title: str,
+                regimes: pd.DataFrame, caution: tuple[float, float] | None = None,
+                current: dict | None = None, target: dict | None = None,
+                x_title: str = "Droplet-liquid fraction φ [–]", big: bool = False,
+                joined: bool = False):
+    """Viscosity (and yield stress) against the droplet-liquid fraction, both branches.
+
+    `frame`: phi, branch, viscosity, yield_stress. `regimes`: regime, low, high (direct
+    branch, shaded). `caution`: (low, high) phase-inversion band. `current`/`target`:
+    {"phi", "viscosity", "label"}.
+    """
+    fig = Figure()
+    width = 820 if joined else "container"
+    names = list(dict.fromkeys(frame["branch"]))
+    x_scale = alt.Scale(domain=[0, 1], nice=False)
+    x_axis = alt.Axis(format=".1f")
+    colour = alt.Color("branch:N", title="Which liquid is continuous",
+                       scale=alt.Scale(domain=names, range=[BLUE, VERMILLION][:len(names)]))
+
+    def backdrop():
+        layers = [fig.chart(regimes).mark_rect(opacity=0.9).encode(
+            x=alt.X("low:Q", scale=x_scale, title=x_title, axis=x_axis), x2="high:Q",
+            color=alt.Color("regime:N", title="Regime (as designed)", scale=alt.Scale(
+                domain=list(regimes["regime"]),
+                range=[REGIME_SHADES.get(r, "#FFFFFF") for r in regimes["regime"]]),
+                legend=alt.Legend(symbolStrokeColor=GREY, symbolStrokeWidth=1)))]
+        if caution is not None:
+            band = pd.DataFrame([{"low": caution[0], "high": caution[1],
+                                  "text": "phase inversion often seen"}])
+            layers.append(fig.chart(band).mark_rect(color=ORANGE, opacity=0.15).encode(
+                x=alt.X("low:Q", scale=x_scale, title=x_title, axis=x_axis), x2="high:Q"))
+            layers.append(fig.chart(band).mark_text(color="#8A5A00", y=10, dx=4,
+                                                    align="left").encode(
+                x=alt.X("low:Q", scale=x_scale, title=x_title, axis=x_axis), text="text:N"))
+        return layers
+
+    def panel(field: str, title: str) -> dict:
+        data = frame[(frame[field] > 0) & (frame[field] < float("inf"))]
+        lo = float(data[field].min()) if len(data) else 1e-3
+        hi = float(data[field].max()) if len(data) else 1.0
+        y_scale = alt.Scale(type="log", domain=decade_domain(lo, hi), nice=False)
+        y_enc = alt.Y(f"{field}:Q", scale=y_scale, title=title,
+                      axis=alt.Axis(values=decades(lo, hi), format=",~g",
+                                    minExtent=AXIS_EXTENT, maxExtent=AXIS_EXTENT))
+        layers = backdrop()
+        layers.append(fig.chart(data).mark_line(strokeWidth=3 if big else 2.4, clip=True)
+                      .encode(x=alt.X("phi:Q", scale=x_scale, title=x_title, axis=x_axis),
+                              y=y_enc, color=colour,
+                              strokeDash=alt.StrokeDash("branch:N", legend=None, scale=alt.Scale(
+                                  domain=names, range=[[1, 0], [6, 3]][:len(names)])),
+                              tooltip=[alt.Tooltip("branch:N", title="continuous"),
+                                       alt.Tooltip("phi:Q", format=".2f", title="φ"),
+                                       alt.Tooltip(f"{field}:Q", format=".4g", title=title)]))
+        for mark, shape in ((current, "diamond"), (target, "triangle-up")):
+            if mark is not None and mark.get(field, 0) and mark[field] > 0:
+                dot = pd.DataFrame([mark])
+                layers.append(fig.chart(dot).mark_point(shape=shape, filled=True, color=BLACK,
+                                                        size=240 if big else 160).encode(
+                    x=alt.X("phi:Q", scale=x_scale, title=x_title, axis=x_axis), y=y_enc))
+                layers.append(fig.chart(dot).mark_text(align="left", dx=10, dy=-10,
+                                                       fontWeight="bold").encode(
+                    x=alt.X("phi:Q", scale=x_scale, title=x_title, axis=x_axis), y=y_enc,
+                    text="label:N"))
+        return alt.layer(*layers).resolve_scale(color="independent").properties(
+            height=_height(big, 320), width=width)
+
+    panels = [panel("viscosity", y_title)]
+    if (frame["yield_stress"] > 0).any():
+        panels.append(panel("yield_stress", yield_title))
+    if joined:
+        return fig.spec(alt.vconcat(*panels, spacing=12), big)
+    return [fig.spec(p, big) for p in panels]
+
+
+def fit_chart(curve: pd.DataFrame, data: pd.DataFrame, *, model: str, level: str,
+              big: bool = False) -> dict:
+    """Measured relative viscosity, the fitted relation and its band, against phi."""
+    fig = Figure()
+    x = alt.X("phi:Q", title="Volume fraction φ [–]")
+    values = np.concatenate([curve["central"].to_numpy(), data["measured"].to_numpy()])
+    values = values[np.isfinite(values) & (values > 0)]
+    lo, hi = (float(values.min()), float(values.max())) if values.size else (1.0, 10.0)
+    y_scale = alt.Scale(type="log", domain=decade_domain(lo, hi), nice=False)
+    y_axis = alt.Axis(values=decades(lo, hi), format=",~g")
+    band = fig.chart(curve[np.isfinite(curve["high"])]).mark_area(
+        color=BLUE, opacity=0.18, clip=True).encode(
+        x=x, y=alt.Y("low:Q", scale=y_scale, title="Relative viscosity [–]", axis=y_axis),
+        y2="high:Q")
+    line = fig.chart(curve.assign(what=f"{model}, fitted")).mark_line(
+        color=BLUE, strokeWidth=2.6).encode(
+        x=x, y=alt.Y("central:Q", scale=y_scale, title="Relative viscosity [–]", axis=y_axis),
+        tooltip=[alt.Tooltip("phi:Q", format=".3f"), alt.Tooltip("central:Q", format=".4g")])
+    points = fig.chart(data).mark_point(filled=True, color=VERMILLION, size=90 if not big
+                                        else 140, shape="circle").encode(
+        x=x, y=alt.Y("measured:Q", scale=y_scale),
+        tooltip=[alt.Tooltip("phi:Q", format=".3f"), alt.Tooltip("measured:Q", format=".4g")])
+    chart = alt.layer(band, line, points).properties(
+        height=_height(big, 340), width="container",
+        title=f"Measured (points), fitted {model} (line), {level} band (shaded)")
+    return fig.spec(chart, big)
+
+
+def residuals(data: pd.DataFrame, big: bool = False) -> dict:
+    """ln(measured) - ln(fitted) against phi, with the zero line."""
+    fig = Figure()
+    zero = fig.chart(pd.DataFrame({"y": [0.0]})).mark_rule(color=GREY).encode(y="y:Q")
+    pts = fig.chart(data).mark_point(filled=True, color=VERMILLION, size=80).encode(
+        x=alt.X("phi:Q", title="Volume fraction φ [–]"),
+        y=alt.Y("residual:Q", title="Residual ln(measured / fitted) [–]"),
+        tooltip=[alt.Tooltip("phi:Q", format=".3f"), alt.Tooltip("residual:Q", format=".3g")])
+    chart = alt.layer(zero, pts).properties(height=_height(big, 200), width="container",
+                                            title="Residuals")
+    return fig.spec(chart, big)
+
+
+VERDICT_COLOURS = {"passes every window": GREEN, "fails a window": VERMILLION,
+                   "no window given": SKY, "input error": GREY}
+
+
+def headroom_bars(data: pd.DataFrame, big: bool = False, limit: float = 0.95) -> dict:
+    """Jamming headroom per candidate, coloured by the window verdict, with a 'close' line."""
+    fig = Figure()
+    names = [v for v in VERDICT_COLOURS if v in set(data["verdict"])]
+    bars = fig.chart(data).mark_bar(cornerRadiusEnd=3).encode(
+        y=alt.Y("candidate:N", sort=None, title=None, axis=alt.Axis(labelLimit=220)),
+        x=alt.X("headroom:Q", title="Headroom φ/φmax [–] (1 = jammed)",
+                scale=alt.Scale(domain=[0, max(1.0, float(data["headroom"].max()))])),
+        color=alt.Color("verdict:N", title="Target windows", scale=alt.Scale(
+            domain=names, range=[VERDICT_COLOURS[n] for n in names])),
+        tooltip=["candidate:N", alt.Tooltip("headroom:Q", format=".3f"), "verdict:N"])
+    rule = fig.chart(pd.DataFrame({"x": [limit]})).mark_rule(
+        color=BLACK, strokeDash=[6, 3]).encode(x="x:Q")
+    chart = alt.layer(bars, rule).properties(height=(28 if big else 22) * len(data) + 70,
+                                             width="container")
+    return fig.spec(chart, big)
+
+
+def size_classes(data: pd.DataFrame, marks: pd.DataFrame, *, x_title: str,
+                 big: bool = False) -> dict:
+    """Amount per size class on the volume and number bases, with D10/D50/D90 marked."""
+    fig = Figure()
+    lo, hi = float(data["diameter"].min()), float(data["diameter"].max())
+    x_scale = alt.Scale(type="log", domain=decade_domain(lo, hi), nice=False)
+    lines = fig.chart(data).mark_line(strokeWidth=2.4, interpolate="monotone",
+                                      point=len(data) < 60).encode(
+        x=alt.X("diameter:Q", scale=x_scale, title=x_title,
+                axis=alt.Axis(values=decades(lo, hi), format="~g")),
+        y=alt.Y("amount:Q", title="Amount per size class [%]"),
+        color=alt.Color("basis:N", title="Basis", scale=alt.Scale(
+            domain=["volume", "number"], range=[BLUE, PURPLE])),
+        tooltip=[alt.Tooltip("diameter:Q", format=".3g"), alt.Tooltip("amount:Q", format=".3g"),
+                 "basis:N"])
+    rules = fig.chart(marks).mark_rule(color=GREY, strokeDash=[4, 3]).encode(
+        x=alt.X("diameter:Q", scale=x_scale))
+    text = fig.chart(marks).mark_text(y=8, dx=3, align="left", color=BLACK).encode(
+        x=alt.X("diameter:Q", scale=x_scale), text="label:N")
+    chart = alt.layer(lines, rules, text).properties(height=_height(big, 280),
+                                                     width="container")
+    return fig.spec(chart, big)
+
+
+def estimator_bars(data: pd.DataFrame, big: bool = False) -> dict:
+    """phi_max by each packing estimator, side by side (dots on a common axis)."""
+    fig = Figure()
+    lo = max(0.0, float(data["phi_max"].min()) - 0.03)
+    hi = min(1.0, float(data["phi_max"].max()) + 0.03)
+    x = alt.X("phi_max:Q", title="Packing limit φmax [–]",
+              scale=alt.Scale(domain=[round(lo, 2), round(hi + 0.005, 2)], nice=False))
+    y = alt.Y("method:N", sort=None, title=None, axis=alt.Axis(labelLimit=240))
+    dots = fig.chart(data).mark_point(filled=True, size=160 if big else 110, color=ORANGE,
+                                      opacity=1, clip=True).encode(
+        x=x, y=y, tooltip=["method:N", alt.Tooltip("phi_max:Q", format=".4f")])
+    text = fig.chart(data).mark_text(align="left", dx=10, clip=True).encode(
+        x=x, y=y, text=alt.Text("phi_max:Q", format=".3f"))
+    # the page fits axes and title inside the height: leave room for them
+    chart = alt.layer(dots, text).properties(
+        height=(34 if big else 28) * len(data) + 90, width="container",
+        title="Packing limit by each estimator")
+    return fig.spec(chart, big)
+
+
+def blend_curve(frame: pd.DataFrame, *, names: list[str], big: bool = False):
+    """phi_max (and relative viscosity) of every blend: a curve for two powders, a map for
+    three."""
+    fig = Figure()
+    if len(names) == 2:
+        x = alt.X("share_1:Q", title=f"{names[0]} in the solids [vol%] (rest: {names[1]})")
+        layers = [fig.chart(frame).mark_line(color=ORANGE, strokeWidth=2.6).encode(
+            x=x, y=alt.Y("phi_max:Q", title="Packing limit φmax [–]",
+                         scale=alt.Scale(zero=False)),
+            tooltip=[alt.Tooltip("share_1:Q", format=".0f"),
+                     alt.Tooltip("phi_max:Q", format=".4f")])]
+        top = alt.layer(*layers).properties(height=_height(big, 240), width="container")
+        if "relative_viscosity" not in frame:
+            return fig.spec(top, big)
+        long = pd.concat([
+            pd.DataFrame({"share_1": frame["share_1"], "value": frame[c], "view": v})
+            for c, v in (("relative_viscosity", "one suspension of the blended sizes"),
+                         ("relative_viscosity_farris", "multimodal (Farris)"))])
+        long = long[np.isfinite(long["value"]) & (long["value"] > 0)]
+        bottom = fig.chart(long).mark_line(strokeWidth=2.4).encode(
+            x=x, y=alt.Y("value:Q", title="Relative viscosity [–]",
+                         scale=alt.Scale(type="log")),
+            color=alt.Color("view:N", title="View", scale=alt.Scale(range=[BLUE, GREEN])),
+            tooltip=["view:N", alt.Tooltip("share_1:Q", format=".0f"),
+                     alt.Tooltip("value:Q", format=".4g")]
+        ).properties(height=_height(big, 220), width="container")
+        return fig.spec(alt.vconcat(top, bottom), big)
+    chart = fig.chart(frame).mark_circle(size=60 if not big else 90).encode(
+        x=alt.X("share_1:Q", title=f"{names[0]} [vol% of solids]"),
+        y=alt.Y("share_2:Q", title=f"{names[1]} [vol% of solids]"),
+        color=alt.Color("phi_max:Q", title="φmax [–]", scale=alt.Scale(scheme="cividis")),
+        tooltip=[alt.Tooltip("share_1:Q", format=".0f"), alt.Tooltip("share_2:Q", format=".0f"),
+                 alt.Tooltip("share_3:Q", format=".0f"), alt.Tooltip("phi_max:Q", format=".4f")]
+    ).properties(height=_height(big, 320), width="container",
+                 title=f"Rest of the solids: {names[2]}")
+    return fig.spec(chart, big)

@@ -1,0 +1,406 @@
+"""Cached wrappers around predictor: plain hashable arguments in, plain data out.
+
+Every function takes the scenario as its canonical JSON text (`predictor.scenario.dumps`),
+so a cache hit costs one dictionary look-up. Warnings from the core (ValidityWarning and
+friends) are captured and returned with the result, so the page can show them inline even
+on a cache hit. Errors (LoadlineError) are not cached: they propagate to the page, which
+shows them with st.error.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import json
+import warnings
+from collections.abc import Callable
+
+import numpy as np
+import pandas as pd
+import streamlit as st
+
+import predictor
+from predictor import formulation as fm
+from predictor import scenario as sc
+
+CACHE = {"show_spinner": False, "max_entries": 512}
+
+
+def _captured(func: Callable, *args, **kwargs):
+    """(result, messages) of `func(*args, **kwargs)` with every warning recorded."""
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
+        result = func(*args, **kwargs)
+    messages = []
+    for w in caught:
+        if issubclass(w.category, UserWarning):   # ValidityWarning is one
+            text = str(w.message)
+            if text not in messages:
+                messages.append(text)
+    return result, messages
+
+
+@st.cache_data(**CACHE)
+def scenario_json(document_text: str) -> str:
+    """Canonical scenario JSON of a scenario document; LoadlineError if it is not valid."""
+    return sc.dumps(sc.scenario_from_dict(json.loads(document_text)))
+
+
+def formulation(scenario: str) -> fm.Formulation:
+    return sc.loads(scenario)
+
+
+@st.cache_data(**CACHE)
+def summary(scenario: str) -> dict:
+    """Volume fractions, packing limit, headroom and the current viscosity (Newtonian view)."""
+    def run():
+        form = formulation(scenario)
+        mix = fm.mixture(form)
+        eta_r = float(fm.relative_viscosity_at(form, mix.phi_solids_effective, mix))
+        return {
+            "phi": mix.phi.tolist(), "mass_fraction": mix.mass_fraction.tolist(),
+            "phi_solids": mix.phi_solids, "phi_solids_effective": mix.phi_solids_effective,
+            "phi_droplets": mix.phi_droplets, "phi_max": mix.phi_max,
+            "intrinsic_viscosity": mix.intrinsic_viscosity, "headroom": mix.headroom,
+            "liquid_viscosity_Pa_s": mix.liquid_viscosity_Pa_s,
+            "relative_viscosity": eta_r,
+            "viscosity_Pa_s": eta_r * mix.liquid_viscosity_Pa_s,
+            "density_kg_per_m3": mix.density_kg_per_m3,
+            "solids_mass_fraction": float(mix.mass_fraction[mix.is_solid].sum()),
+            "has_solids": bool(mix.is_solid.any()),
+            "has_droplets": bool((~mix.is_solid).any()),
+        }
+    return dict(zip(("value", "warnings"), _captured(run), strict=True))
+
+
+BAND_SAMPLES = 500
+
+
+@st.cache_data(**CACHE)
+def fit_result(calibration: str):
+    """The FitResult of a calibration record (JSON: model, phi, relative viscosity, options)."""
+    from predictor import fitting
+
+    cal = json.loads(calibration)
+    return fitting.fit(np.asarray(cal["phi"], float), np.asarray(cal["relative_viscosity"], float),
+                       model=cal["model"], fixed=cal.get("fixed") or None)
+
+
+def _fit_or_none(calibration: str):
+    return fit_result(calibration) if calibration else None
+
+
+@st.cache_data(**CACHE)
+def loading_sweep(scenario: str, relations: tuple[str, ...], band: bool = True,
+                  calibration: str = "", n: int = 160) -> dict:
+    """Viscosity against solids volume fraction for the scenario's relation and others.
+
+    Returns {"value": {"curves", "band", "phi_max", "phi_max_range", "band_sources",
+    "wt_ticks"}, "warnings": [...]}. Every relation is evaluated on the same phi grid (up to
+    just below phi_max); the band comes from the calibration when there is one, else from
+    the spread of the packing estimators.
+    """
+    from predictor import design
+
+    def run():
+        form = formulation(scenario)
+        phi_max = fm.mixture(form).phi_max
+        grid = np.linspace(0.0, 0.995 * phi_max, n)
+        frames = []
+        for name in (form.model, *[r for r in relations if r != form.model]):
+            variant = dataclasses.replace(form, model=name)
+            frame = fm.loading_sweep(variant, phi=grid)
+            frame["relation"] = name
+            frames.append(frame)
+        curves = pd.concat(frames, ignore_index=True)
+        ticks = np.round(np.arange(0.0, phi_max, 0.1), 10)
+        wt = fm.solid_mass_fraction(form, ticks) if len(ticks) else np.zeros(0)
+        out = {"curves": curves, "phi_max": phi_max, "band": None, "band_sources": (),
+               "phi_max_range": None,
+               "wt_ticks": [(float(p), float(100 * w)) for p, w in zip(ticks, wt, strict=True)]}
+        spread = design.packing_estimator_spread(form)["estimates"]
+        if spread:
+            out["phi_max_range"] = (min(spread.values()), max(spread.values()))
+            out["phi_max_estimates"] = spread
+        if band:
+            fit = _fit_or_none(calibration)
+            frame = design.loading_sweep_with_band(form, phi=grid, fit=fit,
+                                                   packing_spread=fit is None,
+                                                   n_samples=BAND_SAMPLES)
+            out["band"] = frame[["phi", "viscosity_low_Pa_s", "viscosity_high_Pa_s"]]
+            out["band_sources"] = tuple(frame.attrs.get("sources", ()))
+            out["band_level"] = frame.attrs.get("level", 0.95)
+        return out
+    return dict(zip(("value", "warnings"), _captured(run), strict=True))
+
+
+@st.cache_data(**CACHE)
+def max_loading(scenario: str, viscosity_limit_Pa_s: float, shear_rate_1_per_s: float,
+                band: bool = True, calibration: str = "") -> dict:
+    """Highest solids loading under a viscosity limit at a shear rate, with its band."""
+    from predictor import design
+
+    def run():
+        form = formulation(scenario)
+        fit = _fit_or_none(calibration)
+        answer = design.max_loading_with_band(
+            form, viscosity_limit_Pa_s, shear_rate_1_per_s, fit=fit,
+            packing_spread=band and fit is None, n_samples=BAND_SAMPLES)
+        return {name: getattr(answer, name) for name in (
+            "phi", "phi_low", "phi_high", "mass_fraction", "mass_fraction_low",
+            "mass_fraction_high", "phi_effective", "limited_by", "sources")} | {
+            "text_mass": answer.text("mass"), "text_volume": answer.text("volume")}
+    return dict(zip(("value", "warnings"), _captured(run), strict=True))
+
+
+@st.cache_data(**CACHE)
+def compare_sweeps(scenarios: tuple[str, ...], n: int = 160) -> dict:
+    """One loading sweep per saved scenario (its own relation), labelled by scenario name."""
+    def run():
+        frames = []
+        for k, text in enumerate(scenarios):
+            form = formulation(text)
+            frame = fm.loading_sweep(form, phi=np.linspace(0.0, 0.995 * fm.mixture(form).phi_max,
+                                                            n))
+            frame["scenario"] = f"{k + 1}. {form.name or 'unnamed'}"
+            frames.append(frame)
+        return pd.concat(frames, ignore_index=True) if frames else pd.DataFrame()
+    return dict(zip(("value", "warnings"), _captured(run), strict=True))
+
+
+def estimate_of(scenario: str, name: str) -> float | None:
+    """The mixture's own estimate of an auto parameter (phi_max or intrinsic viscosity)."""
+    try:
+        value = summary(scenario)["value"]
+    except predictor.LoadlineError:
+        return None
+    return value.get(name)
+
+
+def spec(name: str, kind: str) -> predictor.ModelSpec | None:
+    try:
+        return predictor.get_model(name, kind=kind)
+    except predictor.LoadlineError:
+        return None
+
+
+def relation_names(kind: str) -> list[str]:
+    return [s.name for s in predictor.models(kind=kind)]
+
+
+@st.cache_data(**CACHE)
+def flow_curve(scenario: str, low_1_per_s: float, high_1_per_s: float, n: int = 121) -> dict:
+    """Flow curve over [low, high] (log grid), its markers (onsets...) and messages.
+
+    Returns {"value": {"curve": DataFrame, "markers": {...}, "messages": [...]},
+    "warnings": [...]}.
+    """
+    def run():
+        rates = np.logspace(np.log10(low_1_per_s), np.log10(high_1_per_s), n)
+        curve = fm.predict(formulation(scenario), rates)
+        markers = {k: v for k, v in {**curve.attrs, **curve.attrs.get("markers", {})}.items()
+                   if isinstance(v, int | float | np.floating) and not isinstance(v, bool)}
+        return {"curve": curve, "markers": markers,
+                "messages": list(curve.attrs.get("warnings", ()))}
+    return dict(zip(("value", "warnings"), _captured(run), strict=True))
+
+
+@st.cache_data(**CACHE)
+def flow_point(scenario: str, shear_rate_1_per_s: float) -> dict:
+    """The flow curve at one shear rate (the process rate): one row as a dict."""
+    def run():
+        return fm.predict(formulation(scenario), [shear_rate_1_per_s]).iloc[0].to_dict()
+    return dict(zip(("value", "warnings"), _captured(run), strict=True))
+
+
+def process_windows() -> list[tuple[str, float, float]]:
+    """Typical process shear-rate windows (name, low, high) in 1/s, from predictor.shear."""
+    from predictor import shear
+
+    return [tuple(w) for w in getattr(shear, "PROCESS_SHEAR_RATES", ())]
+
+
+@st.cache_data(**CACHE)
+def process_table(scenario: str) -> dict:
+    """Viscosity in each process window (predictor's process_viscosities), if available."""
+    def run():
+        func = getattr(fm, "process_viscosities", None)
+        if func is None:
+            return None
+        return func(formulation(scenario))
+    return dict(zip(("value", "warnings"), _captured(run), strict=True))
+
+
+
+@st.cache_data(**CACHE)
+def droplet_inputs(scenario: str) -> list[dict]:
+    """What the Droplets page needs of each droplet ingredient, read from the formulation."""
+    form = formulation(scenario)
+    mix = fm.mixture(form)
+    out = []
+    for k, ing in enumerate(form.ingredients):
+        if ing.kind != fm.DROPLET:
+            continue
+        out.append({
+            "index": k, "name": ing.name, "phi": float(mix.phi[k]),
+            "solids_present": bool(mix.is_solid.any()),
+            "continuous_viscosity_Pa_s": mix.liquid_viscosity_Pa_s,
+            "droplet_viscosity_Pa_s": ing.droplet_viscosity_Pa_s
+            if ing.droplet_viscosity_Pa_s is not None else mix.liquid_viscosity_Pa_s,
+            "interfacial_tension_N_per_m": ing.interfacial_tension_N_per_m,
+            "sauter_diameter_m": float(ing.distribution().sauter_diameter_m),
+        })
+    return out
+
+
+@st.cache_data(**CACHE)
+def phase_ratio(inputs: tuple, model: str, shear_rate_1_per_s: float, phi_max: float,
+                rigid: bool, jammed_yield: str, target_viscosity_Pa_s: float | None,
+                target_branch: str) -> dict:
+    """Phase-ratio sweep (both branches), the phi for a target, and the breakup size.
+
+    `inputs`: (continuous viscosity, droplet viscosity, interfacial tension, Sauter
+    diameter), SI.
+    """
+    from predictor import emulsion
+    from predictor import phase_ratio as pr
+
+    eta_c, eta_d, gamma, d32 = inputs
+
+    def run():
+        common = dict(model=model, phi_max=phi_max, surfactant_rigid=rigid,
+                      jammed_yield=jammed_yield)
+        sweep = pr.phase_ratio_sweep(eta_c, eta_d, gamma, d32, shear_rate_1_per_s, **common)
+        target = None
+        if target_viscosity_Pa_s:
+            target = pr.phase_ratio_for_target(eta_c, eta_d, gamma, d32, shear_rate_1_per_s,
+                                               target_viscosity_Pa_s=target_viscosity_Pa_s,
+                                               branch=target_branch, **common)
+        breakup = float(emulsion.max_stable_droplet_diameter(eta_c, shear_rate_1_per_s, gamma,
+                                                             eta_d / eta_c))
+        return {"sweep": sweep, "target": target, "breakup_diameter_m": breakup,
+                "caution_band": tuple(pr.INVERSION_CAUTION_BAND)}
+    return dict(zip(("value", "warnings"), _captured(run), strict=True))
+
+
+@st.cache_data(**CACHE)
+def lab_data(text: str, source: str, scenario: str) -> dict:
+    """The lab table in SI (labdata.read_lab_csv), with the scenario's densities."""
+    import io
+
+    from predictor import labdata
+
+    def run():
+        buffer = io.StringIO(text)
+        buffer.name = source
+        data = labdata.read_lab_csv(buffer, formulation=formulation(scenario))
+        return {"table": data.table, "headers": dict(data.headers),
+                "notes": list(data.notes), "liquid_viscosity_Pa_s": data.liquid_viscosity_Pa_s}
+    return dict(zip(("value", "warnings"), _captured(run), strict=True))
+
+
+@st.cache_data(**CACHE)
+def calibrate(text: str, source: str, scenario: str, model: str, shear_rate: float | None,
+              compare: bool) -> dict:
+    """Fit `model` to the lab loading series (at one shear rate), and compare relations."""
+    import io
+
+    from predictor import fitting, labdata
+
+    def run():
+        buffer = io.StringIO(text)
+        buffer.name = source
+        data = labdata.read_lab_csv(buffer, formulation=formulation(scenario))
+        if shear_rate is not None:
+            data = data.at_shear_rate(shear_rate)
+        result = data.fit(model)
+        phi = result.x
+        grid = np.linspace(0.0, float(np.max(phi)) * 1.08, 120)
+        if "phi_max" in result.all_params:
+            grid = grid[grid < 0.995 * result.all_params["phi_max"]]
+        band = result.band(grid, n_samples=BAND_SAMPLES)
+        comparison = []
+        if compare:
+            comparison = fitting.compare_fits(phi, result.y, kind=result.kind).rows()
+        return {"model": result.model, "kind": result.kind, "params": dict(result.params),
+                "fixed": dict(result.fixed), "intervals": dict(result.intervals),
+                "confidence": result.confidence, "r2": result.r2, "rmse": result.rmse,
+                "aic": result.aic, "n_points": result.n_points, "notes": list(result.notes),
+                "phi": phi.tolist(), "relative_viscosity": result.y.tolist(),
+                "fitted": np.asarray(result.fitted).tolist(),
+                "residuals": np.asarray(result.residuals).tolist(),
+                "curve": pd.DataFrame({"phi": band.x, "central": band.central,
+                                       "low": band.low, "high": band.high}),
+                "comparison": comparison}
+    return dict(zip(("value", "warnings"), _captured(run), strict=True))
+
+
+@st.cache_data(**CACHE)
+def size_table(data: bytes, name: str) -> dict:
+    """A measured size distribution from an uploaded CSV (predictor.batch.read_size_table)."""
+    import pathlib
+    import tempfile
+
+    from predictor import batch
+
+    with tempfile.TemporaryDirectory() as folder:
+        path = pathlib.Path(folder) / pathlib.Path(name).name
+        path.write_bytes(data)
+        return batch.read_size_table(path, field=name).to_dict()
+
+
+@st.cache_data(**CACHE)
+def generated_sizes(kind: str, size_m: float, spread: float) -> dict:
+    """A lognormal (median, geometric std) or Rosin-Rammler (x63, uniformity) distribution."""
+    from predictor import sizes
+
+    if kind == "lognormal":
+        return sizes.SizeDistribution.lognormal(size_m, spread).to_dict()
+    return sizes.SizeDistribution.rosin_rammler(size_m, spread).to_dict()
+
+
+@st.cache_data(**CACHE)
+def size_summary(dist_json: str) -> dict:
+    """Statistics, both bases and every packing estimate of one distribution."""
+    from predictor import packing, sizes
+
+    def run():
+        dist = sizes.SizeDistribution.from_dict(json.loads(dist_json))
+        est = packing.packing_estimates(dist)
+        return {
+            "d10_m": dist.d10_m, "d50_m": dist.d50_m, "d90_m": dist.d90_m, "span": dist.span,
+            "sauter_diameter_m": dist.sauter_diameter_m, "n_classes": len(dist.diameters_m),
+            "classes": pd.DataFrame({"diameter_m": dist.diameters_m,
+                                     "volume": dist.fractions_on("volume"),
+                                     "number": dist.fractions_on("number")}),
+            "estimates": dict(est.estimates), "skipped": dict(est.skipped),
+            "default": est.default, "low": est.low, "high": est.high}
+    return dict(zip(("value", "warnings"), _captured(run), strict=True))
+
+
+@st.cache_data(**CACHE)
+def blend(dists_json: tuple[str, ...], densities: tuple[float, ...],
+          phi_total: float | None) -> dict:
+    """predictor.blend.optimise_blend over 2 or 3 powders, as plain arrays."""
+    from predictor import blend as bl
+    from predictor import sizes
+
+    def run():
+        dists = [sizes.SizeDistribution.from_dict(json.loads(t)) for t in dists_json]
+        res = bl.optimise_blend(dists, densities_kg_per_m3=list(densities), phi_total=phi_total)
+        return {name: getattr(res, name) for name in (
+            "shares", "mass_shares", "phi_max", "relative_viscosity",
+            "relative_viscosity_farris", "phi_total", "best_packing_shares", "best_phi_max",
+            "best_viscosity_shares", "best_relative_viscosity", "best_farris_shares",
+            "best_relative_viscosity_farris")}
+    return dict(zip(("value", "warnings"), _captured(run), strict=True))
+
+
+@st.cache_data(**CACHE)
+def solid_distributions(scenario: str) -> list[dict]:
+    """Name, density, loading and size distribution (JSON) of each solid ingredient."""
+    form = formulation(scenario)
+    mix = fm.mixture(form)
+    return [{"index": k, "name": ing.name, "density": ing.density_kg_per_m3,
+             "phi": float(mix.phi[k]),
+             "dist_json": json.dumps(ing.distribution().to_dict(), sort_keys=True)}
+            for k, ing in enumerate(form.ingredients) if ing.kind == fm.SOLID]

@@ -1,0 +1,229 @@
+"""Real-browser end-to-end tests: `streamlit run app/main.py` driven by Debian's chromium.
+
+One server per pytest(-xdist) worker, on a free loopback port, killed by its PID at the end.
+Screenshots of every page go to artifacts/screenshots/ (for people to look at; no
+assertion is made on pixels). Skipped when /usr/bin/chromium is missing, unless
+E2E_REQUIRED=1 (CI), where a missing browser is a failure.
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import os
+import pathlib
+import signal
+import socket
+import subprocess
+import sys
+import tempfile
+import time
+import urllib.request
+
+import pytest
+
+from app import widgets
+from predictor import formulation as fm
+from predictor import labdata, sizes
+from predictor.units import from_si
+from tests.app.conftest import REPO, demo
+
+pytestmark = pytest.mark.e2e
+
+CHROMIUM = pathlib.Path("/usr/bin/chromium")
+ARGS = ["--headless", "--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run",
+        "--disable-background-networking", "--disable-component-update", "--disable-sync"]
+SHOTS = REPO / "artifacts" / "screenshots"
+DATA = pathlib.Path(__file__).parent / "data"
+WAIT_MS = 60_000
+PAGES = {"Loading sweep": "loading-sweep", "Flow curve": "flow-curve",
+         "Sizes & packing": "sizes-packing", "Droplets": "droplets",
+         "Calibrate": "calibrate", "Batch screen": "batch-screen"}
+
+
+def _need_browser() -> None:
+    if CHROMIUM.exists():
+        return
+    if os.environ.get("E2E_REQUIRED") == "1":
+        pytest.fail(f"{CHROMIUM} is missing and E2E_REQUIRED=1: install Debian's chromium")
+    pytest.skip(f"{CHROMIUM} is missing (set E2E_REQUIRED=1 to make this a failure)")
+
+
+def _free_port() -> int:
+    with socket.socket(socket.AF_INET, socket.SOCK_STREAM) as sock:
+        sock.bind(("127.0.0.1", 0))
+        return sock.getsockname()[1]
+
+
+def _healthy(url: str) -> bool:
+    try:
+        with urllib.request.urlopen(f"{url}/_stcore/health", timeout=1) as response:
+            return response.read().strip() == b"ok"
+    except OSError:
+        return False
+
+
+@pytest.fixture(scope="session")
+def server():
+    """A Streamlit server of this worker; yields its URL, kills it by PID afterwards."""
+    _need_browser()
+    port = _free_port()
+    url = f"http://127.0.0.1:{port}"
+    log = tempfile.TemporaryFile()
+    env = {**os.environ, "LOADLINE_SCENARIO": "data_demo/mineral_coating.loadline.json"}
+    proc = subprocess.Popen(
+        [sys.executable, "-m", "streamlit", "run", "app/main.py", "--server.headless", "true",
+         "--server.port", str(port), "--server.address", "127.0.0.1",
+         "--browser.gatherUsageStats", "false", "--server.fileWatcherType", "none"],
+        cwd=REPO, env=env, stdout=log, stderr=subprocess.STDOUT, start_new_session=True)
+    try:
+        deadline = time.monotonic() + 60
+        while not _healthy(url):
+            if proc.poll() is not None or time.monotonic() > deadline:
+                log.seek(0)
+                pytest.fail(f"streamlit did not start: {log.read().decode()[-2000:]}")
+            time.sleep(0.2)
+        yield url
+    finally:
+        proc.send_signal(signal.SIGTERM)
+        try:
+            proc.wait(timeout=10)
+        except subprocess.TimeoutExpired:
+            proc.kill()
+            proc.wait(timeout=10)
+        log.close()
+
+
+@pytest.fixture(scope="session")
+def browser():
+    _need_browser()
+    from playwright.sync_api import sync_playwright
+
+    with sync_playwright() as p:
+        chromium = p.chromium.launch(executable_path=str(CHROMIUM), headless=True, args=ARGS)
+        yield chromium
+        chromium.close()
+
+
+@pytest.fixture
+def page(server, browser, request):
+    context = browser.new_context(viewport={"width": 1440, "height": 1500})
+    tab = context.new_page()
+    tab.goto(server, wait_until="domcontentloaded")
+    tab.locator("h1").first.wait_for(timeout=WAIT_MS)
+    yield tab
+    report = getattr(request.node, "rep_call", None)
+    if report is not None and report.failed:        # keep what the browser showed
+        SHOTS.mkdir(parents=True, exist_ok=True)
+        tab.screenshot(path=str(SHOTS / f"failed-{request.node.name}.png"))
+    context.close()
+
+
+def _metric(tab, label: str):
+    return tab.get_by_test_id("stMetric").filter(has_text=label).get_by_test_id(
+        "stMetricValue").first
+
+
+def _shot(tab, name: str) -> None:
+    SHOTS.mkdir(parents=True, exist_ok=True)
+    tab.wait_for_load_state("networkidle")
+    tab.wait_for_timeout(1500)          # let the charts and tables finish drawing
+    tab.screenshot(path=str(SHOTS / f"{name}.png"))
+
+
+def _go(tab, title: str) -> None:
+    tab.get_by_test_id("stSidebarNav").get_by_text(title, exact=True).click()
+    tab.locator("h1", has_text=title).wait_for(timeout=WAIT_MS)
+    tab.wait_for_load_state("networkidle")
+
+
+def _viscosity_mPa_s(form) -> str:
+    mix = fm.mixture(form)
+    eta_r = float(fm.relative_viscosity_at(form, mix.phi_solids_effective, mix))
+    return widgets.fmt(from_si(eta_r * mix.liquid_viscosity_Pa_s, "mPa*s", "viscosity"))
+
+
+def test_loading_change_updates_metric_and_chart(page):
+    from playwright.sync_api import expect
+
+    metric = _metric(page, "Viscosity now")
+    expect(metric).to_have_text(_viscosity_mPa_s(demo()), timeout=WAIT_MS)
+    chart = page.get_by_test_id("stVegaLiteChart").first
+    chart.wait_for(timeout=WAIT_MS)
+    page.wait_for_timeout(800)
+    before = chart.screenshot()
+    _shot(page, "loading-sweep")
+    sidebar = page.get_by_test_id("stSidebar")
+    sidebar.get_by_text("1 · ground mineral filler").click()
+    box = sidebar.get_by_label("Loading").first
+    box.fill("42")
+    box.press("Enter")
+    form = demo()
+    changed = dataclasses.replace(form, ingredients=(
+        dataclasses.replace(form.ingredients[0], loading=0.42), *form.ingredients[1:]))
+    expect(metric).to_have_text(_viscosity_mPa_s(changed), timeout=WAIT_MS)
+    page.wait_for_timeout(1000)
+    assert chart.screenshot() != before, "the chart did not redraw after the change"
+
+
+def test_every_page_opens_and_is_saved_as_a_screenshot(page):
+    from playwright.sync_api import expect
+
+    for title, name in PAGES.items():
+        _go(page, title)
+        assert not page.get_by_test_id("stException").count()
+        assert not page.get_by_text("unexpected problem").count()
+        _shot(page, name)
+    page.get_by_role("button", name="Use the demo candidates").click()
+    page.get_by_role("button", name="Screen the candidates").click()
+    expect(_metric(page, "Candidates")).to_have_text("13", timeout=WAIT_MS)
+    _shot(page, "batch-screen-results")
+
+
+def test_size_table_and_lab_data_uploads(page):
+    from playwright.sync_api import expect
+
+    _go(page, "Sizes & packing")
+    table = DATA / "size_table.csv"
+    page.get_by_test_id("stFileUploader").filter(has_text="Size table").locator(
+        "input[type=file]").set_input_files(str(table))
+    from predictor import batch
+
+    d50 = widgets.fmt(batch.read_size_table(table).d50_m * 1e6, 3)
+    expect(_metric(page, "D50")).to_have_text(d50, timeout=WAIT_MS)
+    _shot(page, "sizes-packing-table")
+    _go(page, "Calibrate")
+    lab = DATA / "lab_loading_series.csv"
+    page.get_by_test_id("stFileUploader").filter(has_text="Lab data").locator(
+        "input[type=file]").set_input_files(str(lab))
+    fit = labdata.read_lab_text(lab.read_text(), formulation=demo()).fit("krieger-dougherty")
+    expect(_metric(page, "φmax")).to_have_text(widgets.fmt(fit.params["phi_max"]),
+                                                  timeout=WAIT_MS)
+    page.get_by_role("button", name="Use this calibration on every page").click()
+    page.get_by_text("Every page now uses").wait_for(timeout=WAIT_MS)
+    _shot(page, "calibrate")
+    _go(page, "Loading sweep")
+    page.get_by_text("Calibrated relation in use").wait_for(timeout=WAIT_MS)
+    _shot(page, "loading-sweep-calibrated")
+    assert sizes.SizeDistribution  # the module the table went through is importable
+
+
+def test_presentation_layout_and_demo_switch(page):
+    from playwright.sync_api import expect
+
+    sidebar = page.get_by_test_id("stSidebar")
+    sidebar.get_by_text("Open, save, demos").click()
+    picker = sidebar.get_by_test_id("stSelectbox").filter(has_text="Demo scenarios")
+    picker.click()
+    page.get_by_role("option", name=demo("hand_cream").name).click()
+    page.wait_for_load_state("networkidle")
+    sidebar.get_by_role("button", name="Open this demo").click()
+    expect(page.get_by_test_id("stMain").get_by_text(demo("hand_cream").name)).to_be_visible(
+        timeout=WAIT_MS)
+    expect(sidebar.get_by_text(f"Liquid: {demo('hand_cream').liquid.name}")).to_be_visible(
+        timeout=WAIT_MS)
+    sidebar.get_by_text("Presentation layout (large type)").click()
+    page.wait_for_timeout(1500)
+    _go(page, "Droplets")
+    expect(page.get_by_test_id("stMetric").filter(has_text="Viscosity now")).to_contain_text(
+        "regime: concentrated", timeout=WAIT_MS)
+    _shot(page, "droplets-presentation")

@@ -1,0 +1,75 @@
+"""AppTest of the Droplets page: phase-ratio numbers are predictor's, passed through."""
+
+from __future__ import annotations
+
+import numpy as np
+import pytest
+
+from app import widgets
+from predictor import emulsion, phase_ratio
+from predictor.units import from_si
+from tests.app.conftest import chart_specs, delta, demo, messages, metric, page
+
+# The expected values are computed here too; their validity warnings are the page's to show.
+pytestmark = pytest.mark.filterwarnings("ignore::predictor.ValidityWarning")
+
+
+def _inputs(form):
+    ing = form.ingredients[0]
+    eta_c = form.liquid.newtonian_viscosity_Pa_s()
+    return (eta_c, ing.droplet_viscosity_Pa_s, ing.interfacial_tension_N_per_m,
+            ing.distribution().sauter_diameter_m)
+
+
+def test_opens_on_the_cream_with_both_branches():
+    at = page("droplets", scenario="hand_cream").run()
+    assert not at.exception
+    eta_c, eta_d, gamma, d32 = _inputs(demo("hand_cream"))
+    sweep = phase_ratio.phase_ratio_sweep(eta_c, eta_d, gamma, d32, 100.0,
+                                          model="phan-thien-pham")
+    row = sweep[(sweep["branch"] == "direct") & np.isclose(sweep["phi"], 0.30)].iloc[0]
+    assert metric(at, "Viscosity now") == widgets.fmt(
+        from_si(row["viscosity_Pa_s"], "mPa*s", "viscosity"))
+    assert delta(at, "Viscosity now") == f"regime: {row['regime']}"
+    text = str(chart_specs(at)[0])
+    assert "as designed" in text and "inverted" in text
+
+
+def test_process_rate_changes_the_breakup_size():
+    at = page("droplets", scenario="hand_cream", droplet_model="taylor").run()
+    at.number_input(key="process_shear_rate").set_value(5000.0).run()
+    assert not at.exception
+    eta_c, eta_d, gamma, _ = _inputs(demo("hand_cream"))
+    d = emulsion.max_stable_droplet_diameter(eta_c, 5000.0, gamma, eta_d / eta_c)
+    shown = metric(at, "Largest stable droplet")
+    assert shown == ("∞" if not np.isfinite(d) else widgets.fmt(d * 1e6, 3))
+
+
+def test_target_viscosity_gives_the_fraction():
+    at = page("droplets", scenario="hand_cream").run()
+    at.number_input(key="drop_target").set_value(10.0).run()
+    assert not at.exception
+    eta_c, eta_d, gamma, d32 = _inputs(demo("hand_cream"))
+    phi = phase_ratio.phase_ratio_for_target(eta_c, eta_d, gamma, d32, 100.0,
+                                             target_viscosity_Pa_s=0.010,
+                                             model="phan-thien-pham")
+    assert metric(at, "Fraction for the target") == f"φ {phi:.3f}"
+
+
+def test_unreachable_target_is_explained():
+    at = page("droplets", scenario="hand_cream").run()
+    at.number_input(key="drop_target").set_value(1e12).run()
+    assert not at.exception
+    assert "target" in messages(at).lower()
+
+
+def test_scenario_without_droplets_says_so():
+    at = page("droplets", scenario="ceramic_slip").run()
+    assert not at.exception
+    assert "no droplet ingredient" in messages(at)
+
+
+def test_missing_interfacial_tension_is_named():
+    at = page("droplets", scenario="hand_cream", ing0_tension=None).run()
+    assert not at.exception
+    assert "interfacial tension" in messages(at)

@@ -1,0 +1,84 @@
+"""AppTest of the Flow curve page: metrics and table are predictor's numbers, passed through."""
+
+from __future__ import annotations
+
+import math
+
+import pytest
+
+from app import widgets
+from predictor import formulation as fm
+from predictor import shear
+from predictor.units import from_si
+from tests.app.conftest import chart_specs, delta, demo, messages, metric, page
+
+
+def _at_rate(form, rate: float) -> dict:
+    return fm.predict(form, [rate]).iloc[0].to_dict()
+
+
+def test_opens_with_the_viscosity_at_the_process_rate():
+    at = page("flow_curve").run()
+    assert not at.exception
+    row = _at_rate(demo(), 100.0)
+    assert metric(at, "Viscosity [mPa·s]") == widgets.fmt(
+        from_si(row["viscosity_Pa_s"], "mPa*s", "viscosity"))
+    assert metric(at, "Regime there") == row["regime"]
+    assert len(chart_specs(at)) == 3          # windows strip, viscosity, stress
+    assert "Shear rate [1/s]" in str(chart_specs(at)[1])
+
+
+def test_changing_the_process_rate_passes_through():
+    at = page("flow_curve").run()
+    at.number_input(key="process_shear_rate").set_value(0.05).run()
+    assert not at.exception
+    row = _at_rate(demo(), 0.05)
+    assert delta(at, "Viscosity [mPa·s]") == "at 0.05 1/s"
+    assert metric(at, "Viscosity [mPa·s]") == widgets.fmt(
+        from_si(row["viscosity_Pa_s"], "mPa*s", "viscosity"))
+    assert metric(at, "Shear stress there") == widgets.fmt(row["shear_stress_Pa"])
+
+
+def test_choosing_a_process_moves_the_rate_into_its_window():
+    at = page("flow_curve").run()
+    name, low, high = shear.PROCESS_SHEAR_RATES[1]
+    at.selectbox(key="flow_process").set_value(name).run()
+    assert not at.exception
+    assert low <= at.session_state["process_shear_rate"] <= high
+
+
+def test_onsets_are_shown_where_predictor_finds_them():
+    at = page("flow_curve", scenario="ceramic_slip").run()
+    assert not at.exception
+    markers = fm.predict(demo("ceramic_slip"), [1.0]).attrs["markers"]
+    onset = markers["thinning_onset_1_per_s"]
+    if math.isfinite(onset):
+        assert metric(at, "Thinning onset") == widgets.fmt(onset)
+    else:
+        assert not [m for m in at.metric if m.label.startswith("Thinning onset")]
+
+
+def test_process_window_table_matches_predictor():
+    at = page("flow_curve").run()
+    assert not at.exception
+    table = at.dataframe[0].value
+    expected = fm.process_viscosities(demo())
+    assert list(table["Process"]) == list(expected["process"])
+    shown = table["Viscosity at the high end [mPa·s]"].to_numpy()
+    assert shown == pytest.approx(1000 * expected["viscosity_high_Pa_s"].to_numpy())
+
+
+def test_negative_shear_rate_gives_a_message():
+    at = page("flow_curve").run()
+    at.number_input(key="process_shear_rate").set_value(-3.0).run()
+    assert not at.exception
+    assert "shear_rate" in messages(at) or "shear rate" in messages(at)
+
+
+def test_shear_rate_unit_follows_the_selector():
+    at = page("flow_curve", unit_shear_rate="1/min", process_shear_rate=600.0).run()
+    assert not at.exception
+    row = _at_rate(demo(), 10.0)
+    assert delta(at, "Viscosity [mPa·s]") == "at 600 1/min"
+    assert metric(at, "Viscosity [mPa·s]") == widgets.fmt(
+        from_si(row["viscosity_Pa_s"], "mPa*s", "viscosity"))
