@@ -19,7 +19,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from ._checks import in_range, positive
+from ._checks import guarded, in_range, positive
 from .errors import InputRangeError
 from .packing import reference_phi, volume_distribution
 from .registry import get_model
@@ -49,6 +49,7 @@ class BlendResult:
     best_relative_viscosity_farris: float | None
 
 
+@guarded
 def share_grid(n_powders: int, n_points: int = 101) -> np.ndarray:
     """Volume shares on a regular grid of the simplex, ``n_points`` per edge.
 
@@ -77,6 +78,7 @@ def _krieger_dougherty(phi, phi_max, intrinsic_viscosity):
                         ** (-intrinsic_viscosity * phi_max), np.inf)
 
 
+@guarded
 def farris_viscosity(phi_classes, phi_max_classes, intrinsic_viscosity=2.5):
     r"""Relative viscosity of a multimodal suspension in Farris' view.
 
@@ -139,6 +141,7 @@ def _no_interaction_bound(shares, own_phi_max):
     return np.min(np.where(shares > 0, gamma, np.inf), axis=1)
 
 
+@guarded
 def optimise_blend(distributions, densities_kg_per_m3=None, phi_total: float | None = None,
                    n_points: int = 101, method: str | None = None,
                    state: str = "random-close", intrinsic_viscosity: float = 2.5

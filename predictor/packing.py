@@ -37,7 +37,7 @@ from numba import njit
 from scipy.optimize import brentq
 from scipy.spatial import cKDTree
 
-from ._checks import as_array, in_range, positive, scalar_or_array
+from ._checks import as_array, guarded, in_range, positive, scalar_or_array
 from .errors import InputRangeError, LoadlineError, ValidityWarning
 from .registry import Param, get_model, model, models
 from .sizes import SizeDistribution
@@ -78,6 +78,7 @@ class SimulationInterrupted(LoadlineError):
 # ------------------------------------------------------------------------------------------
 # input handling
 # ------------------------------------------------------------------------------------------
+@guarded
 def reference_phi(state: str = "random-close") -> float:
     """Packing fraction of equal spheres in a reference state (see `REFERENCE_STATES`).
 
@@ -92,6 +93,7 @@ def reference_phi(state: str = "random-close") -> float:
     return REFERENCE_STATES[key]
 
 
+@guarded
 def volume_distribution(diameters_m, fractions, basis: str = "volume"):
     """Checked (diameters ascending, volume fractions summing to 1) arrays.
 
@@ -172,6 +174,7 @@ def _warn(message: str):
 @model("packing", PHI_MONO,
        validity="spheres of any size distribution; analytic, no fitted range",
        source="Ouchiyama & Tanaka, Ind. Eng. Chem. Fundam. 1981/1984")
+@guarded
 def ouchiyama_tanaka(diameters_m, fractions, phi_mono=0.64):
     r"""Packing fraction of a random packing of spheres of any size distribution.
 
@@ -249,6 +252,7 @@ def _ouchiyama_tanaka(d, f, phi0):
 @model("packing", PHI_MONO,
        validity="fitted to simulated sphere packings, polydispersity up to about 0.4",
        source="Desmond & Weeks, Phys. Rev. E 2014")
+@guarded
 def desmond_weeks(diameters_m, fractions, phi_mono=0.64):
     r"""Random close packing from the polydispersity and skewness of the radius.
 
@@ -335,6 +339,7 @@ def _cpm_gamma(d, y, beta, loosening, wall):  # pragma: no cover - compiled
              "compaction index K of the packing process (9 = vibration and compression)"),
        validity="multi-class mixtures of rounded grains; validated on aggregates and beads",
        source="de Larrard, Concrete Mixture Proportioning, 1999")
+@guarded
 def compressible_packing(diameters_m, fractions, phi_mono=0.64, compaction_index=9.0):
     r"""Packing fraction of a multi-class blend from the compressible packing model.
 
@@ -420,6 +425,7 @@ def _compressible_packing(d, f, phi0, k, loosening=1.02, wall=1.50):
 @model("packing", PHI_MONO,
        validity="classes whose neighbouring sizes differ by a factor of about 7 or more",
        source="Furnas, Ind. Eng. Chem. 1931")
+@guarded
 def furnas(diameters_m, fractions, phi_mono=0.64):
     r"""Packing fraction of classes of very different sizes that do not interact.
 
@@ -659,6 +665,7 @@ def _neighbour_pairs(x, rad, box, skin, max_groups=6):
     return i[keep].astype(np.int64), j[keep].astype(np.int64)
 
 
+@guarded
 def sample_diameters(diameters_m, fractions, n_particles: int) -> np.ndarray:
     """Diameters of ``n_particles`` spheres that follow the distribution in number.
 
@@ -1026,6 +1033,7 @@ SIMULATION_FIT_COEFFICIENTS = (0.30056, 0.014693, -0.47844)
        validity="lognormal sigma(ln d) up to 0.6 and two-size blends up to size ratio 5 "
                 "(calibration range)",
        source="Ouchiyama & Tanaka 1981, corrected on Loadline's jamming simulations")
+@guarded
 def simulation_fit(diameters_m, fractions, phi_mono=0.64):
     r"""Fast maximum packing fraction: Ouchiyama-Tanaka corrected on jamming simulations.
 
@@ -1114,6 +1122,7 @@ DEFAULT_METHOD = "simulation-fit"
 # ------------------------------------------------------------------------------------------
 # dispatcher and summary
 # ------------------------------------------------------------------------------------------
+@guarded
 def max_packing(diameters_m, fractions=None, basis: str = "volume", method: str | None = None,
                 state: str = "random-close", **params) -> float:
     """Maximum packing fraction of a size distribution by any registered method.
@@ -1188,6 +1197,7 @@ class PackingEstimates:
         return self.high - self.low
 
 
+@guarded
 def packing_estimates(diameters_m, fractions=None, basis: str = "volume",
                       state: str = "random-close", include_simulation: bool = False,
                       **simulation_params) -> PackingEstimates:
@@ -1237,6 +1247,7 @@ def packing_estimates(diameters_m, fractions=None, basis: str = "volume",
 ASPECT_RATIO_FITS = {"smooth": (0.656, 1.08), "rough": (0.55, 1.00)}
 
 
+@guarded
 def phi_max_for_aspect_ratio(aspect_ratio, surface: str = "smooth"):
     r"""Maximum packing fraction of equal spheroids of a given aspect ratio.
 
@@ -1294,6 +1305,7 @@ def phi_max_for_aspect_ratio(aspect_ratio, surface: str = "smooth"):
     return scalar_or_array(phi_m1 * np.exp(-np.log10(rp) ** 2 / (2.0 * b * b)), aspect_ratio)
 
 
+@guarded
 def intrinsic_viscosity_for_aspect_ratio(aspect_ratio):
     r"""Intrinsic viscosity [eta] of rigid spheroids of a given aspect ratio.
 

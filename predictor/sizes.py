@@ -26,7 +26,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
-from ._checks import as_array, positive
+from ._checks import as_array, guarded, positive
 from .errors import InputRangeError
 
 BASES = ("volume", "mass", "number")
@@ -44,6 +44,7 @@ def _normal_cdf(z):
     return 0.5 * (1.0 + _erf(np.asarray(z, dtype=float) / math.sqrt(2.0)))
 
 
+@guarded
 def class_edges(diameters_m) -> np.ndarray:
     """Class boundaries at the geometric mid-points of ascending class sizes.
 
@@ -149,6 +150,7 @@ class SizeDistribution:
 
     # -- constructors -----------------------------------------------------------------------
     @classmethod
+    @guarded
     def single(cls, diameter_m: float) -> SizeDistribution:
         """All solids at one size.
 
@@ -163,6 +165,7 @@ class SizeDistribution:
         return cls(np.array([float(d)]), np.array([1.0]))
 
     @classmethod
+    @guarded
     def lognormal(cls, median_m: float, geometric_std: float, basis: str = "volume",
                   n_classes: int = 161, span_sigmas: float = 4.0) -> SizeDistribution:
         r"""A lognormal distribution sampled on log-spaced classes.
@@ -219,6 +222,7 @@ class SizeDistribution:
         return cls(np.exp(logd), np.diff(cdf))
 
     @classmethod
+    @guarded
     def rosin_rammler(cls, characteristic_m: float, uniformity: float, n_classes: int = 161,
                       min_diameter_m: float | None = None) -> SizeDistribution:
         r"""A Rosin-Rammler (Weibull) distribution on the volume (mass) basis.
@@ -271,6 +275,7 @@ class SizeDistribution:
         return cls(d, np.diff(q))
 
     @classmethod
+    @guarded
     def from_table(cls, sizes_m, amounts, basis: str = "volume", cumulative: bool = False,
                    normalise: bool = False, columns: tuple[str, str] = ("size_m", "amount"),
                    first_row: int = 0) -> SizeDistribution:
@@ -370,6 +375,7 @@ class SizeDistribution:
         return cls(rep, amount / amount.sum())
 
     @classmethod
+    @guarded
     def blend(cls, distributions, shares, basis: str = "volume",
               densities_kg_per_m3=None) -> SizeDistribution:
         """Several powders mixed in the given shares.

@@ -104,3 +104,21 @@ def test_design_model_names_are_registered():
     for name in ["einstein", "batchelor", "krieger-dougherty", "quemada", "maron-pierce",
                  "eilers", "mooney", "chong", "thomas", "frankel-acrivos"]:
         assert get_model(name).kind == "suspension"
+
+
+MODEL_MODULES = ["suspension", "emulsion", "liquids", "shear", "stability", "composition",
+                 "viscosity", "packing", "blend", "sizes"]
+# Long-running simulations check their own inputs and run numba kernels in worker threads,
+# where numpy's error state does not reach.
+UNGUARDED = {"simulate_jamming", "simulation"}
+
+
+@pytest.mark.parametrize("name", MODEL_MODULES)
+def test_public_model_functions_are_guarded(name):
+    import importlib
+
+    module = importlib.import_module(f"predictor.{name}")
+    missing = [f for f, obj in inspect.getmembers(module, inspect.isfunction)
+               if not f.startswith("_") and obj.__module__ == module.__name__
+               and f not in UNGUARDED and not getattr(obj, "__loadline_guarded__", False)]
+    assert not missing, f"public functions without @guarded in {name}: {missing}"
