@@ -30,11 +30,11 @@ import numpy as np
 import pandas as pd
 from scipy import optimize
 
-from . import composition, uncertainty
+from . import composition, packing, uncertainty
 from . import formulation as fm
 from ._checks import in_range, positive, scalar_or_array
 from .errors import InputRangeError, ValidityWarning
-from .registry import ModelSpec, get_model, models
+from .registry import ModelSpec, get_model
 
 _TINY = 1e-12
 
@@ -704,23 +704,14 @@ def packing_estimator_spread(formulation: fm.Formulation,
     weights = weights / weights.sum()
     combined = dists[0] if len(dists) == 1 else sizes.SizeDistribution.blend(
         dists, weights, basis="volume")
-    names = list(methods) if methods is not None else [
-        s.name for s in models("packing") if s.name != "simulation"]
-    estimates, left_out = {}, {}
-    for name in names:
-        spec = get_model(name, kind="packing")
-        with warnings.catch_warnings(record=True) as caught:
-            warnings.simplefilter("always", ValidityWarning)
-            try:
-                value = float(spec.func(combined.diameters_m, combined.fractions))
-            except (ValueError, ArithmeticError) as err:
-                left_out[name] = str(err)
-                continue
-        outside = [str(w.message) for w in caught if issubclass(w.category, ValidityWarning)]
-        if outside or not 0.0 < value < 1.0:
-            left_out[name] = outside[0] if outside else f"phi_max = {value:.4g} outside (0, 1)"
-            continue
-        estimates[name] = value
+    # packing_estimates knows which methods apply to this distribution (and why not).
+    summary = packing.packing_estimates(combined.diameters_m, combined.fractions)
+    names = set(methods) if methods is not None else set(summary.estimates) | set(
+        k for k in summary.skipped if k != "simulation")
+    estimates = {k: v for k, v in summary.estimates.items() if k in names and 0.0 < v < 1.0}
+    left_out = {k: r for k, r in summary.skipped.items() if k in names}
+    left_out.update({k: f"phi_max = {v:.4g} outside (0, 1)"
+                     for k, v in summary.estimates.items() if k in names and k not in estimates})
     values = np.array(list(estimates.values()))
     rel = float(np.std(values, ddof=1) / np.mean(values)) if values.size > 1 else np.nan
     return {"estimates": estimates, "relative_sd": rel, "left_out": left_out}

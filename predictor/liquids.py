@@ -938,12 +938,36 @@ _INVERSES = {
 }
 
 
+def _carreau_yasuda_kernel(rate, zero_shear_viscosity_Pa_s, infinite_shear_viscosity_Pa_s,
+                           time_constant_s, flow_index, yasuda_exponent):
+    """`carreau_yasuda` without the input checks, for the inner loop of the inversion."""
+    with np.errstate(over="ignore"):
+        return infinite_shear_viscosity_Pa_s + (
+            zero_shear_viscosity_Pa_s - infinite_shear_viscosity_Pa_s) * (
+            1.0 + (time_constant_s * rate) ** yasuda_exponent) ** (
+            (flow_index - 1.0) / yasuda_exponent)
+
+
+def _cross_kernel(rate, zero_shear_viscosity_Pa_s, infinite_shear_viscosity_Pa_s,
+                  time_constant_s, cross_exponent):
+    """`cross` without the input checks, for the inner loop of the inversion."""
+    with np.errstate(over="ignore"):
+        return infinite_shear_viscosity_Pa_s + (
+            zero_shear_viscosity_Pa_s - infinite_shear_viscosity_Pa_s) / (
+            1.0 + (time_constant_s * rate) ** cross_exponent)
+
+
+#: Unchecked viscosity kernels of the laws inverted numerically (inputs checked once, before).
+_KERNELS = {"carreau-yasuda": _carreau_yasuda_kernel, "cross": _cross_kernel}
+
+
 def _invert_numerically(func, tau, values):
     """Shear rate where func's stress equals tau; bisection on log(rate), vectorised.
 
     Used for laws with two viscosity plateaus (Cross, Carreau-Yasuda), whose stress rises
     monotonically with rate (m <= 1, n >= 0) and lies between eta_inf*rate and eta_0*rate.
     """
+    func = _KERNELS.get(func.__name__.replace("_", "-"), func)
     eta0 = values["zero_shear_viscosity_Pa_s"]
     lo = np.log(np.maximum(tau / eta0, 1e-300))
     hi = lo.copy()
