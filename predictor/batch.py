@@ -1,0 +1,1314 @@
+"""Batch screening: a table of candidate formulations, one per row, predicted in one pass.
+
+This is an orchestration module like `formulation.py`: it reads the table, converts units
+at the edge (`predictor.units`), and sequences vectorised calls to the core over all rows of
+a chunk at once (`composition`, `suspension`, the registry's relations, `liquids`,
+`formulation.mixture` once per distinct powder blend). It writes no relation of its own.
+Rows with bad input get a message in their `error` column and never stop the run.
+
+The candidate table (CSV, or Excel with openpyxl)
+------------------------------------------------
+One row per candidate. Column names are case-insensitive; a unit in square brackets after a
+numeric column's name is required where the quantity has a dimension, and may be any unit
+pint reads (``[cP]``, ``[mPa*s]``, ``[degC]``, ``[g/cm3]``, ``[nm]``). Empty cells take the
+default shown. ``k`` numbers the ingredients (1, 2, ...) and ``j`` the target windows.
+
+======================================  ======================================================
+column                                  meaning
+======================================  ======================================================
+``candidate``                           name of the row (default: its row number)
+``liquid``                              ``water`` (default), ``glycerol-water`` or ``newtonian``
+``liquid viscosity [Pa*s]``             viscosity of a ``newtonian`` liquid
+``temperature [degC]``                  default 25 degC
+``liquid density [kg/m3]``              default 997 kg/m3 for water; required otherwise
+``glycerol [wt%]``                      glycerol share of a ``glycerol-water`` liquid
+``relation``                            solids relation (default ``krieger-dougherty``)
+``droplet relation``                    droplets relation (default ``phan-thien-pham``)
+``ingredient k``                        name; an empty name and loading means "no ingredient k"
+``ingredient k kind``                   ``solid`` (default) or ``droplet``
+``ingredient k loading [wt%]``          also ``[vol%]``, ``[wt fraction]``, ``[vol fraction]``
+``ingredient k density [kg/m3]``        particle or droplet density (required)
+``ingredient k d50 [um]``               volume-basis median size (required for solids unless
+                                        a size table is given)
+``ingredient k spread [-]``             geometric standard deviation of a volume lognormal;
+                                        empty or 1 means one size
+``ingredient k size table``             CSV file (path relative to the candidate table) with
+                                        ``size [um]`` and ``passing [vol%]`` (cumulative) or
+                                        ``amount [vol%]`` columns; replaces d50 and spread
+``ingredient k aspect ratio [-]``       default 1 (spheres)
+``ingredient k layer [nm]``             adsorbed-layer thickness, default 0
+``ingredient k phi_max [-]``            measured packing limit, replaces the estimate
+``ingredient k droplet viscosity [Pa*s]`` default: the liquid's viscosity
+``window j``                            name of the window (e.g. ``pumping``)
+``window j shear rate [1/s]``           shear rate of the window (required for a window)
+``window j min viscosity [Pa*s]``       lower limit (optional)
+``window j max viscosity [Pa*s]``       upper limit (optional)
+======================================  ======================================================
+
+Columns the table has beyond these are passed through unchanged; a column whose name starts
+like one of ours (``ingredient``, ``window``, ``liquid``) but is not recognised is reported.
+
+Output columns, appended to the input columns: ``status`` (``ok`` / ``error``), ``error``,
+``phi solids [-]`` (effective, with adsorbed layers), ``phi droplets [-]``, ``phi_max [-]``,
+``headroom phi/phi_max [-]``, ``liquid viscosity [Pa*s]``, ``relative viscosity [-]``, and per
+window ``window j viscosity [Pa*s]``, ``window j max solids [vol%]`` (effective),
+``window j max solids [wt%]``, ``window j verdict`` (``pass`` / ``fail`` / ``error``), then
+``settling`` and ``warnings``. The viscosity unit of the output is selectable.
+
+The viscosity is the formulation's Newtonian view, as `formulation.predict` gives it (the
+liquid at its temperature times the relative viscosity of solids and droplets), so a batch
+row equals `predict` for the same inputs.
+"""
+
+from __future__ import annotations
+
+import io
+import math
+import pathlib
+import re
+from collections.abc import Callable, Iterator
+from dataclasses import dataclass, field
+
+import numpy as np
+import pandas as pd
+
+from . import composition, formulation, sizes, suspension
+from .errors import InputRangeError, LoadlineError, ScenarioError, UnitError
+from .registry import get_model
+from .units import from_si, parse_loading, to_si
+
+CHUNK_ROWS = 50_000
+DEFAULT_RELATION = "krieger-dougherty"
+DEFAULT_DROPLET_RELATION = "phan-thien-pham"
+WATER_DENSITY_KG_PER_M3 = 997.0  # the default of formulation.Liquid
+CLOSE_TO_JAMMING = 0.95          # headroom above which a row is flagged (our own threshold)
+
+# field name -> dimension passed to units.to_si ("loading" and "text" are special)
+_LIQUID_FIELDS = {
+    "candidate": "text", "liquid": "text", "relation": "text", "droplet relation": "text",
+    "liquid viscosity": "viscosity", "temperature": "temperature",
+    "liquid density": "density", "glycerol": "loading",
+}
+_INGREDIENT_FIELDS = {
+    "": "text", "kind": "text", "loading": "loading", "density": "density", "d50": "length",
+    "spread": "dimensionless", "size table": "text", "aspect ratio": "dimensionless",
+    "layer": "length", "phi_max": "dimensionless", "droplet viscosity": "viscosity",
+}
+_WINDOW_FIELDS = {
+    "": "text", "shear rate": "shear_rate", "min viscosity": "viscosity",
+    "max viscosity": "viscosity",
+}
+_HEADER = re.compile(r"^\s*(?P<name>[^\[\]]*?)\s*(?:\[(?P<unit>[^\[\]]*)\])?\s*$")
+_INDEXED = re.compile(r"^(?P<what>ingredient|window)\s+(?P<k>\d+)\s*(?P<field>.*)$")
+_NUMBER = re.compile(r"^\s*[-+]?(\d+\.?\d*|\.\d+)([eE][-+]?\d+)?\s*$")
+_FRACTION_UNITS = {"wt fraction": "mass", "mass fraction": "mass", "w/w": "mass",
+                   "vol fraction": "volume", "volume fraction": "volume", "v/v": "volume"}
+
+
+@dataclass(frozen=True)
+class Column:
+    """One recognised column: what it holds and how to turn a cell into SI."""
+
+    header: str
+    field: str            # e.g. "temperature", "loading", "d50"
+    index: int = 0        # ingredient or window number, 0 for row-level fields
+    dimension: str = "text"
+    scale: float = 1.0    # SI = offset + scale * cell
+    offset: float = 0.0
+    basis: str = ""       # "mass" / "volume" for loadings
+
+
+@dataclass(frozen=True)
+class Layout:
+    """The parsed header of a candidate table."""
+
+    columns: tuple[Column, ...]
+    ingredients: tuple[int, ...]
+    windows: tuple[int, ...]
+    unrecognised: tuple[str, ...]
+
+    def get(self, field_name: str, index: int = 0) -> Column | None:
+        for col in self.columns:
+            if col.field == field_name and col.index == index:
+                return col
+        return None
+
+
+def parse_header(headers) -> Layout:
+    """Recognise the columns of a candidate table; a bad unit in a header raises.
+
+    Raises
+    ------
+    UnitError
+        A header's unit cannot be read or has the wrong dimension (names the column).
+    InputRangeError
+        A column appears twice, or an ingredient lacks its loading or density column.
+    """
+    columns, unrecognised, seen = [], [], {}
+    for header in headers:
+        match = _HEADER.match(str(header))
+        name = re.sub(r"\s+", " ", (match.group("name") if match else str(header))).lower()
+        unit = (match.group("unit") or "").strip() if match else ""
+        indexed = _INDEXED.match(name)
+        if indexed:
+            kind, index, fname = indexed["what"], int(indexed["k"]), indexed["field"].strip()
+            table = _INGREDIENT_FIELDS if kind == "ingredient" else _WINDOW_FIELDS
+            if fname not in table:
+                unrecognised.append(str(header))
+                continue
+            dimension = table[fname]
+            fname = f"{kind} {fname}".strip()
+        elif name in _LIQUID_FIELDS:
+            index, fname, dimension = 0, name, _LIQUID_FIELDS[name]
+        else:
+            if name.split(" ")[0] in ("ingredient", "window", "liquid"):
+                unrecognised.append(str(header))
+            continue
+        if index < 0 or (indexed and index == 0):
+            raise InputRangeError(f"column '{header}'", index, "numbers from 1")
+        key = (fname, index)
+        if key in seen:
+            raise InputRangeError(f"column '{header}'", "a second time",
+                                  f"one column per field (also '{seen[key]}')")
+        seen[key] = str(header)
+        columns.append(_column(str(header), fname, index, dimension, unit))
+    cols = tuple(columns)
+    ingredients = tuple(sorted({c.index for c in cols if c.field.startswith("ingredient")}))
+    windows = tuple(sorted({c.index for c in cols if c.field.startswith("window")}))
+    layout = Layout(cols, ingredients, windows, tuple(unrecognised))
+    for k in ingredients:
+        for needed in ("loading", "density"):
+            if layout.get(f"ingredient {needed}", k) is None:
+                raise InputRangeError(f"column 'ingredient {k} {needed}'", "missing",
+                                      f"a column 'ingredient {k} {needed} [unit]' for "
+                                      f"ingredient {k}")
+    for j in windows:
+        if layout.get("window shear rate", j) is None:
+            raise InputRangeError(f"column 'window {j} shear rate'", "missing",
+                                  f"a column 'window {j} shear rate [1/s]' for window {j}")
+    if not ingredients:
+        raise InputRangeError("columns", "no ingredient", "at least the columns "
+                              "'ingredient 1 loading [wt%]' and 'ingredient 1 density [kg/m3]'")
+    return layout
+
+
+def _column(header, fname, index, dimension, unit) -> Column:
+    if dimension == "text":
+        return Column(header, fname, index)
+    if dimension == "loading":
+        if unit.lower() in _FRACTION_UNITS:
+            return Column(header, fname, index, dimension, 1.0, 0.0, _FRACTION_UNITS[unit.lower()])
+        if not unit or unit.strip() == "%":
+            raise UnitError(f"column '{header}': write the loading's basis in the header, "
+                            "e.g. [wt%], [vol%], [wt fraction] or [vol fraction].")
+        try:
+            scale, basis = parse_loading(f"100 {unit}", field=f"column '{header}'")
+        except LoadlineError:
+            raise UnitError(f"column '{header}': unit [{unit}] is not a loading; write [wt%], "
+                            "[vol%], [wt fraction] or [vol fraction].") from None
+        return Column(header, fname, index, dimension, scale / 100.0, 0.0, basis)
+    if not unit or unit == "-":
+        if dimension != "dimensionless":
+            raise UnitError(f"column '{header}': give its unit in square brackets, e.g. "
+                            f"'{header} [{_EXAMPLE_UNITS[dimension]}]'.")
+        return Column(header, fname, index, dimension)
+    field_name = f"unit of column '{header}'"
+    offset = to_si(0.0, unit, dimension, field_name)
+    scale = to_si(1.0, unit, dimension, field_name) - offset
+    return Column(header, fname, index, dimension, scale, offset)
+
+
+_EXAMPLE_UNITS = {"viscosity": "Pa*s", "temperature": "degC", "density": "kg/m3",
+                  "length": "um", "shear_rate": "1/s"}
+
+
+# -- reading ----------------------------------------------------------------------------------
+
+
+def read_table(path, chunk_rows: int = CHUNK_ROWS) -> Iterator[pd.DataFrame]:
+    """The candidate table in chunks of text cells (CSV streamed; Excel read whole)."""
+    path = pathlib.Path(path)
+    if not path.is_file():
+        raise ScenarioError(f"candidate table {path} does not exist.")
+    if path.suffix.lower() in (".xlsx", ".xlsm"):
+        try:
+            frame = pd.read_excel(path, dtype=str, keep_default_na=False)
+        except ImportError:
+            raise ScenarioError("reading Excel needs openpyxl: pip install openpyxl.") from None
+        except Exception as err:  # openpyxl raises many kinds for a broken file
+            raise ScenarioError(f"{path.name} is not a readable Excel file ({err}).") from None
+        frame = frame.astype(str).replace({"nan": "", "None": ""})
+        for start in range(0, max(len(frame), 1), chunk_rows):
+            yield frame.iloc[start:start + chunk_rows].reset_index(drop=True)
+        return
+    try:
+        reader = pd.read_csv(path, dtype=str, keep_default_na=False, chunksize=chunk_rows,
+                             skipinitialspace=True, encoding="utf-8-sig")
+        yield from reader
+    except pd.errors.EmptyDataError:
+        raise ScenarioError(f"{path.name} is empty; expected a header row and "
+                            "candidate rows.") from None
+    except (pd.errors.ParserError, UnicodeDecodeError) as err:
+        raise ScenarioError(f"{path.name} is not a readable CSV table ({err}).") from None
+
+
+def count_rows(path) -> int | None:
+    """Number of data rows of a CSV (lines after the header), for the progress bar."""
+    path = pathlib.Path(path)
+    if path.suffix.lower() != ".csv":
+        return None
+    lines = 0
+    with path.open("rb") as handle:
+        for block in iter(lambda: handle.read(1 << 20), b""):
+            lines += block.count(b"\n")
+    return max(lines - 1, 0)
+
+
+def read_size_table(path, field: str = "size table") -> sizes.SizeDistribution:
+    """A measured size distribution from a CSV with a size column and an amount column.
+
+    The size column is ``size [unit]`` (any length unit); the amount column is
+    ``passing [vol%]`` (cumulative percent finer), ``amount [vol%]`` (per class) or
+    ``retained [g]`` (any positive total, normalised); ``[wt%]`` is the same as vol% for one
+    material, ``[num%]`` reads as a number basis. Other columns (notes) are ignored.
+    """
+    path = pathlib.Path(path)
+    try:
+        frame = pd.read_csv(path, dtype=str, keep_default_na=False, skipinitialspace=True,
+                            encoding="utf-8-sig")
+    except FileNotFoundError:
+        raise ScenarioError(f"{field}: file {path} does not exist.") from None
+    except (OSError, pd.errors.ParserError, pd.errors.EmptyDataError, UnicodeDecodeError) as err:
+        raise ScenarioError(f"{field}: {path.name} is not a readable CSV ({err}).") from None
+    size_col = amount_col = None
+    cumulative = normalise = False
+    basis = "volume"
+    for header in frame.columns:
+        match = _HEADER.match(str(header))
+        name = (match.group("name") if match else str(header)).strip().lower()
+        unit = ((match.group("unit") or "") if match else "").strip()
+        if name in ("size", "diameter"):
+            size_col = (header, unit)
+        elif name in ("passing", "amount", "retained"):
+            amount_col = (header, unit)
+            cumulative, normalise = name == "passing", name == "retained"
+            basis = "number" if unit.lower().startswith("num") else "volume"
+    if size_col is None or amount_col is None:
+        raise ScenarioError(f"{field}: {path.name} needs a 'size [um]' column and a "
+                            "'passing [vol%]', 'amount [vol%]' or 'retained [g]' column.")
+    if not size_col[1]:
+        raise UnitError(f"{field}: column '{size_col[0]}' of {path.name} needs a unit, "
+                        "e.g. 'size [um]'.")
+    scale = to_si(1.0, size_col[1], "length", f"unit of column '{size_col[0]}'")
+    values = frame[size_col[0]].str.strip()
+    amounts = frame[amount_col[0]].str.strip()
+    keep = (values != "") | (amounts != "")
+    sizes_m = []
+    for i, cell in enumerate(values[keep]):
+        try:
+            sizes_m.append(float(cell) * scale)
+        except ValueError:
+            raise InputRangeError(f"{path.name} row {i + 2}, column {size_col[0]}",
+                                  repr(cell), "a number") from None
+    return sizes.SizeDistribution.from_table(
+        sizes_m, list(amounts[keep]), basis=basis, cumulative=cumulative, normalise=normalise,
+        columns=(str(size_col[0]), str(amount_col[0])), first_row=2)
+
+
+# -- one chunk --------------------------------------------------------------------------------
+
+
+@dataclass
+class _Rows:
+    """SI arrays of one chunk, and the first error of each row."""
+
+    n: int
+    errors: np.ndarray
+    numbers: dict = field(default_factory=dict)
+    texts: dict = field(default_factory=dict)
+
+    def flag(self, mask, message) -> None:
+        """Keep the first error of each row where `mask`; `message` is a str or per-row array."""
+        mask = np.asarray(mask, dtype=bool) & pd.isna(self.errors)
+        if not mask.any():
+            return
+        if isinstance(message, str):
+            self.errors[mask] = message
+        else:
+            self.errors[mask] = np.asarray(message, dtype=object)[mask]
+
+    @property
+    def ok(self) -> np.ndarray:
+        return pd.isna(self.errors)
+
+
+def _read_cells(chunk: pd.DataFrame, layout: Layout) -> _Rows:
+    rows = _Rows(len(chunk), np.full(len(chunk), None, dtype=object))
+    for col in layout.columns:
+        raw = chunk[col.header].astype(str).str.strip()
+        key = (col.field, col.index)
+        if col.dimension == "text":
+            rows.texts[key] = raw.to_numpy(dtype=object)
+            continue
+        value = np.array(pd.to_numeric(raw, errors="coerce"), dtype=float)
+        bad = (raw.to_numpy(dtype=object) != "") & ~np.isfinite(value)
+        if bad.any():
+            rows.flag(bad, np.array([f"column '{col.header}' = {c!r} is not allowed; expected "
+                                     "a finite number." for c in raw], dtype=object))
+            value[bad] = np.nan
+        rows.numbers[key] = col.offset + col.scale * value
+    return rows
+
+
+def _num(rows: _Rows, field_name: str, index: int = 0, default=np.nan) -> np.ndarray:
+    value = rows.numbers.get((field_name, index))
+    if value is None:
+        return np.full(rows.n, default, dtype=float)
+    return np.where(np.isnan(value), default, value)
+
+
+def _text(rows: _Rows, field_name: str, index: int = 0, default: str = "") -> np.ndarray:
+    value = rows.texts.get((field_name, index))
+    if value is None:
+        return np.full(rows.n, default, dtype=object)
+    value = np.asarray([v.lower() if isinstance(v, str) else "" for v in value], dtype=object)
+    return np.where(value == "", default, value)
+
+
+def _check(rows: _Rows, bad, layout: Layout, field_name: str, index: int, value, allowed: str,
+           fallback_header: str) -> None:
+    """Flag rows where `bad`, naming the column, the value and the allowed range."""
+    bad = np.asarray(bad, dtype=bool) & rows.ok
+    if not bad.any():
+        return
+    col = layout.get(field_name, index)
+    header = col.header if col else fallback_header
+    scale = col.scale if col else 1.0
+    offset = col.offset if col else 0.0
+    shown = (np.asarray(value, dtype=float) - offset) / (scale or 1.0)
+    messages = np.array([f"column '{header}' = {v:.6g} is not allowed; expected {allowed}."
+                         for v in shown], dtype=object) if bad.any() else None
+    rows.flag(bad, messages)
+
+
+@dataclass
+class _Context:
+    """State kept across the chunks of one run (parsed size tables, packing results)."""
+
+    layout: Layout
+    base_dir: pathlib.Path
+    size_cache: dict = field(default_factory=dict)
+    packing_cache: dict = field(default_factory=dict)
+    case_cache: dict = field(default_factory=dict)
+
+
+def _distribution(ctx: _Context, table: str, d50: float, spread: float):
+    key = (table, d50, spread)
+    if key not in ctx.size_cache:
+        try:
+            if table:
+                path = pathlib.Path(table)
+                path = path if path.is_absolute() else ctx.base_dir / path
+                dist = read_size_table(path, field=f"size table '{table}'")
+            elif math.isnan(spread) or spread == 1.0:
+                dist = sizes.SizeDistribution.single(d50)
+            else:
+                dist = sizes.SizeDistribution.lognormal(d50, spread)
+            ctx.size_cache[key] = dist
+        except LoadlineError as err:
+            ctx.size_cache[key] = err
+    return ctx.size_cache[key]
+
+
+@dataclass
+class _Chunk:
+    """Per-row SI inputs resolved from one chunk (arrays over rows, and rows x ingredients)."""
+
+    rows: _Rows
+    liquid: np.ndarray
+    temperature_K: np.ndarray
+    liquid_density: np.ndarray
+    glycerol: np.ndarray
+    liquid_viscosity: np.ndarray
+    relation: np.ndarray
+    droplet_relation: np.ndarray
+    present: np.ndarray          # (n, k) bool
+    is_solid: np.ndarray         # (n, k)
+    is_mass: np.ndarray          # (n, k)
+    loading: np.ndarray          # (n, k) fraction on its basis
+    density: np.ndarray          # (n, k)
+    d50: np.ndarray
+    spread: np.ndarray
+    table: np.ndarray            # (n, k) object
+    aspect: np.ndarray
+    layer: np.ndarray
+    phi_max_given: np.ndarray
+    droplet_viscosity: np.ndarray
+    names: np.ndarray            # (n, k) object
+
+
+def _resolve(chunk: pd.DataFrame, ctx: _Context) -> _Chunk:
+    layout = ctx.layout
+    rows = _read_cells(chunk, layout)
+    n, ks = rows.n, layout.ingredients
+    liquid = _text(rows, "liquid", default="water")
+    given_eta = _num(rows, "liquid viscosity")
+    liquid = np.where((liquid == "water") & ~np.isnan(given_eta)
+                      & (layout.get("liquid", 0) is None), "newtonian", liquid)
+    known = np.isin(liquid, ["water", "glycerol-water", "newtonian"])
+    rows.flag(~known, np.array([f"column 'liquid' = {v!r} is not allowed; expected 'water', "
+                                "'glycerol-water' or 'newtonian'." for v in liquid], object))
+    temperature = _num(rows, "temperature", default=298.15)
+    _check(rows, ~(temperature > 0), layout, "temperature", 0, temperature,
+           "a temperature above absolute zero", "temperature [K]")
+    rho_l = _num(rows, "liquid density")
+    rows.flag(np.isnan(rho_l) & (liquid != "water"),
+              "column 'liquid density [kg/m3]' is empty; it is required for a liquid other "
+              "than water.")
+    rho_l = np.where(np.isnan(rho_l) & (liquid == "water"), WATER_DENSITY_KG_PER_M3, rho_l)
+    _check(rows, ~(rho_l > 0) & ~np.isnan(rho_l), layout, "liquid density", 0, rho_l,
+           "a density > 0", "liquid density [kg/m3]")
+    glycerol = _num(rows, "glycerol", default=0.0)
+    _check(rows, (glycerol < 0) | (glycerol > 1), layout, "glycerol", 0, glycerol,
+           "a share from 0 to 100 wt%", "glycerol [wt%]")
+    rows.flag((liquid == "newtonian") & np.isnan(given_eta),
+              "column 'liquid viscosity [Pa*s]' is empty; it is required for a newtonian liquid.")
+    _check(rows, (liquid == "newtonian") & ~(given_eta > 0) & ~np.isnan(given_eta), layout,
+           "liquid viscosity", 0, given_eta, "a viscosity > 0", "liquid viscosity [Pa*s]")
+
+    shape = (n, len(ks))
+    out = {name: np.full(shape, np.nan) for name in (
+        "loading", "density", "d50", "spread", "aspect", "layer", "phi_max", "eta_d")}
+    present = np.zeros(shape, bool)
+    is_solid = np.ones(shape, bool)
+    is_mass = np.zeros(shape, bool)
+    table = np.full(shape, "", dtype=object)
+    names = np.full(shape, "", dtype=object)
+    for j, k in enumerate(ks):
+        name = _text(rows, "ingredient", k)
+        loading = _num(rows, "ingredient loading", k)
+        present[:, j] = (name != "") | ~np.isnan(loading)
+        names[:, j] = np.where(name == "", f"ingredient {k}", name)
+        kind = _text(rows, "ingredient kind", k, default="solid")
+        rows.flag(present[:, j] & ~np.isin(kind, ["solid", "droplet"]),
+                  np.array([f"column 'ingredient {k} kind' = {v!r} is not allowed; expected "
+                            "'solid' or 'droplet'." for v in kind], object))
+        is_solid[:, j] = kind != "droplet"
+        is_mass[:, j] = layout.get("ingredient loading", k).basis == "mass"
+        rows.flag(present[:, j] & np.isnan(loading),
+                  f"column '{layout.get('ingredient loading', k).header}' is empty for an "
+                  f"ingredient {k} that is named; give its loading.")
+        _check(rows, present[:, j] & ((loading < 0) | (loading > 1)), layout,
+               "ingredient loading", k, loading, "a loading from 0 to 100 %",
+               f"ingredient {k} loading")
+        density = _num(rows, "ingredient density", k)
+        rows.flag(present[:, j] & np.isnan(density),
+                  f"column '{layout.get('ingredient density', k).header}' is empty; "
+                  f"ingredient {k} needs its density.")
+        _check(rows, present[:, j] & ~(density > 0) & ~np.isnan(density), layout,
+               "ingredient density", k, density, "a density > 0", f"ingredient {k} density")
+        d50 = _num(rows, "ingredient d50", k)
+        tab = _text(rows, "ingredient size table", k)
+        raw_tab = rows.texts.get(("ingredient size table", k))
+        if raw_tab is not None:   # keep the file name's case
+            tab = np.where(tab == "", "", raw_tab)
+        rows.flag(present[:, j] & is_solid[:, j] & np.isnan(d50) & (tab == ""),
+                  f"ingredient {k}: give 'ingredient {k} d50 [um]' or 'ingredient {k} size "
+                  "table' for a solid.")
+        _check(rows, present[:, j] & ~(d50 > 0) & ~np.isnan(d50), layout, "ingredient d50", k,
+               d50, "a size > 0", f"ingredient {k} d50")
+        spread = _num(rows, "ingredient spread", k, default=1.0)
+        _check(rows, present[:, j] & (spread < 1.0), layout, "ingredient spread", k, spread,
+               "a geometric standard deviation >= 1 (1 = one size)", f"ingredient {k} spread")
+        aspect = _num(rows, "ingredient aspect ratio", k, default=1.0)
+        _check(rows, present[:, j] & ~(aspect > 0), layout, "ingredient aspect ratio", k,
+               aspect, "an aspect ratio > 0", f"ingredient {k} aspect ratio")
+        layer = _num(rows, "ingredient layer", k, default=0.0)
+        _check(rows, present[:, j] & (layer < 0), layout, "ingredient layer", k, layer,
+               "a thickness >= 0", f"ingredient {k} layer")
+        phi_max = _num(rows, "ingredient phi_max", k)
+        _check(rows, present[:, j] & ((phi_max <= 0) | (phi_max > 1)), layout,
+               "ingredient phi_max", k, phi_max, "a packing fraction in (0, 1]",
+               f"ingredient {k} phi_max")
+        eta_d = _num(rows, "ingredient droplet viscosity", k)
+        _check(rows, present[:, j] & (eta_d <= 0), layout, "ingredient droplet viscosity", k,
+               eta_d, "a viscosity > 0", f"ingredient {k} droplet viscosity")
+        for name_, arr in (("loading", loading), ("density", density), ("d50", d50),
+                           ("spread", spread), ("aspect", aspect), ("layer", layer),
+                           ("phi_max", phi_max), ("eta_d", eta_d)):
+            out[name_][:, j] = arr
+        table[:, j] = tab
+    rows.flag(~present.any(axis=1), "no ingredient: give at least one loading.")
+    for column, kind, default in (("relation", "suspension", DEFAULT_RELATION),
+                                  ("droplet relation", "emulsion", DEFAULT_DROPLET_RELATION)):
+        chosen = _text(rows, column, default=default)
+        for name in pd.unique(chosen):
+            try:
+                get_model(name, kind=kind)
+            except LoadlineError as err:
+                rows.flag(chosen == name, f"column '{column}': {err}")
+    return _Chunk(rows, liquid, temperature, rho_l, glycerol, given_eta,
+                  _text(rows, "relation", default=DEFAULT_RELATION),
+                  _text(rows, "droplet relation", default=DEFAULT_DROPLET_RELATION),
+                  present, is_solid, is_mass, np.where(present, out["loading"], 0.0),
+                  np.where(present, out["density"], 1000.0), out["d50"], out["spread"], table,
+                  out["aspect"], out["layer"], out["phi_max"], out["eta_d"], names)
+
+
+def candidate_formulation(c: _Chunk, i: int, ctx: _Context) -> formulation.Formulation:
+    """The Formulation of row `i` of a resolved chunk (the same inputs the batch uses)."""
+    liquid_kind = c.liquid[i]
+    preset = liquid_kind if liquid_kind in ("water", "glycerol-water") else ""
+    liquid = formulation.Liquid(
+        name=liquid_kind, preset=preset, law="newtonian",
+        params={} if preset else {"viscosity_Pa_s": float(c.liquid_viscosity[i])},
+        temperature_K=float(c.temperature_K[i]), density_kg_per_m3=float(c.liquid_density[i]),
+        glycerol_mass_fraction=float(c.glycerol[i]))
+    ingredients = []
+    for j in range(c.present.shape[1]):
+        if not c.present[i, j]:
+            continue
+        size = None
+        if c.table[i, j] or not math.isnan(c.d50[i, j]):
+            dist = _distribution(ctx, c.table[i, j], float(c.d50[i, j]), float(c.spread[i, j]))
+            if isinstance(dist, LoadlineError):
+                raise dist
+            size = dist
+        ingredients.append(formulation.Ingredient(
+            name=str(c.names[i, j]), density_kg_per_m3=float(c.density[i, j]),
+            loading=float(c.loading[i, j]), basis="mass" if c.is_mass[i, j] else "volume",
+            kind="solid" if c.is_solid[i, j] else "droplet",
+            diameter_m=float(size.sauter_diameter_m) if size is not None else 1e-6,
+            size=size, aspect_ratio=float(c.aspect[i, j]),
+            layer_thickness_m=float(c.layer[i, j]),
+            phi_max=None if math.isnan(c.phi_max_given[i, j]) else float(c.phi_max_given[i, j]),
+            droplet_viscosity_Pa_s=(None if math.isnan(c.droplet_viscosity[i, j])
+                                    else float(c.droplet_viscosity[i, j]))))
+    return formulation.Formulation(liquid=liquid, ingredients=tuple(ingredients),
+                                   model=str(c.relation[i]),
+                                   droplet_model=str(c.droplet_relation[i]))
+
+
+def _guarded(func: Callable[[np.ndarray], object], index: np.ndarray, rows: _Rows):
+    """Call `func(index)`; on a LoadlineError split the rows until the bad ones are found.
+
+    Returns {position: result} for the parts that succeeded; bad rows get the message.
+    """
+    results = {}
+    stack = [index]
+    while stack:
+        part = stack.pop()
+        if part.size == 0:
+            continue
+        try:
+            results[part[0]] = (part, func(part))
+        except LoadlineError as err:
+            if part.size == 1:
+                _flag_row(rows, int(part[0]), str(err))
+            else:
+                half = part.size // 2
+                stack.extend([part[:half], part[half:]])
+    return list(results.values())
+
+
+def _flag_row(rows: _Rows, i: int, message: str) -> None:
+    if pd.isna(rows.errors[i]):
+        rows.errors[i] = message
+
+
+def _liquid_viscosity(c: _Chunk) -> np.ndarray:
+    from . import liquids
+
+    eta = np.full(c.rows.n, np.nan)
+    for kind in ("water", "glycerol-water"):
+        index = np.flatnonzero((c.liquid == kind) & c.rows.ok)
+
+        def call(part, kind=kind):
+            if kind == "water":
+                return liquids.water_viscosity(c.temperature_K[part])
+            return liquids.glycerol_water_viscosity(c.glycerol[part], c.temperature_K[part])
+
+        for part, value in _guarded(call, index, c.rows):
+            eta[part] = value
+    newtonian = c.liquid == "newtonian"
+    eta[newtonian] = c.liquid_viscosity[newtonian]
+    return eta
+
+
+@dataclass
+class _State:
+    """Per-row results of the core calls, for one chunk."""
+
+    eta_l: np.ndarray
+    phi: np.ndarray             # (n, k) volume fractions
+    phi_eff: np.ndarray         # (n, k) with adsorbed layers (solids), phi for droplets
+    phi_solids: np.ndarray
+    phi_solids_eff: np.ndarray
+    phi_droplets: np.ndarray
+    phi_max: np.ndarray
+    intrinsic: np.ndarray
+
+
+def _volume_fractions(c: _Chunk) -> np.ndarray:
+    phi = np.full(c.present.shape, np.nan)
+    index = np.flatnonzero(c.rows.ok)
+
+    def call(part):
+        return composition.volume_fractions(c.loading[part], c.is_mass[part], c.density[part],
+                                            c.liquid_density[part])
+
+    for part, value in _guarded(call, index, c.rows):
+        phi[part] = value
+    return phi
+
+
+def _nan(value) -> float:
+    return math.nan if value is None else float(value)
+
+
+def _groups(frame: pd.DataFrame) -> list[tuple[tuple, np.ndarray]]:
+    """The distinct rows of `frame`: [(key tuple, positions), ...], in O(n log n).
+
+    NaN in a key becomes None, so keys compare equal and can index a cache.
+    """
+    if frame.empty:
+        return []
+    combined = np.zeros(len(frame), dtype=np.int64)
+    for col in frame.columns:
+        codes, _ = pd.factorize(frame[col].to_numpy(), use_na_sentinel=False)
+        combined, _ = pd.factorize(combined * (int(codes.max()) + 1) + codes)
+    order = np.argsort(combined, kind="stable")
+    cuts = np.flatnonzero(np.diff(combined[order])) + 1
+    starts = np.concatenate([[0], cuts])
+    ends = np.concatenate([cuts, [len(frame)]])
+    values = frame.to_numpy(dtype=object)
+
+    def key(row):
+        return tuple(None if isinstance(v, float) and math.isnan(v) else v for v in row)
+
+    return [(key(values[order[a]]), order[a:b]) for a, b in zip(starts, ends, strict=True)]
+
+
+def _sauter(c: _Chunk, ctx: _Context) -> np.ndarray:
+    """Sauter diameter per row and ingredient from the (cached) size distributions."""
+    out = np.full(c.present.shape, np.nan)
+    for j in range(c.present.shape[1]):
+        has_size = c.present[:, j] & c.rows.ok & ((c.table[:, j] != "") | ~np.isnan(c.d50[:, j]))
+        if not has_size.any():
+            continue
+        keys = pd.DataFrame({"t": c.table[has_size, j], "d": c.d50[has_size, j],
+                             "s": c.spread[has_size, j]})
+        where = np.flatnonzero(has_size)
+        for (tab, d50, spread), pos in _groups(keys):
+            dist = _distribution(ctx, str(tab), _nan(d50), _nan(spread))
+            rows_u = where[pos]
+            if isinstance(dist, LoadlineError):
+                for i in rows_u:
+                    _flag_row(c.rows, int(i), f"ingredient {ctx.layout.ingredients[j]}: {dist}")
+            else:
+                out[rows_u, j] = dist.sauter_diameter_m
+    return out
+
+
+def _packing(c: _Chunk, ctx: _Context, phi_eff: np.ndarray) -> tuple:
+    """phi_max and intrinsic viscosity per row: `formulation.mixture` once per distinct blend."""
+    n = c.rows.n
+    phi_max = np.full(n, np.nan)
+    intrinsic = np.full(n, np.nan)
+    ok = c.rows.ok
+    solid_eff = np.where(c.present & c.is_solid, np.nan_to_num(phi_eff), 0.0)
+    total = solid_eff.sum(axis=1, keepdims=True)
+    shares = np.where(total > 0, solid_eff / np.where(total > 0, total, 1.0), -1.0)
+    keys = {}
+    for j in range(c.present.shape[1]):
+        solid = c.present[:, j] & c.is_solid[:, j]
+        keys[f"t{j}"] = np.where(solid, c.table[:, j], "")
+        for name, arr in (("d", c.d50), ("s", c.spread), ("a", c.aspect), ("m", c.phi_max_given)):
+            keys[f"{name}{j}"] = np.where(solid, arr[:, j], -1.0)
+        # shares rounded to 12 digits: rows differing only by float noise share one call
+        keys[f"w{j}"] = np.round(shares[:, j], 12)
+    frame = pd.DataFrame(keys)[ok]
+    if frame.empty:
+        return phi_max, intrinsic
+    where = np.flatnonzero(ok)
+    for key, pos in _groups(frame):
+        rows_u = where[pos]
+        if key in ctx.packing_cache:
+            result = ctx.packing_cache[key]
+        else:
+            try:
+                mix = formulation.mixture(candidate_formulation(c, int(rows_u[0]), ctx))
+                result = (mix.phi_max, mix.intrinsic_viscosity)
+            except LoadlineError as err:
+                result = err
+            if len(ctx.packing_cache) < 100_000:
+                ctx.packing_cache[key] = result
+        if isinstance(result, LoadlineError):
+            for i in rows_u:
+                _flag_row(c.rows, int(i), str(result))
+        else:
+            phi_max[rows_u], intrinsic[rows_u] = result
+    return phi_max, intrinsic
+
+
+MAX_CASE_CACHE = 200_000
+
+
+def _case_keys(c: _Chunk, rates: np.ndarray) -> pd.DataFrame:
+    """Every input of `formulation.predict` for a row, plus its window shear rates."""
+    def clean(a):
+        a = np.asarray(a)
+        return np.where(np.isnan(a), -1.0, a) if a.dtype.kind == "f" else a
+
+    cols = {"liquid": c.liquid, "T": clean(c.temperature_K), "rho": clean(c.liquid_density),
+            "gly": clean(c.glycerol), "eta": clean(c.liquid_viscosity), "rel": c.relation,
+            "drel": c.droplet_relation}
+    for j in range(c.present.shape[1]):
+        on = c.present[:, j]
+        for name, arr in (("kind", c.is_solid), ("mass", c.is_mass), ("load", c.loading),
+                          ("dens", c.density), ("d50", c.d50), ("spr", c.spread),
+                          ("asp", c.aspect), ("lay", c.layer), ("pm", c.phi_max_given),
+                          ("etad", c.droplet_viscosity)):
+            values = clean(arr[:, j].astype(float))
+            cols[f"{name}{j}"] = np.where(on, values, -2.0)
+        cols[f"tab{j}"] = np.where(on, c.table[:, j], "")
+    for w in range(rates.shape[1]):
+        cols[f"rate{w}"] = clean(rates[:, w])
+    return pd.DataFrame(cols)
+
+
+def _flow_curve_cases(c: _Chunk, ctx: _Context, rates: np.ndarray, limits: np.ndarray):
+    """Viscosity and regime at each row's window shear rates, from `formulation.predict`.
+
+    `predict` takes one formulation (its flow curve is solved in stress space per
+    formulation), so it is called once per distinct case (all inputs, rates and limits
+    equal) and the answer shared by the rows of that case; answers are kept across chunks.
+    The highest loading under each window's max viscosity is `formulation.max_loading` at
+    the window's shear rate, with the solids' mass fraction from
+    `formulation.solid_mass_fraction`. Rows whose case cannot be predicted get the error;
+    a failed max-loading solve leaves NaN and a note. Returns arrays over rows and windows:
+    viscosity [Pa*s], regime, max effective solids phi [-], max solids mass fraction [-],
+    and the notes per row.
+    """
+    import warnings as warnings_module
+
+    n, width = rates.shape
+    eta = np.full((n, width), np.nan)
+    regime = np.full((n, width), "", dtype=object)
+    max_phi = np.full((n, width), np.nan)
+    max_mass = np.full((n, width), np.nan)
+    notes = np.full(n, "", dtype=object)
+    ok = c.rows.ok
+    if width == 0 or not ok.any():
+        return eta, regime, max_phi, max_mass, notes
+    keys = _case_keys(c, np.hstack([rates, limits]))[ok]
+    where = np.flatnonzero(ok)
+    for key, pos in _groups(keys):
+        rows_u = where[pos]
+        result = ctx.case_cache.get(key)
+        if result is None:
+            try:
+                result = _one_case(c, ctx, int(rows_u[0]), rates, limits, warnings_module)
+            except LoadlineError as err:
+                result = err
+            if len(ctx.case_cache) < MAX_CASE_CACHE:
+                ctx.case_cache[key] = result
+        if isinstance(result, LoadlineError):
+            for i in rows_u:
+                _flag_row(c.rows, int(i), str(result))
+            continue
+        eta[rows_u], regime[rows_u], max_phi[rows_u], max_mass[rows_u] = result[:4]
+        notes[rows_u] = result[4]
+    return eta, regime, max_phi, max_mass, notes
+
+
+def _one_case(c: _Chunk, ctx: _Context, first: int, rates, limits, warnings_module):
+    """Flow-curve answers of row `first` (see `_flow_curve_cases`)."""
+    width = rates.shape[1]
+    good = np.isfinite(rates[first]) & (rates[first] > 0)
+    form = candidate_formulation(c, first, ctx)
+    values = np.full(width, np.nan)
+    kinds = np.full(width, "", dtype=object)
+    phis = np.full(width, np.nan)
+    masses = np.full(width, np.nan)
+    messages = []
+    with warnings_module.catch_warnings(record=True) as caught:
+        warnings_module.simplefilter("always")
+        if good.any():
+            curve = formulation.predict(form, rates[first][good])
+            values[good] = curve["viscosity_Pa_s"].to_numpy(dtype=float)
+            if "regime" in curve:
+                kinds[good] = curve["regime"].to_numpy(dtype=object)
+            messages += [str(m) for m in curve.attrs.get("warnings", ())]
+        has_solid = any(i.kind == formulation.SOLID for i in form.ingredients)
+        for w in np.flatnonzero(good & np.isfinite(limits[first]) & (limits[first] > 0)):
+            if not has_solid:
+                continue
+            try:
+                phis[w] = formulation.max_loading(form, limits[first, w], rates[first, w])
+                masses[w] = float(np.asarray(formulation.solid_mass_fraction(form, phis[w]))
+                                  .ravel()[0])
+            except LoadlineError as err:
+                messages.append(f"window {ctx.layout.windows[w]}: highest loading not "
+                                f"computed ({err})")
+    messages += [str(w.message) for w in caught]
+    return values, kinds, phis, masses, "; ".join(dict.fromkeys(messages))
+
+
+def duration_text(seconds: float) -> str:
+    """A duration in the largest fitting unit, 3 significant digits ("2.5 h", "41 days")."""
+    if not np.isfinite(seconds):
+        return "never"
+    for unit, scale in (("years", 365.25 * 86400.0), ("days", 86400.0), ("h", 3600.0),
+                        ("min", 60.0)):
+        if seconds >= scale:
+            return f"{seconds / scale:.3g} {unit}"
+    return f"{seconds:.3g} s"
+
+
+MAX_SETTLING_CALLS = 20_000  # distinct settling cases per chunk (the verdict is scalar-only)
+
+
+def _settling(c: _Chunk, st: _State, ctx: _Context) -> np.ndarray:
+    """Storage verdict per row: `stability.storage_verdict` for each sized ingredient.
+
+    The same inputs as `design.storage_check`: per ingredient its D90 (the coarse end), its
+    density, the liquid's density, Newtonian viscosity and temperature, and the total
+    dispersed volume fraction for hindrance. The verdict is scalar-only, so it is called
+    once per distinct case. The row
+    shows the first ingredient that separates, else "stable" with the reason.
+    """
+    from . import stability
+
+    n = c.rows.n
+    verdict = np.full(n, "", dtype=object)
+    if not hasattr(stability, "storage_verdict"):
+        verdict[:] = "not assessed (stability.storage_verdict missing)"
+        return verdict
+    ok = c.rows.ok
+    phi_total = st.phi_solids + st.phi_droplets
+    stable_reason = np.full(n, "", dtype=object)
+    calls = 0
+    for j in range(c.present.shape[1]):
+        sized = ok & c.present[:, j] & ((c.table[:, j] != "") | ~np.isnan(c.d50[:, j]))
+        if not sized.any():
+            continue
+        keys = pd.DataFrame({"t": c.table[sized, j], "d": c.d50[sized, j],
+                             "s": c.spread[sized, j], "rp": c.density[sized, j],
+                             "rl": c.liquid_density[sized], "eta": st.eta_l[sized],
+                             "phi": phi_total[sized], "T": c.temperature_K[sized]})
+        where = np.flatnonzero(sized)
+        for (tab, d50, spread, rp, rl, eta, phi, temp), pos in _groups(keys):
+            rows_u = where[pos]
+            calls += 1
+            if calls > MAX_SETTLING_CALLS:
+                verdict[rows_u] = np.where(verdict[rows_u] == "", "not assessed (more than "
+                                           f"{MAX_SETTLING_CALLS} distinct cases in a chunk)",
+                                           verdict[rows_u])
+                continue
+            dist = _distribution(ctx, str(tab), _nan(d50), _nan(spread))
+            if isinstance(dist, LoadlineError):
+                continue
+            try:
+                v = stability.storage_verdict(dist.d90_m, float(rp), float(rl), float(eta),
+                                              phi=min(float(phi), 0.99), temperature_K=temp)
+            except (LoadlineError, ValueError) as err:
+                verdict[rows_u] = np.where(verdict[rows_u] == "",
+                                           f"not assessed ({err})", verdict[rows_u])
+                continue
+            if v.stable:
+                stable_reason[rows_u] = np.where(stable_reason[rows_u] == "", v.reason,
+                                                 stable_reason[rows_u])
+                continue
+            text = (f"{c.names[rows_u[0], j]} {v.direction}, {v.clear_layer_m * 1e3:g} mm "
+                    f"layer in {duration_text(v.clear_layer_time_s)}")
+            for i in rows_u:  # the ingredient name may differ between rows of one case
+                if verdict[i] == "":
+                    verdict[i] = text.replace(str(c.names[rows_u[0], j]), str(c.names[i, j]), 1)
+    empty = verdict == ""
+    verdict[empty & (stable_reason != "")] = "stable (" + stable_reason[
+        empty & (stable_reason != "")] + ")"
+    verdict[empty & (stable_reason == "")] = "not assessed (no sizes given)"
+    return verdict
+
+
+@dataclass(frozen=True)
+class Window:
+    index: int
+    name: str
+
+
+def _predict_chunk(chunk: pd.DataFrame, ctx: _Context, viscosity_unit: str) -> pd.DataFrame:
+    c = _resolve(chunk, ctx)
+    rows = c.rows
+    n = rows.n
+    eta_l = _liquid_viscosity(c)
+    phi = _volume_fractions(c)
+    sauter = _sauter(c, ctx)
+    phi_eff = phi.copy()
+    solid = c.present & c.is_solid
+    use = solid & rows.ok[:, None] & (np.nan_to_num(c.layer) > 0) & np.isfinite(sauter)
+    if use.any():
+        phi_eff[use] = suspension.effective_volume_fraction(phi[use], c.layer[use],
+                                                            0.5 * sauter[use])
+    phi_max, intrinsic = _packing(c, ctx, phi_eff)
+    st = _State(eta_l, phi, phi_eff,
+                np.where(solid, np.nan_to_num(phi), 0.0).sum(axis=1),
+                np.where(solid, np.nan_to_num(phi_eff), 0.0).sum(axis=1),
+                np.where(c.present & ~c.is_solid, np.nan_to_num(phi), 0.0).sum(axis=1),
+                phi_max, intrinsic)
+    has_solid = solid.any(axis=1)
+    phi_max = np.where(has_solid, phi_max, np.nan)
+    windows = ctx.layout.windows
+    rates = np.column_stack([_num(rows, "window shear rate", j) for j in windows]) \
+        if windows else np.zeros((n, 0))
+    limits = np.column_stack([_num(rows, "window max viscosity", j) for j in windows]) \
+        if windows else np.zeros((n, 0))
+    curve_eta, curve_regime, max_phi, max_mass, curve_notes = _flow_curve_cases(
+        c, ctx, rates, limits)
+
+    ok = rows.ok
+    out = {}
+    out["status"] = np.where(ok, "ok", "error")
+    out["error"] = np.where(ok, "", rows.errors)
+    mask = np.where(ok, 1.0, np.nan)
+    out["phi solids [-]"] = st.phi_solids_eff * mask
+    out["phi droplets [-]"] = st.phi_droplets * mask
+    out["phi_max [-]"] = phi_max * mask
+    with np.errstate(divide="ignore", invalid="ignore"):
+        headroom = st.phi_solids_eff / phi_max * mask
+    out["headroom phi/phi_max [-]"] = headroom
+    vu = viscosity_unit
+    out[f"liquid viscosity [{vu}]"] = from_si(np.atleast_1d(eta_l * mask), vu, "viscosity")
+    warnings = np.full(n, "", dtype=object)
+
+    def warn(mask, message):
+        mask = np.asarray(mask, dtype=bool)
+        if mask.any():
+            head = warnings[mask]
+            text = message[mask] if isinstance(message, np.ndarray) else message
+            warnings[mask] = head + np.where(head == "", "", "; ") + text
+
+    warn(ok & (headroom >= 1.0), "jammed: solids at or above phi_max, no flow predicted")
+    warn(ok & (headroom >= CLOSE_TO_JAMMING) & (headroom < 1.0),
+         f"within {100 * (1 - CLOSE_TO_JAMMING):.0f} % of phi_max: small loading errors "
+         "change the viscosity a lot")
+    for name in pd.unique(c.relation[ok & has_solid]):
+        try:
+            spec = get_model(name, kind="suspension")
+        except LoadlineError:
+            continue
+        x = headroom if spec.phi_range_relative else st.phi_solids_eff
+        low, high = spec.phi_range
+        warn(ok & has_solid & (c.relation == name) & ((x < low) | (x > high)),
+             f"{spec.name} used outside its validity range ({spec.validity})")
+
+    warn(ok & (curve_notes != ""), curve_notes)
+    for w, j in enumerate(windows):
+        label = f"window {j}"
+        rate = rates[:, w]
+        lo = _num(rows, "window min viscosity", j)
+        hi = _num(rows, "window max viscosity", j)
+        bad_rate = ~(rate > 0)
+        bad_limits = (lo <= 0) | (hi <= 0) | (lo > hi)
+        eta = curve_eta[:, w] * mask
+        out[f"{label} viscosity [{vu}]"] = from_si(np.atleast_1d(eta), vu, "viscosity")
+        out[f"{label} regime"] = np.where(ok, curve_regime[:, w], "")
+        if np.isfinite(hi).any():
+            out[f"{label} max solids [vol%]"] = 100 * max_phi[:, w] * mask
+            out[f"{label} max solids [wt%]"] = 100 * max_mass[:, w] * mask
+        passed = np.where(np.isnan(lo), True, eta >= lo) & np.where(np.isnan(hi), True, eta <= hi)
+        verdict = np.where(ok & passed, "pass", np.where(ok, "fail", "error")).astype(object)
+        verdict = np.where(ok & bad_rate, "error: shear rate missing or <= 0", verdict)
+        verdict = np.where(ok & ~bad_rate & bad_limits,
+                           "error: limits must be > 0 and min <= max", verdict)
+        verdict = np.where(ok & ~bad_rate & ~bad_limits & np.isnan(lo) & np.isnan(hi),
+                           "no limit", verdict)
+        out[f"{label} verdict"] = verdict
+    out["settling"] = np.where(ok, _settling(c, st, ctx), "")
+    out["warnings"] = warnings
+    result = chunk.copy()
+    for name, values in out.items():
+        if name in result.columns:
+            name = f"{name} (result)"
+        result[name] = values
+    return result
+
+
+def _predict_chunk_safe(chunk: pd.DataFrame, ctx: _Context, viscosity_unit: str) -> pd.DataFrame:
+    """`_predict_chunk`, and if an unexpected error escapes it, the chunk row by row, so that
+    one row that trips a defect loses only itself (its `error` says so) and never the run."""
+    try:
+        return _predict_chunk(chunk, ctx, viscosity_unit)
+    except Exception:  # a defect, not bad input: isolate it to the rows that trip it
+        if len(chunk) == 1:
+            raise
+    parts = []
+    for i in range(len(chunk)):
+        row = chunk.iloc[i:i + 1].reset_index(drop=True)
+        try:
+            parts.append(_predict_chunk(row, ctx, viscosity_unit))
+        except Exception as err:  # noqa: BLE001 - reported in the row, run continues
+            failed = row.copy()
+            failed["status"] = "error"
+            failed["error"] = f"internal error ({type(err).__name__}: {err}); please report it"
+            parts.append(failed)
+    return pd.concat(parts, ignore_index=True)
+
+
+# -- public entry points ----------------------------------------------------------------------
+
+
+@dataclass
+class ScreenSummary:
+    """Counts of one screening run."""
+
+    rows: int = 0
+    ok: int = 0
+    errors: int = 0
+    passed_all: int = 0
+    windows: tuple[int, ...] = ()
+    unrecognised: tuple[str, ...] = ()
+    first_errors: list = field(default_factory=list)   # (line, candidate, message)
+
+    def add(self, frame: pd.DataFrame, start: int) -> None:
+        self.rows += len(frame)
+        good = frame["status"].to_numpy() == "ok"
+        self.ok += int(good.sum())
+        self.errors += int((~good).sum())
+        verdicts = [c for c in frame.columns if re.fullmatch(r"window \d+ verdict", c)]
+        if verdicts:
+            all_pass = np.all([frame[v].to_numpy() == "pass" for v in verdicts], axis=0)
+            self.passed_all += int((all_pass & good).sum())
+        names = frame["candidate"].to_numpy() if "candidate" in frame else None
+        for i in np.flatnonzero(~good)[: max(0, 20 - len(self.first_errors))]:
+            # line number as a spreadsheet shows it (the header is line 1)
+            self.first_errors.append((start + i + 2, "" if names is None else str(names[i]),
+                                      str(frame["error"].iat[i])))
+
+
+def screen(table: pd.DataFrame, base_dir=".", viscosity_unit: str = "Pa*s",
+           chunk_rows: int = CHUNK_ROWS) -> pd.DataFrame:
+    """Predict every candidate of an in-memory table (text or numbers in the cells).
+
+    Parameters
+    ----------
+    table : pandas.DataFrame
+        Candidate rows in the column format of this module's docstring.
+    base_dir : path-like
+        Folder that size-table file names are relative to.
+    viscosity_unit : str
+        Unit of the viscosity columns of the result (any pint viscosity unit).
+    chunk_rows : int
+        Rows computed at once (bounds the memory).
+
+    Returns
+    -------
+    pandas.DataFrame
+        The input columns followed by the result columns; bad rows have status "error".
+    """
+    _check_unit(viscosity_unit)
+    layout = parse_header(table.columns)
+    ctx = _Context(layout, pathlib.Path(base_dir))
+    text = table.astype(object).where(table.notna(), "").astype(str)
+    parts = [_predict_chunk_safe(text.iloc[s:s + chunk_rows].reset_index(drop=True), ctx,
+                            viscosity_unit) for s in range(0, len(text), chunk_rows)]
+    if not parts:
+        return _predict_chunk(text, ctx, viscosity_unit)
+    return pd.concat(parts, ignore_index=True)
+
+
+def screen_file(path, out_path=None, viscosity_unit: str = "Pa*s",
+                chunk_rows: int = CHUNK_ROWS, progress: Callable[[int], None] | None = None,
+                keep: int = 0) -> tuple[ScreenSummary, pd.DataFrame]:
+    """Screen a CSV or Excel table chunk by chunk, writing results as they come.
+
+    Parameters
+    ----------
+    path : path-like
+        The candidate table (.csv, .xlsx).
+    out_path : path-like, optional
+        Where to write the result (.csv streamed; .xlsx or .json written at the end).
+    progress : callable, optional
+        Called with the number of rows done after each chunk.
+    keep : int
+        Number of result rows to keep in memory and return (for printing); -1 keeps all.
+
+    Returns
+    -------
+    (ScreenSummary, pandas.DataFrame)
+        The counts, and the first `keep` result rows.
+    """
+    _check_unit(viscosity_unit)
+    path = pathlib.Path(path)
+    summary = ScreenSummary()
+    ctx = None
+    kept, whole = [], []
+    out_path = None if out_path is None else pathlib.Path(out_path)
+    streaming = out_path is not None and out_path.suffix.lower() == ".csv"
+    handle = None
+    try:
+        for chunk in read_table(path, chunk_rows):
+            if ctx is None:
+                layout = parse_header(chunk.columns)
+                ctx = _Context(layout, path.parent)
+                summary.windows = layout.windows
+                summary.unrecognised = layout.unrecognised
+            result = _predict_chunk_safe(chunk.reset_index(drop=True), ctx, viscosity_unit)
+            summary.add(result, summary.rows)
+            if streaming:
+                if handle is None:
+                    out_path.parent.mkdir(parents=True, exist_ok=True)
+                    handle = out_path.open("w", encoding="utf-8", newline="")
+                    write_csv(result, handle, header=True)
+                else:
+                    write_csv(result, handle, header=False)
+            elif out_path is not None:
+                whole.append(result)
+            if keep < 0 or sum(len(k) for k in kept) < keep:
+                kept.append(result if keep < 0 else result.head(keep))
+            if progress:
+                progress(summary.rows)
+    finally:
+        if handle is not None:
+            handle.close()
+    if ctx is None:
+        raise ScenarioError(f"{path.name} has no header row.")
+    if out_path is not None and not streaming:
+        write_table(pd.concat(whole, ignore_index=True) if whole else pd.DataFrame(), out_path)
+    shown = pd.concat(kept, ignore_index=True) if kept else pd.DataFrame()
+    return summary, shown if keep < 0 else shown.head(keep)
+
+
+def _check_unit(viscosity_unit: str) -> None:
+    try:
+        from_si(1.0, viscosity_unit, "viscosity")
+    except Exception:  # pint raises several kinds; one message for all
+        raise UnitError(f"viscosity unit = {viscosity_unit!r} is not a viscosity unit; "
+                        "write e.g. 'Pa*s', 'mPa*s' or 'cP'.") from None
+
+
+# -- writing ----------------------------------------------------------------------------------
+
+_FORMULA_START = ("=", "+", "-", "@", "\t", "\r")
+
+
+def spreadsheet_safe(value):
+    """A cell made safe for spreadsheets: text starting with = + - @ gets a leading quote.
+
+    Plain numbers (such as -3.5) are left as they are; they cannot be formulas.
+
+    Examples
+    --------
+    >>> spreadsheet_safe("=HYPERLINK(1)")
+    "'=HYPERLINK(1)"
+    >>> spreadsheet_safe("-2.5")
+    '-2.5'
+    """
+    if isinstance(value, str) and value.startswith(_FORMULA_START) and not _NUMBER.match(value):
+        return "'" + value
+    return value
+
+
+def safe_frame(frame: pd.DataFrame, digits: int = 6) -> pd.DataFrame:
+    """A copy of `frame` fit for a spreadsheet: text cells and headers escaped with
+    `spreadsheet_safe` (vectorised), floats rounded to `digits` significant digits."""
+    out = frame.copy()
+    out.columns = [spreadsheet_safe(str(c)) for c in out.columns]
+    for col in out.columns:
+        values = out[col]
+        if pd.api.types.is_float_dtype(values):
+            out[col] = round_significant(values.to_numpy(dtype=float), digits)
+        elif not (pd.api.types.is_numeric_dtype(values) or pd.api.types.is_bool_dtype(values)):
+            out[col] = _escape_column(values)
+    return out
+
+
+def _escape_column(values: pd.Series) -> pd.Series:
+    """`spreadsheet_safe` over a column; in pyarrow's compute kernels when available."""
+    text = values.astype(object).where(values.notna(), "").astype(str)
+    try:
+        import pyarrow as pa
+        import pyarrow.compute as pc
+    except ImportError:
+        return text.map(spreadsheet_safe)
+    arr = pa.array(text.to_numpy(dtype=object), type=pa.string())
+    risky = pc.and_(pc.match_substring_regex(arr, r"^[=+\-@\t\r]"),
+                    pc.invert(pc.match_substring_regex(arr, _NUMBER.pattern)))
+    escaped = pc.if_else(risky, pc.binary_join_element_wise("'", arr, ""), arr)
+    return pd.Series(escaped.to_numpy(zero_copy_only=False), index=values.index, dtype=object)
+
+
+def round_significant(values, digits: int = 6) -> np.ndarray:
+    """Floats rounded to `digits` significant digits (NaN and inf kept).
+
+    Examples
+    --------
+    >>> round_significant([0.00152376079, 12345678.0, -2.0], 6).tolist()
+    [0.00152376, 12345700.0, -2.0]
+    """
+    x = np.asarray(values, dtype=float)
+    out = x.copy()
+    fine = np.isfinite(x) & (x != 0)
+    exponent = np.floor(np.log10(np.abs(x[fine]))).astype(int) - (digits - 1)
+    # divide by an exact power of ten when rounding above the units, multiply otherwise
+    up = exponent > 0
+    y = x[fine]
+    y = np.where(up, np.round(y / 10.0 ** np.where(up, exponent, 0)) * 10.0 ** np.where(
+        up, exponent, 0), np.round(y * 10.0 ** np.where(up, 0, -exponent))
+        / 10.0 ** np.where(up, 0, -exponent))
+    out[fine] = y
+    return out
+
+
+def write_csv(frame: pd.DataFrame, handle_or_path, header: bool = True) -> None:
+    """Write `frame` as spreadsheet-safe CSV (escaped cells, 6 significant digits).
+
+    Uses pyarrow's CSV writer when present (a dependency of streamlit; about 10x faster than
+    pandas for a million rows), pandas' otherwise.
+    """
+    safe = safe_frame(frame)
+    try:
+        import pyarrow as pa
+        import pyarrow.csv as pa_csv
+    except ImportError:
+        safe.to_csv(handle_or_path, index=False, header=header)
+        return
+    table = pa.Table.from_pandas(safe, preserve_index=False)
+    options = pa_csv.WriteOptions(include_header=header, quoting_style="needed")
+    buffer = io.BytesIO()
+    pa_csv.write_csv(table, buffer, write_options=options)
+    data = buffer.getvalue()
+    if isinstance(handle_or_path, str | pathlib.Path):
+        pathlib.Path(handle_or_path).write_bytes(data)
+    elif isinstance(handle_or_path, io.TextIOBase):
+        handle_or_path.write(data.decode("utf-8"))
+    else:
+        handle_or_path.write(data)
+
+
+def write_table(frame: pd.DataFrame, path) -> pathlib.Path:
+    """Write a result table as .csv, .xlsx or .json, chosen by the file name."""
+    path = pathlib.Path(path)
+    path.parent.mkdir(parents=True, exist_ok=True)
+    suffix = path.suffix.lower()
+    if suffix == ".csv":
+        write_csv(frame, path)
+    elif suffix == ".xlsx":
+        try:
+            safe_frame(frame).to_excel(path, index=False)
+        except ImportError:
+            raise ScenarioError("writing Excel needs openpyxl: pip install openpyxl.") from None
+    elif suffix == ".json":
+        path.write_text(frame.to_json(orient="records", indent=1, double_precision=15),
+                        encoding="utf-8")
+    else:
+        raise InputRangeError("output file", path.name, "a name ending in .csv, .xlsx or .json")
+    return path
+
+
+def csv_text(frame: pd.DataFrame) -> str:
+    """Spreadsheet-safe CSV text of `frame`."""
+    buffer = io.StringIO()
+    write_csv(frame, buffer)
+    return buffer.getvalue()

@@ -1,0 +1,726 @@
+"""The `loadline` command: predictions from the shell, for scripts and for nightly runs.
+
+The command parses, validates, converts units (`predictor.units`), calls `predictor` and
+formats; it computes nothing itself. Human-readable tables by default, ``--json`` and
+``--csv`` for machines. Errors go to stderr with a non-zero exit code:
+
+- 0: done;
+- 1: bad input (the message names the field, the value and the allowed range);
+- 2: bad command line (argparse);
+- 3: `screen` finished, but some rows had bad input (they are reported row by row);
+- 4: a part of Loadline that the command needs is not installed yet.
+"""
+
+from __future__ import annotations
+
+import argparse
+import io
+import json
+import math
+import pathlib
+import re
+import sys
+import textwrap
+import time
+import warnings
+
+import numpy as np
+import pandas as pd
+
+from .errors import LoadlineError, UnitError
+from .units import from_si, parse_quantity
+
+CAUTIONS = (
+    "Predictions are screening estimates for idealised particles and droplets. Confirm them "
+    "by measurement before scale-up, pump or pressure-equipment selection, and follow local "
+    "codes, licensed engineering practice and the materials' safety data sheets (fine "
+    "powders, solvents)."
+)
+EXIT_OK, EXIT_INPUT, EXIT_USAGE, EXIT_ROWS, EXIT_MISSING = 0, 1, 2, 3, 4
+DEMO_SCENARIO = "mineral_coating.loadline.json"
+DEMO_TABLE = "candidates.csv"
+
+
+class MissingPartError(LoadlineError):
+    """A module or function the command relies on has not landed in this installation."""
+
+
+def demo_folder() -> pathlib.Path:
+    """The bundled `data_demo/` folder (next to the package in a source or editable install)."""
+    here = pathlib.Path(__file__).resolve().parent
+    for folder in (here / "data_demo", here.parent / "data_demo"):
+        if folder.is_dir():
+            return folder
+    raise LoadlineError("the bundled demo folder data_demo/ was not found next to the "
+                        "predictor package; install Loadline from its source tree "
+                        "(pip install -e .) to run the demo.")
+
+
+def _need(module_name: str, *names: str):
+    """The module `predictor.<module_name>`, or `MissingPartError` naming what is missing."""
+    import importlib
+
+    try:
+        module = importlib.import_module(f"predictor.{module_name}")
+    except ImportError as err:
+        raise MissingPartError(f"predictor.{module_name} is not available ({err}).") from None
+    missing = [n for n in names if not hasattr(module, n)]
+    if missing:
+        raise MissingPartError(f"predictor.{module_name} has no {', '.join(missing)} yet; "
+                               "this command needs it.")
+    return module
+
+
+# -- formatting -------------------------------------------------------------------------------
+
+_SUFFIX_UNITS = (
+    ("_Pa_s", "viscosity"), ("_1_per_s", "shear_rate"), ("_Pa", "stress"), ("_m", "length"),
+    ("_K", "temperature"), ("_kg_per_m3", "density"), ("_N_per_m", "interfacial_tension"),
+    ("_s", "time"),
+)
+_SHOWN_UNITS = {"shear_rate": "1/s", "stress": "Pa", "length": "um", "temperature": "degC",
+                "density": "kg/m**3", "interfacial_tension": "mN/m", "time": "s"}
+
+
+def unit_columns(frame: pd.DataFrame, viscosity_unit: str = "Pa*s") -> pd.DataFrame:
+    """Columns named with SI suffixes (``viscosity_Pa_s``) shown as ``viscosity [mPa*s]``.
+
+    Numeric columns are converted with `units.from_si`; other columns pass unchanged.
+    """
+    out = {}
+    for col in frame.columns:
+        values = frame[col]
+        name = str(col)
+        for suffix, dimension in _SUFFIX_UNITS:
+            if name.endswith(suffix) and pd.api.types.is_numeric_dtype(values):
+                unit = viscosity_unit if dimension == "viscosity" else _SHOWN_UNITS[dimension]
+                label = name[: -len(suffix)].replace("_", " ")
+                out[f"{label} [{unit}]"] = from_si(values.to_numpy(dtype=float), unit,
+                                                   dimension)
+                break
+        else:
+            label = name.replace("_", " ")
+            out[label + (" [-]" if pd.api.types.is_float_dtype(values)
+                         and "[" not in label else "")] = values.to_numpy()
+    return pd.DataFrame(out)
+
+
+def _fmt(value) -> str:
+    if isinstance(value, float | np.floating):
+        if math.isnan(value):
+            return ""
+        if math.isinf(value):
+            return "inf" if value > 0 else "-inf"
+        return f"{value:.4g}"
+    return str(value)
+
+
+def table_text(frame: pd.DataFrame, max_rows: int | None = None) -> str:
+    """A plain aligned table with 4 significant digits."""
+    shown = frame if max_rows is None else frame.head(max_rows)
+    cells = [[_fmt(v) for v in row] for row in shown.itertuples(index=False)]
+    headers = [str(c) for c in frame.columns]
+    widths = [max([len(h)] + [len(r[i]) for r in cells]) for i, h in enumerate(headers)]
+    numeric = [pd.api.types.is_numeric_dtype(frame[c]) for c in frame.columns]
+
+    def line(items):
+        return "  ".join(s.rjust(w) if num else s.ljust(w)
+                         for s, w, num in zip(items, widths, numeric, strict=True)).rstrip()
+
+    lines = [line(headers), line(["-" * w for w in widths])] + [line(r) for r in cells]
+    if max_rows is not None and len(frame) > max_rows:
+        lines.append(f"... {len(frame) - max_rows} more rows (use --json, --csv or -o)")
+    return "\n".join(lines)
+
+
+def _emit(args, frame: pd.DataFrame, meta: dict | None = None, text_before: str = "") -> None:
+    """Print `frame` as the user asked: table (default), JSON or CSV."""
+    from .batch import csv_text
+
+    if getattr(args, "json", False):
+        doc = dict(meta or {})
+        doc["rows"] = frame.astype(object).where(frame.notna(), None).to_dict("records")
+        print(json.dumps(_finite(doc), indent=1, default=_json_default))
+    elif getattr(args, "csv", False):
+        sys.stdout.write(csv_text(frame))
+    else:
+        if text_before:
+            print(text_before)
+        print(table_text(frame))
+
+
+def _finite(value):
+    """JSON has no NaN or inf: they become null."""
+    if isinstance(value, float | np.floating):
+        return float(value) if math.isfinite(value) else None
+    if isinstance(value, dict):
+        return {k: _finite(v) for k, v in value.items()}
+    if isinstance(value, list | tuple):
+        return [_finite(v) for v in value]
+    return value
+
+
+def _json_default(value):
+    if isinstance(value, np.generic):
+        value = value.item()
+        return None if isinstance(value, float) and not math.isfinite(value) else value
+    if isinstance(value, np.ndarray):
+        return value.tolist()
+    return str(value)
+
+
+def _quantity(text: str, dimension: str, option: str) -> float:
+    return parse_quantity(text, dimension, option)
+
+
+def _check_viscosity_unit(unit: str) -> str:
+    try:
+        from_si(1.0, unit, "viscosity")
+    except Exception:  # pint raises several kinds; one message for all
+        raise UnitError(f"--viscosity-unit = {unit!r} is not a viscosity unit; write e.g. "
+                        "'Pa*s', 'mPa*s' or 'cP'.") from None
+    return unit
+
+
+class Progress:
+    """A one-line progress bar on stderr (only drawn when stderr is a terminal or forced)."""
+
+    def __init__(self, total: int | None, label: str, enabled: bool, stream=None):
+        self.total, self.label, self.enabled = total, label, enabled
+        self.stream = stream or sys.stderr
+        self.start = time.perf_counter()
+
+    def __call__(self, done: int) -> None:
+        if not self.enabled:
+            return
+        elapsed = time.perf_counter() - self.start
+        rate = done / elapsed if elapsed > 0 else 0.0
+        if self.total:
+            frac = min(done / self.total, 1.0)
+            bar = "#" * int(30 * frac) + "." * (30 - int(30 * frac))
+            text = f"\r{self.label} [{bar}] {100 * frac:5.1f} % {done}/{self.total} rows"
+        else:
+            text = f"\r{self.label} {done} rows"
+        self.stream.write(f"{text}  {rate:,.0f} rows/s")
+        self.stream.flush()
+
+    def close(self) -> None:
+        if self.enabled:
+            self.stream.write("\n")
+            self.stream.flush()
+
+
+# -- commands ---------------------------------------------------------------------------------
+
+
+def _scenario(path):
+    from .scenario import read_scenario
+
+    return read_scenario(path)
+
+
+def _shear_rates(args) -> np.ndarray:
+    if args.shear_rate:
+        return np.array([_quantity(t, "shear_rate", "--shear-rate") for t in args.shear_rate])
+    low = _quantity(args.low, "shear_rate", "--from")
+    high = _quantity(args.high, "shear_rate", "--to")
+    if not (low > 0 and high > low):
+        raise UnitError(f"--from = {args.low!r}, --to = {args.high!r}: expected "
+                        "0 < from < to.")
+    if not 2 <= args.points <= 10_000:
+        raise UnitError(f"--points = {args.points} is not allowed; expected 2 to 10000.")
+    return np.geomspace(low, high, args.points)
+
+
+def cmd_predict(args) -> int:
+    from .formulation import predict
+
+    unit = _check_viscosity_unit(args.viscosity_unit)
+    form = _scenario(args.scenario)
+    curve = predict(form, _shear_rates(args))
+    meta = {"scenario": form.name, **{k: _plain(v) for k, v in curve.attrs.items()}}
+    head = _scenario_head(form, meta)
+    _emit(args, unit_columns(curve, unit), meta, head)
+    return EXIT_OK
+
+
+def _plain(value):
+    if isinstance(value, np.generic):
+        return value.item()
+    if isinstance(value, dict | list | tuple | str | int | float | type(None)):
+        return value
+    return str(value)
+
+
+def _scenario_head(form, meta: dict) -> str:
+    lines = [f"scenario: {form.name or '(unnamed)'}"]
+    parts = []
+    for key in ("phi", "phi_max", "headroom"):
+        if isinstance(meta.get(key), int | float):
+            parts.append(f"{key} = {meta[key]:.4g}")
+    if parts:
+        lines.append(", ".join(parts))
+    return "\n".join(lines)
+
+
+def cmd_sweep(args) -> int:
+    from .formulation import loading_sweep
+
+    unit = _check_viscosity_unit(args.viscosity_unit)
+    if not 2 <= args.points <= 100_000:
+        raise UnitError(f"--points = {args.points} is not allowed; expected 2 to 100000.")
+    form = _scenario(args.scenario)
+    rate = _quantity(args.shear_rate, "shear_rate", "--shear-rate") if args.shear_rate else None
+    sweep = _sweep(loading_sweep, form, args.points, rate)
+    frame = pd.DataFrame({
+        "phi solids [-]": sweep["phi"].to_numpy(),
+        "solids [wt%]": 100 * sweep["mass_fraction"].to_numpy(),
+        "relative viscosity [-]": sweep["relative_viscosity"].to_numpy(),
+        f"viscosity [{unit}]": from_si(sweep["viscosity_Pa_s"].to_numpy(), unit, "viscosity"),
+    })
+    meta = {"scenario": form.name, **{k: _plain(v) for k, v in sweep.attrs.items()}}
+    head = (f"scenario: {form.name or '(unnamed)'}\n"
+            f"phi_max = {meta.get('phi_max', float('nan')):.4g}, current phi = "
+            f"{meta.get('phi_current', float('nan')):.4g}\n" + _sweep_basis(rate))
+    _emit(args, frame, meta, head)
+    return EXIT_OK
+
+
+def _sweep(loading_sweep, form, points: int, rate: float | None):
+    """`formulation.loading_sweep`, at a shear rate when given."""
+    if rate is None:
+        return loading_sweep(form, n=points)
+    import inspect
+
+    if "shear_rate_1_per_s" not in inspect.signature(loading_sweep).parameters:
+        raise MissingPartError("formulation.loading_sweep takes no shear rate yet.")
+    return loading_sweep(form, n=points, shear_rate_1_per_s=rate)
+
+
+def _sweep_basis(rate: float | None) -> str:
+    if rate is None:
+        return ("viscosity: Newtonian view (the relation at phi_max times the liquid's "
+                "Newtonian viscosity); give --shear-rate for the full flow curve")
+    return f"viscosity: full flow curve at {rate:g} 1/s"
+
+
+def cmd_max_load(args) -> int:
+    from .formulation import max_loading, mixture, solid_mass_fraction
+
+    form = _scenario(args.scenario)
+    limits = [_quantity(t, "viscosity", "--limit") for t in args.limit]
+    rates = [_quantity(t, "shear_rate", "--shear-rate") for t in (args.shear_rate or ["1 1/s"])]
+    if len(rates) == 1:
+        rates = rates * len(limits)
+    if len(rates) != len(limits):
+        raise UnitError(f"--shear-rate given {len(rates)} times for {len(limits)} --limit "
+                        "values; give one shear rate, or one per limit.")
+    mix = mixture(form)
+    rows = []
+    for limit, rate in zip(limits, rates, strict=True):
+        phi = max_loading(form, limit, rate)
+        rows.append({
+            "shear rate [1/s]": rate,
+            f"viscosity limit [{args.viscosity_unit}]": from_si(limit, args.viscosity_unit,
+                                                                "viscosity"),
+            "max phi solids [-]": phi,
+            "max solids [wt%]": 100 * float(solid_mass_fraction(form, phi, mix)[0]),
+            "max phi/phi_max [-]": phi / mix.phi_max,
+        })
+    head = (f"scenario: {form.name or '(unnamed)'}\ncurrent phi solids = "
+            f"{mix.phi_solids_effective:.4g}, phi_max = {mix.phi_max:.4g}")
+    _emit(args, pd.DataFrame(rows), {"scenario": form.name, "phi_max": mix.phi_max,
+                                     "phi_current": mix.phi_solids_effective}, head)
+    return EXIT_OK
+
+
+def cmd_models(args) -> int:
+    from .registry import models
+
+    rows = []
+    for spec in models(args.kind):
+        defaults = spec.defaults()
+        params = "; ".join(
+            f"{p.name}={defaults.get(p.name, '')} [{p.unit}] ({p.bounds[0]:g}..{p.bounds[1]:g})"
+            for p in spec.params)
+        rows.append({"name": spec.name, "kind": spec.kind, "parameters": params or "-",
+                     "validity": spec.validity, "source": spec.source})
+    frame = pd.DataFrame(rows, columns=["name", "kind", "parameters", "validity", "source"])
+    if not (args.json or args.csv):
+        for row in rows:
+            print(f"{row['name']}  ({row['kind']})  source: {row['source']}")
+            print(textwrap.fill(f"parameters: {row['parameters']}", 100,
+                                initial_indent="    ", subsequent_indent="      "))
+            print(textwrap.fill(f"validity: {row['validity']}", 100, initial_indent="    ",
+                                subsequent_indent="      "))
+        print(f"\n{len(rows)} relations.")
+        return EXIT_OK
+    _emit(args, frame, {"count": len(rows)})
+    return EXIT_OK
+
+
+def cmd_screen(args) -> int:
+    from .batch import count_rows, screen_file
+
+    unit = _check_viscosity_unit(args.viscosity_unit)
+    if args.chunk_rows < 1:
+        raise UnitError(f"--chunk-rows = {args.chunk_rows} is not allowed; expected >= 1.")
+    path = pathlib.Path(args.table)
+    show_progress = args.progress if args.progress is not None else sys.stderr.isatty()
+    progress = Progress(count_rows(path) if show_progress else None, "screen", show_progress)
+    keep = -1 if (args.json or args.csv) else args.show
+    try:
+        summary, shown = screen_file(path, args.output, viscosity_unit=unit,
+                                     chunk_rows=args.chunk_rows, progress=progress, keep=keep)
+    finally:
+        progress.close()
+    for header in summary.unrecognised:
+        print(f"loadline: warning: column '{header}' is not one Loadline reads; it is "
+              "passed through unchanged (see `loadline screen --help`).", file=sys.stderr)
+    for row, name, message in summary.first_errors:
+        print(f"loadline: line {row}{f' ({name})' if name else ''}: {message}", file=sys.stderr)
+    if summary.errors > len(summary.first_errors):
+        print(f"loadline: ... {summary.errors - len(summary.first_errors)} more rows with "
+              "errors (see the 'error' column of the output).", file=sys.stderr)
+    if args.json or args.csv:
+        _emit(args, shown, {"rows_total": summary.rows, "rows_ok": summary.ok,
+                            "rows_error": summary.errors})
+    else:
+        print(_screen_text(summary, shown, args))
+    return EXIT_ROWS if summary.errors else EXIT_OK
+
+
+def _screen_text(summary, shown: pd.DataFrame, args) -> str:
+    lines = [f"screened {summary.rows} candidates: {summary.ok} predicted, "
+             f"{summary.errors} with input errors"]
+    if summary.windows:
+        lines[0] += f", {summary.passed_all} pass every window"
+    if args.output:
+        lines.append(f"results written to {args.output}")
+    if shown.empty:
+        return "\n".join(lines)
+    keep = [c for c in shown.columns if c in ("candidate", "status", "headroom phi/phi_max [-]",
+                                              "settling")
+            or re.fullmatch(r"window \d+ (viscosity \[.*\]|verdict)", c)]
+    compact = shown[keep].copy()
+    compact.columns = [c.replace("headroom phi/phi_max", "phi/phi_max") for c in keep]
+    lines += ["", table_text(compact, args.show)]
+    return "\n".join(lines)
+
+
+def cmd_pack(args) -> int:
+    from .batch import read_size_table
+
+    packing = _need("packing", "packing_estimates")
+    dist = read_size_table(args.sizes, field=str(args.sizes))
+    est = packing.packing_estimates(dist.diameters_m, dist.fractions,
+                                    include_simulation=args.simulation)
+    rows = [{"method": name, "phi_max [-]": float(value), "note": ""}
+            for name, value in est.estimates.items()]
+    rows += [{"method": name, "phi_max [-]": float("nan"), "note": f"skipped: {reason}"}
+             for name, reason in est.skipped.items()]
+    meta = {"d10_um": dist.d10_m * 1e6, "d50_um": dist.d50_m * 1e6, "d90_um": dist.d90_m * 1e6,
+            "sauter_diameter_um": dist.sauter_diameter_m * 1e6, "span": dist.span,
+            "classes": int(dist.diameters_m.size), "phi_max_default": est.default,
+            "phi_max_low": est.low, "phi_max_high": est.high}
+    head = (f"size table: {args.sizes} ({meta['classes']} classes)\n"
+            f"D10 {meta['d10_um']:.3g} um, D50 {meta['d50_um']:.3g} um, D90 "
+            f"{meta['d90_um']:.3g} um, Sauter {meta['sauter_diameter_um']:.3g} um, span "
+            f"{meta['span']:.3g}\n"
+            f"phi_max {est.default:.4g} (default estimator); range over the estimators "
+            f"{est.low:.4g} to {est.high:.4g}")
+    _emit(args, pd.DataFrame(rows, columns=["method", "phi_max [-]", "note"]), meta, head)
+    return EXIT_OK
+
+
+def cmd_fit(args) -> int:
+    labdata = _need("labdata", "read_lab_csv")
+    options = {}
+    if args.scenario:
+        options["formulation"] = _scenario(args.scenario)
+    for name, dimension, option in (("particle_density", "density", "--particle-density"),
+                                    ("liquid_density", "density", "--liquid-density")):
+        text = getattr(args, name)
+        if text:
+            options[f"{name}_kg_per_m3"] = _quantity(text, dimension, option)
+    if args.liquid_viscosity:
+        options["liquid_viscosity_Pa_s"] = _quantity(args.liquid_viscosity, "viscosity",
+                                                     "--liquid-viscosity")
+    data = labdata.read_lab_csv(args.data, **options)
+    if args.shear_rate:
+        data = data.at_shear_rate(_quantity(args.shear_rate, "shear_rate", "--shear-rate"))
+    result = data.fit(args.model)
+    rows = [{"parameter": name, "value": float(value),
+             f"{100 * result.confidence:g} % low": float(result.intervals[name][0]),
+             f"{100 * result.confidence:g} % high": float(result.intervals[name][1])}
+            for name, value in result.params.items()]
+    rows += [{"parameter": f"{name} (fixed)", "value": float(value)}
+             for name, value in result.fixed.items()]
+    meta = {"model": result.model, "points": result.n_points, "rmse_ln": result.rmse,
+            "r2_ln": result.r2, "aic": result.aic, "notes": list(result.notes)}
+    head = (f"fit of {result.model} to {result.n_points} points from {args.data}\n"
+            f"rmse {result.rmse:.3g} in ln(viscosity), R2 {result.r2:.4f}")
+    for note in result.notes:
+        head += f"\nnote: {note}"
+    _emit(args, pd.DataFrame(rows), meta, head)
+    return EXIT_OK
+
+
+def cmd_report(args) -> int:
+    from .report import write_report
+
+    unit = _check_viscosity_unit(args.viscosity_unit)
+    written = write_report(args.scenario, args.output, pdf_path=args.pdf, viscosity_unit=unit)
+    for path in written:
+        print(f"wrote {path}")
+    print(f"\nCaution: {CAUTIONS}")
+    return EXIT_OK
+
+
+def cmd_demo(args) -> int:
+    from .formulation import loading_sweep, max_loading, mixture, predict, solid_mass_fraction
+    from .report import inputs_table, liquid_table
+
+    unit = _check_viscosity_unit(args.viscosity_unit)
+    path = demo_folder() / DEMO_SCENARIO
+    form = _scenario(path)
+    mix = mixture(form)
+    out = io.StringIO()
+    w = out.write
+    w(f"Loadline demo: {form.name}\n{form.description}\nscenario file: {path}\n\n")
+    w("Liquid\n" + table_text(liquid_table(form, unit)) + "\n\n")
+    w("Dispersed ingredients\n" + table_text(inputs_table(form)) + "\n\n")
+    w(f"Solids: phi = {mix.phi_solids_effective:.4g} (with adsorbed layers), phi_max = "
+      f"{mix.phi_max:.4g}, headroom phi/phi_max = {mix.headroom:.3g}\n\n")
+    curve = predict(form, np.array([0.1, 1.0, 10.0, 100.0, 1000.0]))
+    w("Flow curve\n" + table_text(unit_columns(curve, unit)) + "\n\n")
+    sweep = _sweep(loading_sweep, form, 6, 100.0)
+    w("Loading sweep (solids scaled in their proportions; " + _sweep_basis(100.0)
+      + ")\n" + table_text(pd.DataFrame({
+        "phi solids [-]": sweep["phi"], "solids [wt%]": 100 * sweep["mass_fraction"],
+        "relative viscosity [-]": sweep["relative_viscosity"],
+        f"viscosity [{unit}]": from_si(sweep["viscosity_Pa_s"].to_numpy(), unit,
+                                       "viscosity")})) + "\n\n")
+    rows = []
+    for label, rate, limit in (("brushing", 1e4, 0.1), ("pumping", 100.0, 0.5),
+                               ("levelling", 0.1, 5.0)):
+        phi = max_loading(form, limit, rate)
+        rows.append({"window": label, "shear rate [1/s]": rate,
+                     f"limit [{unit}]": from_si(limit, unit, "viscosity"),
+                     "max phi solids [-]": phi,
+                     "max solids [wt%]": 100 * float(solid_mass_fraction(form, phi, mix)[0])})
+    w("Highest solids loading under a viscosity limit (example windows, invented limits)\n"
+      + table_text(pd.DataFrame(rows)) + "\n\n")
+    w("Next: loadline screen " + str(demo_folder() / DEMO_TABLE) + "\n")
+    w("      loadline report " + str(path) + " -o demo_report.html\n\n")
+    w("Caution: " + CAUTIONS + "\n")
+    sys.stdout.write(out.getvalue())
+    return EXIT_OK
+
+
+# -- parser -----------------------------------------------------------------------------------
+
+_EPILOG = "Caution: " + CAUTIONS
+
+_EXAMPLES = {
+    "predict": """\
+examples:
+  loadline predict data_demo/mineral_coating.loadline.json
+  loadline predict paint.loadline.json --shear-rate "0.1 1/s" --shear-rate "100 1/s"
+  loadline predict paint.loadline.json --from "1e-2 1/s" --to "1e4 1/s" --points 25 \\
+      --viscosity-unit mPa*s --csv > flow_curve.csv""",
+    "sweep": """\
+examples:
+  loadline sweep data_demo/ceramic_slip.loadline.json
+  loadline sweep slip.loadline.json --points 50 --shear-rate "100 1/s" --json""",
+    "max-load": """\
+examples:
+  loadline max-load data_demo/mineral_coating.loadline.json --limit "0.5 Pa*s" \\
+      --shear-rate "100 1/s"
+  loadline max-load slip.loadline.json --limit "500 mPa*s" --limit "2 Pa*s" \\
+      --shear-rate "100 1/s" --shear-rate "0.1 1/s" """,
+    "screen": """\
+examples:
+  loadline screen data_demo/candidates.csv
+  loadline screen doe.csv -o doe_results.csv --viscosity-unit mPa*s
+  loadline screen doe.xlsx -o doe_results.xlsx --progress
+  loadline screen doe.csv --json > doe_results.json
+
+The table has one candidate per row; the columns (units in square brackets) are described
+in predictor/batch.py and the README, e.g. 'ingredient 1 loading [wt%]', 'ingredient 1 d50
+[um]', 'window 1 shear rate [1/s]', 'window 1 max viscosity [Pa*s]'. Rows with bad input
+are reported row by row (stderr and the 'error' column); the other rows are predicted.
+Cells of the output that start with = + - @ are escaped for spreadsheets.
+Exit code 3 when some rows had bad input.""",
+    "models": """\
+examples:
+  loadline models
+  loadline models --kind suspension
+  loadline models --json""",
+    "pack": """\
+examples:
+  loadline pack data_demo/sizes_filler_coarse.csv
+  loadline pack sizes.csv --json
+
+The size table has a 'size [um]' column and 'passing [vol%]' (cumulative), 'amount [vol%]'
+(per class) or 'retained [g]' (any total).""",
+    "fit": """\
+examples:
+  loadline fit data_demo/lab_loading_series.csv --particle-density "2700 kg/m3" \\
+      --liquid-density "997 kg/m3" --liquid-viscosity "0.89 mPa*s"
+  loadline fit lab.csv --scenario paint.loadline.json --model maron-pierce --json""",
+    "report": """\
+examples:
+  loadline report data_demo/mineral_coating.loadline.json -o coating_report.html
+  loadline report slip.loadline.json -o slip.html --pdf slip.pdf --viscosity-unit mPa*s
+
+The HTML file is self-contained (charts embedded as SVG); it opens without a network.""",
+    "demo": """\
+examples:
+  loadline demo
+  loadline demo --viscosity-unit mPa*s""",
+}
+
+
+def _add_output(parser, machine: bool = True, viscosity: bool = True) -> None:
+    if machine:
+        group = parser.add_mutually_exclusive_group()
+        group.add_argument("--json", action="store_true", help="print JSON instead of a table")
+        group.add_argument("--csv", action="store_true", help="print CSV instead of a table")
+    if viscosity:
+        parser.add_argument("--viscosity-unit", default="Pa*s", metavar="UNIT",
+                            help="unit of viscosities in the output (default Pa*s; e.g. "
+                                 "mPa*s, cP)")
+
+
+def build_parser() -> argparse.ArgumentParser:
+    parser = argparse.ArgumentParser(
+        prog="loadline",
+        description="Loadline: viscosity of suspensions and emulsions from what is known "
+                    "before the lab trial.",
+        epilog="commands: predict, sweep, max-load, screen, pack, fit, report, models, demo. "
+               "Run 'loadline COMMAND --help' for examples.\n\n" + _EPILOG,
+        formatter_class=argparse.RawDescriptionHelpFormatter)
+    from importlib import metadata
+
+    try:
+        version = metadata.version("loadline")
+    except metadata.PackageNotFoundError:
+        version = "unknown"
+    parser.add_argument("--version", action="version", version=f"loadline {version}")
+    sub = parser.add_subparsers(dest="command", metavar="COMMAND")
+
+    def add(name, help_text, func):
+        p = sub.add_parser(name, help=help_text, description=help_text,
+                           epilog=_EXAMPLES[name] + "\n\n" + _EPILOG,
+                           formatter_class=argparse.RawDescriptionHelpFormatter)
+        p.set_defaults(func=func)
+        return p
+
+    p = add("predict", "flow curve of a scenario file (*.loadline.json)", cmd_predict)
+    p.add_argument("scenario", help="scenario file (*.loadline.json)")
+    p.add_argument("--shear-rate", action="append", metavar="RATE",
+                   help='a shear rate with its unit, e.g. "100 1/s" (repeatable)')
+    p.add_argument("--from", dest="low", default="1e-3 1/s", metavar="RATE",
+                   help="lowest shear rate of the default grid (default 1e-3 1/s)")
+    p.add_argument("--to", dest="high", default="1e5 1/s", metavar="RATE",
+                   help="highest shear rate of the default grid (default 1e5 1/s)")
+    p.add_argument("--points", type=int, default=9, help="points of the grid (default 9)")
+    _add_output(p)
+
+    p = add("sweep", "viscosity against solids loading, up to the packing limit", cmd_sweep)
+    p.add_argument("scenario", help="scenario file (*.loadline.json)")
+    p.add_argument("--points", type=int, default=11, help="number of loadings (default 11)")
+    p.add_argument("--shear-rate", metavar="RATE",
+                   help='evaluate the full flow curve at this rate, e.g. "100 1/s" '
+                        "(default: the Newtonian view)")
+    _add_output(p)
+
+    p = add("max-load", "highest solids loading under a viscosity limit", cmd_max_load)
+    p.add_argument("scenario", help="scenario file (*.loadline.json)")
+    p.add_argument("--limit", action="append", required=True, metavar="VISCOSITY",
+                   help='viscosity limit with its unit, e.g. "0.5 Pa*s" (repeatable)')
+    p.add_argument("--shear-rate", action="append", metavar="RATE",
+                   help='shear rate of the limit, e.g. "100 1/s" (default 1 1/s)')
+    _add_output(p)
+
+    p = add("screen", "predict a table of candidate formulations (CSV or Excel)", cmd_screen)
+    p.add_argument("table", help="candidate table (.csv or .xlsx)")
+    p.add_argument("-o", "--output", help="write all result rows here (.csv, .xlsx or .json)")
+    p.add_argument("--chunk-rows", type=int, default=50_000,
+                   help="rows computed at once; bounds the memory (default 50000)")
+    p.add_argument("--show", type=int, default=20, help="rows shown in the table (default 20)")
+    p.add_argument("--progress", action=argparse.BooleanOptionalAction, default=None,
+                   help="progress bar on stderr (default: when stderr is a terminal)")
+    _add_output(p)
+
+    p = add("pack", "packing limit phi_max of a size table, every estimator", cmd_pack)
+    p.add_argument("sizes", help="size table CSV")
+    p.add_argument("--simulation", action="store_true",
+                   help="also run the jamming simulation (takes seconds)")
+    _add_output(p, viscosity=False)
+
+    p = add("fit", "calibrate a relation to lab viscosities (CSV)", cmd_fit)
+    p.add_argument("data", help="lab CSV (units in the headers)")
+    p.add_argument("--model", default="krieger-dougherty", help="relation to fit")
+    p.add_argument("--scenario", help="scenario giving the densities and the liquid")
+    p.add_argument("--particle-density", metavar="DENSITY", help='e.g. "2700 kg/m3"')
+    p.add_argument("--liquid-density", metavar="DENSITY", help='e.g. "997 kg/m3"')
+    p.add_argument("--liquid-viscosity", metavar="VISCOSITY", help='e.g. "0.89 mPa*s"')
+    p.add_argument("--shear-rate", metavar="RATE",
+                   help="use the rows measured at this shear rate")
+    _add_output(p, viscosity=False)
+
+    p = add("report", "write an HTML (and optionally PDF) report of a scenario", cmd_report)
+    p.add_argument("scenario", help="scenario file (*.loadline.json)")
+    p.add_argument("-o", "--output", default="loadline_report.html",
+                   help="HTML file to write (default loadline_report.html)")
+    p.add_argument("--pdf", help="also write this PDF file")
+    _add_output(p, machine=False)
+
+    p = add("models", "the published relations Loadline knows, with their sources", cmd_models)
+    p.add_argument("--kind", choices=["suspension", "emulsion", "packing", "liquid", "shear"],
+                   help="only relations of this kind")
+    _add_output(p, viscosity=False)
+
+    p = add("demo", "run the main job on the bundled demo scenario", cmd_demo)
+    _add_output(p, machine=False)
+    return parser
+
+
+def main(argv: list[str] | None = None) -> int:
+    """Entry point of the `loadline` command; returns the exit code."""
+    parser = build_parser()
+    try:
+        args = parser.parse_args(argv)
+    except SystemExit as exit_:
+        return int(exit_.code or 0)
+    if not getattr(args, "command", None):
+        parser.print_help()
+        return EXIT_USAGE
+    try:
+        with warnings.catch_warnings(record=True) as caught:
+            warnings.simplefilter("always")
+            code = args.func(args)
+        for message in dict.fromkeys(str(w.message) for w in caught):
+            print(f"loadline: note: {message}", file=sys.stderr)
+        return code
+    except MissingPartError as err:
+        print(f"loadline: not available yet: {err}", file=sys.stderr)
+        return EXIT_MISSING
+    except LoadlineError as err:
+        print(f"loadline: error: {err}", file=sys.stderr)
+        return EXIT_INPUT
+    except BrokenPipeError:   # output piped into `head` and closed early: not an error
+        sys.stderr.close()
+        return EXIT_OK
+    except OSError as err:
+        print(f"loadline: error: {err.strerror or err}: {err.filename or ''}", file=sys.stderr)
+        return EXIT_INPUT
+    except KeyboardInterrupt:
+        print("loadline: interrupted", file=sys.stderr)
+        return 130
+
+
+if __name__ == "__main__":
+    raise SystemExit(main())

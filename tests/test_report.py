@@ -1,0 +1,99 @@
+"""The scenario report: one self-contained HTML file (and a PDF), opened and checked."""
+
+from __future__ import annotations
+
+import html.parser
+import pathlib
+import re
+
+import pytest
+
+from predictor import formulation as fm
+from predictor.cli import CAUTIONS
+from predictor.report import write_report
+from predictor.scenario import read_scenario
+
+DEMO = pathlib.Path(__file__).resolve().parents[1] / "data_demo"
+SECTIONS = ["Inputs", "Summary", "Flow curve", "Loading sweep and packing range",
+            "Process windows", "Uncertainty", "Storage (settling and creaming)",
+            "Relations used and their sources", "Cautions"]
+
+
+class _Collector(html.parser.HTMLParser):
+    def __init__(self):
+        super().__init__()
+        self.tags, self.h2, self._in_h2, self.refs = [], [], False, []
+
+    def handle_starttag(self, tag, attrs):
+        self.tags.append(tag)
+        self._in_h2 = tag == "h2"
+        for name, value in attrs:
+            if name in ("src", "href") and value:
+                self.refs.append(value)
+
+    def handle_endtag(self, tag):
+        self._in_h2 = False if tag == "h2" else self._in_h2
+
+    def handle_data(self, data):
+        if self._in_h2:
+            self.h2.append(data)
+
+
+@pytest.fixture(scope="module")
+def coating(tmp_path_factory):
+    folder = tmp_path_factory.mktemp("report")
+    paths = write_report(DEMO / "mineral_coating.loadline.json", folder / "coating.html",
+                         pdf_path=folder / "coating.pdf", viscosity_unit="mPa*s")
+    return paths
+
+
+def test_sections_in_order(coating):
+    parser = _Collector()
+    parser.feed(coating[0].read_text(encoding="utf-8"))
+    titles = [re.sub(r"^\d+\.\s*", "", t) for t in parser.h2]
+    assert titles == SECTIONS
+
+
+def test_self_contained_with_embedded_charts(coating):
+    text = coating[0].read_text(encoding="utf-8")
+    parser = _Collector()
+    parser.feed(text)
+    assert parser.tags.count("svg") >= 2            # flow curve and loading sweep
+    assert "script" not in parser.tags and "link" not in parser.tags
+    assert parser.refs == []                        # nothing fetched from anywhere
+    assert "Flow curve" in text and "Loading sweep" in text
+
+
+def test_inputs_echoed_with_units(coating):
+    text = coating[0].read_text(encoding="utf-8")
+    form = read_scenario(DEMO / "mineral_coating.loadline.json")
+    for ing in form.ingredients:
+        assert ing.name in text
+        assert f"{100 * ing.loading:.4g} wt%" in text
+    for unit in ("degC", "kg/m3", "D50 [um]", "layer [nm]", "mPa*s"):
+        assert unit in text
+
+
+def test_numbers_match_the_core(coating):
+    # The summary's viscosity at 1 1/s is the core's value (in mPa*s, 4 digits).
+    form = read_scenario(DEMO / "mineral_coating.loadline.json")
+    eta = float(fm.predict(form, 1.0)["viscosity_Pa_s"].iloc[0]) * 1e3
+    assert f"{eta:.4g}" in coating[0].read_text(encoding="utf-8")
+
+
+def test_cautions_models_and_sources(coating):
+    text = coating[0].read_text(encoding="utf-8").replace("&#x27;", "'")
+    assert text.count(CAUTIONS) == 2                # top box and last section
+    assert "krieger-dougherty" in text and "Krieger &amp; Dougherty" in text
+
+
+def test_pdf_written(coating):
+    data = coating[1].read_bytes()
+    assert data.startswith(b"%PDF") and len(data) > 10_000
+
+
+def test_emulsion_only_scenario(tmp_path):
+    (path,) = write_report(DEMO / "hand_cream.loadline.json", tmp_path / "cream.html")
+    text = path.read_text(encoding="utf-8")
+    assert "No solids: there is no solids loading to sweep." in text
+    assert "phan-thien-pham" in text
