@@ -30,6 +30,7 @@ import pandas as pd
 from . import composition, liquids, packing, shear, sizes
 from .errors import InputRangeError, ValidityWarning
 from .registry import get_model
+from .viscosity import relative_viscosity
 
 SOLID, DROPLET = "solid", "droplet"
 RANDOM_CLOSE_SPHERES = 0.64  # Berryman, Phys. Rev. A 27, 1053 (1983): 0.64 +- 0.02
@@ -282,7 +283,8 @@ def droplet_factor(formulation: Formulation, mix: Mixture) -> float:
     spec = get_model(formulation.droplet_model, kind="emulsion")
     params = {"viscosity_ratio": ratio} if "viscosity_ratio" in spec.param_names() else {}
     params.update({k: v for k, v in formulation.model_params.items() if k in spec.param_names()})
-    return float(spec.func(min(phi_d, 1.0), **spec.check_params(params)))
+    # Through the dispatcher, so that droplets past a relation's range are reported.
+    return float(relative_viscosity(min(phi_d, 1.0), model=spec.name, **params))
 
 
 #: Zero-shear over high-shear packing limit of Brownian hard spheres, 0.63/0.71 (de Kruif et
@@ -337,12 +339,14 @@ def flow_curve_of(formulation: Formulation, shear_rate_1_per_s=None,
     phi_max = float(rel.pop("phi_max", mix.phi_max))
     phi = mix.phi_solids_effective
     medium = droplet_factor(formulation, mix)
-    if phi >= 1.0:
+    if phi >= 1.0 or not np.isfinite(medium):
         inf = np.full_like(rates, np.inf)
         eta_l = np.asarray(liquids.liquid_viscosity(rates, law, **params)) * np.ones_like(rates)
         return shear.FlowCurve(rates, inf, inf, inf, eta_l, np.full(rates.shape, "jammed"),
                                {"shear_jamming_1_per_s": 0.0},
-                               (f"phi = {phi:.3g}: the solids fill the volume; no flow.",))
+                               (f"phi = {phi:.3g} of solids with droplets at "
+                                f"{mix.phi_droplets:.3g}: the dispersed phases are jammed; "
+                                "no flow is predicted.",))
     onset = formulation.thickening_onset_stress_Pa
     frictional = formulation.phi_max_frictional
     if onset is not None and frictional is None:
@@ -559,6 +563,10 @@ def max_loading(formulation: Formulation, viscosity_limit_Pa_s: float,
     if not np.isfinite(rate) or rate <= 0:
         raise InputRangeError("shear_rate_1_per_s", rate, "a positive, finite shear rate")
     mix = mixture(formulation)
+    if not mix.is_solid.any():
+        raise InputRangeError("ingredients", "no solid",
+                              "at least one solid ingredient to scale (for droplets, use the "
+                              "phase-ratio questions in predictor.phase_ratio)")
     rates = np.array([rate])
 
     def too_thick(x):

@@ -639,6 +639,8 @@ def flow_curve(shear_rate_1_per_s, phi, *, liquid_law_name="newtonian", liquid_p
         if value is not None and np.ndim(value) != 0:
             raise InputRangeError(name, f"an array of shape {np.shape(value)}", "a single number")
     phi = float(in_range(phi, "phi", 0.0, 1.0, high_open=True))
+    critical_reduced_stress = float(positive(critical_reduced_stress, "critical_reduced_stress"))
+    points_per_decade = float(in_range(points_per_decade, "points_per_decade", 5.0, 1000.0))
     phi_hs = float(in_range(phi_max_high_shear, "phi_max_high_shear", 0.0, 1.0, low_open=True))
     if phi_max_zero_shear is not None:
         phi_max_zero_shear = float(in_range(phi_max_zero_shear, "phi_max_zero_shear", 0.0,

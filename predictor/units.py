@@ -84,8 +84,9 @@ def parse_quantity(text, dimension: str, field: str) -> float:
     try:
         q = Q_(number, ureg.parse_units(unit))
         return float(q.m_as(target)) if target else float(q.to("dimensionless").magnitude)
-    except (pint.errors.UndefinedUnitError, pint.errors.DimensionalityError,
-            AttributeError, ValueError, TypeError, AssertionError) as err:
+    except Exception as err:  # noqa: BLE001  pint's parser raises many kinds on odd text
+        if isinstance(err, UnitError):
+            raise
         raise UnitError(f"{field} = {text!r} could not be converted to {target or 'a pure number'}"
                         f" ({type(err).__name__}).") from None
 

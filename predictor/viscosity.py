@@ -44,5 +44,5 @@ def relative_viscosity(phi, model: str = "krieger-dougherty", **params):
     result = spec.func(phi, **values)
     message = spec.validity_message(phi, values)
     if message:
-        warnings.warn(message, ValidityWarning, stacklevel=2)
+        warnings.warn(message, ValidityWarning, stacklevel=3)  # past the guard wrapper
     return result
