@@ -145,3 +145,25 @@ def models_markdown(kind: str | None = None) -> str:
 
 def _short(value) -> str:
     return f"{value:g}" if isinstance(value, int | float) and not isinstance(value, bool) else "-"
+
+
+def _write_readme_table(path) -> None:
+    """Replace the table between the README's models markers with `models_markdown()`."""
+    import pathlib
+
+    # Run as a script this module is __main__: read the registry of the imported package.
+    from predictor.registry import models_markdown as table
+
+    path = pathlib.Path(path)
+    text = path.read_text()
+    start = text.index("<!-- models:start -->") + len("<!-- models:start -->\n")
+    end = text.index("<!-- models:end -->")
+    path.write_text(text[:start] + table() + text[end:])
+
+
+if __name__ == "__main__":
+    import pathlib
+    import sys
+
+    if sys.argv[1:] == ["--readme"]:
+        _write_readme_table(pathlib.Path(__file__).parents[1] / "README.md")
