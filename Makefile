@@ -28,10 +28,11 @@ test: $(STAMP) browser
 	$(BIN)/python -m pytest -q -n 2 || [ $$? -eq 5 ]
 
 bench: $(STAMP)
-	$(BIN)/python tests/benchmarks/run.py
+	$(BIN)/python tests/benchmarks/run.py --markdown artifacts/bench.md
 
 fuzz: $(STAMP)
-	HYPOTHESIS_PROFILE=fuzz $(BIN)/python -m pytest -q tests/test_fuzz.py -p no:randomly -s
+	HYPOTHESIS_PROFILE=fuzz LOADLINE_APP_FUZZ_STEPS=400 $(BIN)/python -m pytest -q \
+	    tests/test_fuzz.py tests/app/test_app_fuzz.py
 
 lint: $(STAMP)
 	$(BIN)/ruff check predictor app tests

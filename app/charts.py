@@ -33,7 +33,8 @@ def config(big: bool = False) -> dict:
         "axis": {"labelFontSize": 12 * k, "titleFontSize": 13 * k, "grid": True,
                  "gridColor": "#E6E6E6", "titleFontWeight": "normal"},
         "legend": {"labelFontSize": 12 * k, "titleFontSize": 12 * k, "orient": "bottom",
-                   "direction": "horizontal", "columns": 4, "symbolStrokeWidth": 3},
+                   "direction": "horizontal", "columns": 4, "symbolStrokeWidth": 3,
+                   "titleLimit": 400, "labelLimit": 300},   # no "Which liquid is contin…"
         "title": {"fontSize": 15 * k, "anchor": "start", "fontWeight": "normal"},
         "view": {"strokeWidth": 0},
         "text": {"fontSize": 12 * k},
@@ -305,7 +306,7 @@ def flow_curve(curve: pd.DataFrame, *, windows: pd.DataFrame, x_title: str, y_ti
         layers.append(base.mark_line(color=BLUE, strokeWidth=3 if big else 2.4).encode(
             y=y_enc, tooltip=[alt.Tooltip("rate:Q", format=".3g", title=x_title),
                               alt.Tooltip(f"{field}:Q", format=".4g", title=title)]))
-        if with_regime and "regime" in data:
+        if with_regime and "regime" in data and len(data):
             regimes = list(dict.fromkeys(data["regime"]))
             bands = data.assign(rate_next=data["rate"].shift(-1).fillna(data["rate"].iloc[-1]))
             layers.append(fig.chart(bands).mark_rect(y=alt.expr("height - 9"),

@@ -9,10 +9,14 @@ shows them with st.error.
 
 from __future__ import annotations
 
+import contextlib
+import csv
 import dataclasses
 import json
+import re
 import warnings
-from collections.abc import Callable
+import zipfile
+from collections.abc import Callable, Iterator
 
 import numpy as np
 import pandas as pd
@@ -37,6 +41,33 @@ def _captured(func: Callable, *args, **kwargs):
             if text not in messages:
                 messages.append(text)
     return result, messages
+
+
+#: What a parser may raise on a malformed file besides LoadlineError (the core names most
+#: problems itself; these are the ones it does not catch yet).
+PARSE_ERRORS = (ValueError, TypeError, KeyError, IndexError, csv.Error, UnicodeError,
+                zipfile.BadZipFile, EOFError)
+
+
+@contextlib.contextmanager
+def reading(source: str) -> Iterator[None]:
+    """Parse a user's file: a parser failure is re-raised as a ScenarioError naming the file."""
+    try:
+        yield
+    except predictor.LoadlineError:
+        raise
+    except PARSE_ERRORS as err:
+        raise predictor.ScenarioError(
+            f"{source} could not be read as a table ({type(err).__name__}: {err}). Check the "
+            "quotes, separators and header line.") from None
+
+
+def safe_file_name(name: str, default: str = "upload") -> str:
+    """An uploaded file's own name for use inside a temporary folder: no folder parts, no
+    leading dots, only letters, digits, spaces and ``._-`` (others become ``_``)."""
+    base = re.split(r"[\\/]", str(name))[-1]
+    base = re.sub(r"[^\w. -]+", "_", base).strip(" .")
+    return base or default
 
 
 @st.cache_data(**CACHE)
@@ -235,7 +266,7 @@ def process_table(scenario: str) -> dict:
 def droplet_inputs(scenario: str) -> list[dict]:
     """What the Droplets page needs of each droplet ingredient, read from the formulation."""
     form = formulation(scenario)
-    mix = fm.mixture(form)
+    mix, _ = _captured(fm.mixture, form)    # its warnings are shown with the page's results
     out = []
     for k, ing in enumerate(form.ingredients):
         if ing.kind != fm.DROPLET:
@@ -292,7 +323,9 @@ def lab_data(text: str, source: str, scenario: str) -> dict:
     def run():
         buffer = io.StringIO(text)
         buffer.name = source
-        data = labdata.read_lab_csv(buffer, formulation=formulation(scenario))
+        form = formulation(scenario)
+        with reading(source):
+            data = labdata.read_lab_csv(buffer, formulation=form)
         return {"table": data.table, "headers": dict(data.headers),
                 "notes": list(data.notes), "liquid_viscosity_Pa_s": data.liquid_viscosity_Pa_s}
     return dict(zip(("value", "warnings"), _captured(run), strict=True))
@@ -309,7 +342,9 @@ def calibrate(text: str, source: str, scenario: str, model: str, shear_rate: flo
     def run():
         buffer = io.StringIO(text)
         buffer.name = source
-        data = labdata.read_lab_csv(buffer, formulation=formulation(scenario))
+        form = formulation(scenario)
+        with reading(source):
+            data = labdata.read_lab_csv(buffer, formulation=form)
         if shear_rate is not None:
             data = data.at_shear_rate(shear_rate)
         result = data.fit(model)
@@ -343,9 +378,10 @@ def size_table(data: bytes, name: str) -> dict:
     from predictor import batch
 
     with tempfile.TemporaryDirectory() as folder:
-        path = pathlib.Path(folder) / pathlib.Path(name).name
+        path = pathlib.Path(folder) / safe_file_name(name, "sizes.csv")
         path.write_bytes(data)
-        return batch.read_size_table(path, field=name).to_dict()
+        with reading(name):
+            return batch.read_size_table(path, field=name).to_dict()
 
 
 @st.cache_data(**CACHE)
@@ -399,7 +435,7 @@ def blend(dists_json: tuple[str, ...], densities: tuple[float, ...],
 def solid_distributions(scenario: str) -> list[dict]:
     """Name, density, loading and size distribution (JSON) of each solid ingredient."""
     form = formulation(scenario)
-    mix = fm.mixture(form)
+    mix, _ = _captured(fm.mixture, form)    # its warnings are shown with the page's results
     return [{"index": k, "name": ing.name, "density": ing.density_kg_per_m3,
              "phi": float(mix.phi[k]),
              "dist_json": json.dumps(ing.distribution().to_dict(), sort_keys=True)}

@@ -34,3 +34,4 @@ except Exception as err:  # a bug, not a user error: say so plainly, log the det
     st.error(f"This page met an unexpected problem ({type(err).__name__}: {err}). The "
              "scenario in the sidebar is kept; please report what you did.",
              icon=":material/bug_report:")
+state.snapshot()

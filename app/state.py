@@ -148,9 +148,27 @@ def _session(ss):
     return st.session_state if ss is None else ss
 
 
+SNAPSHOT_KEY = "_scenario_snapshot"
+
+
+def snapshot(ss: MutableMapping | None = None) -> None:
+    """Copy every declared value under one key no widget owns (call at the end of a run).
+
+    Streamlit may drop a widget's value when a run is interrupted by the next interaction
+    (a quick click on another page while the sidebar is still being drawn); `init()` then
+    restores the scenario from this copy instead of falling back to the defaults.
+    """
+    ss = _session(ss)
+    ss[SNAPSHOT_KEY] = {key: ss[key] for key in all_keys(ss) if key in ss}
+
+
 def init(ss: MutableMapping | None = None) -> None:
     """Declare every key with its default (`setdefault`); load the opening scenario once."""
     ss = _session(ss)
+    kept = ss.get(SNAPSHOT_KEY) or {}
+    for key in all_keys(ss):
+        if key not in ss and key in kept:
+            ss[key] = kept[key]
     for key, value in DEFAULTS.items():
         ss.setdefault(key, type(value)(value) if isinstance(value, list | dict) else value)
     for i in range(int(ss["n_ing"])):

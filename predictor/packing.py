@@ -1359,7 +1359,7 @@ def intrinsic_viscosity_for_aspect_ratio(aspect_ratio):
     >>> round(intrinsic_viscosity_for_aspect_ratio(5.0), 3)
     5.796
     """
-    p = positive(aspect_ratio, "aspect_ratio")
+    p = in_range(aspect_ratio, "aspect_ratio", 1e-3, 1e3)
     with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
         oblate = (2.5 + 32.0 / (15.0 * np.pi) * (1.0 / p - 1.0)
                   - 0.628 * (1.0 - p) / (1.0 - 0.075 * p))

@@ -16,7 +16,8 @@ settings.register_profile("fuzz", deadline=None, print_blob=True,
 settings.load_profile(os.environ.get("HYPOTHESIS_PROFILE", "ci"))
 
 #: Examples per fuzz test: a few hundred in CI, many thousands under `make fuzz`.
-FUZZ_EXAMPLES = 20_000 if os.environ.get("HYPOTHESIS_PROFILE") == "fuzz" else 300
+FUZZ_EXAMPLES = int(os.environ.get(
+    "LOADLINE_FUZZ_EXAMPLES", 20_000 if os.environ.get("HYPOTHESIS_PROFILE") == "fuzz" else 300))
 
 FUZZ_CASES: collections.Counter = collections.Counter()
 

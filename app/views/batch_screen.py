@@ -9,7 +9,7 @@ import pandas as pd
 import streamlit as st
 
 import predictor
-from app import charts, state, widgets
+from app import charts, compute, state, widgets
 
 state.init()
 ss = st.session_state
@@ -30,7 +30,7 @@ def _uploaded() -> None:
             if not upload.name.lower().endswith(SUFFIXES):
                 raise predictor.ScenarioError(f"{upload.name} has the wrong type; expected a "
                                               ".csv or .xlsx file.")
-            kept[pathlib.Path(upload.name).name] = upload.getvalue()
+            kept[compute.safe_file_name(upload.name, "table.csv")] = upload.getvalue()
         except predictor.LoadlineError as err:
             problems.append(str(err))
     ss["batch_files"] = kept
@@ -46,6 +46,25 @@ def _use_demo() -> None:
     ss["batch_result"] = None
 
 
+def _outside_size_tables(path: pathlib.Path) -> list[str]:
+    """Size-table cells naming a file by a folder path (absolute, or with / \\ or ..).
+
+    The candidate table comes from the user, and the core reads a size table relative to the
+    table's folder or by an absolute path: only bare names of uploaded files are accepted.
+    """
+    from predictor import batch
+
+    bad = []
+    for chunk in batch.read_table(path):
+        for column in chunk.columns:
+            if "size table" not in str(column).lower():
+                continue
+            for cell in chunk[column].dropna().astype(str).str.strip():
+                if cell and (cell != compute.safe_file_name(cell, "") or cell.startswith(".")):
+                    bad.append(cell)
+    return sorted(set(bad))
+
+
 def run_screen(table_name: str, unit: str) -> None:
     """Screen the table with a progress bar; keep the result in the session."""
     from predictor import batch
@@ -55,14 +74,28 @@ def run_screen(table_name: str, unit: str) -> None:
         for name, data in ss["batch_files"].items():
             (pathlib.Path(folder) / name).write_bytes(data)
         path = pathlib.Path(folder) / table_name
-        total = batch.count_rows(path) or 1
+        try:
+            with compute.reading(table_name):
+                outside = _outside_size_tables(path)
+                total = batch.count_rows(path) or 1
+            if outside:
+                raise predictor.ScenarioError(
+                    f"{table_name} names size tables by a folder path ("
+                    + ", ".join(outside[:3]) + "); here a size table must be one of the "
+                    "files uploaded with the candidate table, named without a folder.")
+        except predictor.LoadlineError as err:
+            bar.empty()
+            ss["batch_message"] = str(err)
+            ss["batch_result"] = None
+            return
 
         def progress(done: int) -> None:
             bar.progress(min(done / total, 1.0), text=f"Screening… {done} of {total} rows")
 
         try:
-            summary, result = batch.screen_file(path, viscosity_unit=unit, keep=-1,
-                                                progress=progress)
+            with compute.reading(table_name):
+                summary, result = batch.screen_file(path, viscosity_unit=unit, keep=-1,
+                                                    progress=progress)
         except predictor.LoadlineError as err:
             bar.empty()
             ss["batch_message"] = str(err)

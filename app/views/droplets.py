@@ -36,10 +36,10 @@ def controls(drops: list[dict]) -> None:
     st.selectbox("Yield stress when jammed", list(JAMMED), key="drop_jammed",
                  format_func=JAMMED.get)
     v = state.label(ss["unit_viscosity"])
-    a, b = st.columns([3, 2])
-    a.number_input(f"Target viscosity [{v}] (empty: none)", key="drop_target", format="%.4g")
-    b.selectbox("on branch", list(BRANCH_NAMES), key="drop_branch",
-                format_func=BRANCH_NAMES.get)
+    # one under the other: side by side, the branch picker was too narrow to read
+    st.number_input(f"Target viscosity [{v}] (empty: none)", key="drop_target", format="%.4g")
+    st.selectbox("Target on the branch", list(BRANCH_NAMES), key="drop_branch",
+                 format_func=BRANCH_NAMES.get)
 
 
 def body() -> None:

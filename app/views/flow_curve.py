@@ -105,6 +105,17 @@ def body() -> None:
     windows["high"] = from_si(windows["high"].to_numpy(), r_unit, "shear_rate")
     markers = pd.DataFrame([{"rate": from_si(v, r_unit, "shear_rate"),
                              "label": _marker_label(k)} for k, v in onsets.items()])
+    drawable = np.isfinite(frame["viscosity"]) & (frame["viscosity"] > 0)
+    if not drawable.any():
+        with right:
+            st.warning(f"No flow at any shear rate from {widgets.rate_text(low)} to "
+                       f"{widgets.rate_text(high)} 1/s: the solids are at or above the packing "
+                       f"limit (headroom φ/φmax = {curve.attrs.get('headroom', float('nan')):.2f})"
+                       ", so there is no flow curve to draw. Lower the loading on the sidebar.",
+                       icon=":material/block:")
+            widgets.show_warnings(messages)
+        process_table()
+        return
     with right:
         build = functools.partial(
             charts.flow_curve, frame, windows=windows,

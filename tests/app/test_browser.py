@@ -110,6 +110,7 @@ def page(server, browser, request):
     tab = context.new_page()
     tab.goto(server, wait_until="domcontentloaded")
     tab.locator("h1").first.wait_for(timeout=WAIT_MS)
+    _settled(tab)
     yield tab
     report = getattr(request.node, "rep_call", None)
     if report is not None and report.failed:        # keep what the browser showed
@@ -125,15 +126,32 @@ def _metric(tab, label: str):
 
 def _shot(tab, name: str) -> None:
     SHOTS.mkdir(parents=True, exist_ok=True)
-    tab.wait_for_load_state("networkidle")
+    _settled(tab)
     tab.wait_for_timeout(1500)          # let the charts and tables finish drawing
     tab.screenshot(path=str(SHOTS / f"{name}.png"))
+
+
+def _settled(tab) -> None:
+    """Wait until the script run started by the last interaction has finished.
+
+    The app talks over a websocket, so "networkidle" says nothing about a run in progress;
+    Streamlit marks the app root with its run state instead. A click sent while a run is
+    still drawing interrupts that run, so each interaction waits for the previous one.
+    """
+    from playwright.sync_api import expect
+
+    app = tab.get_by_test_id("stApp")
+    try:    # the run may not have started yet when we look
+        expect(app).not_to_have_attribute("data-test-script-state", "notRunning", timeout=1000)
+    except AssertionError:
+        pass    # or it was over already
+    expect(app).to_have_attribute("data-test-script-state", "notRunning", timeout=WAIT_MS)
 
 
 def _go(tab, title: str) -> None:
     tab.get_by_test_id("stSidebarNav").get_by_text(title, exact=True).click()
     tab.locator("h1", has_text=title).wait_for(timeout=WAIT_MS)
-    tab.wait_for_load_state("networkidle")
+    _settled(tab)
 
 
 def _viscosity_mPa_s(form) -> str:
@@ -153,7 +171,7 @@ def test_loading_change_updates_metric_and_chart(page):
     before = chart.screenshot()
     _shot(page, "loading-sweep")
     sidebar = page.get_by_test_id("stSidebar")
-    sidebar.get_by_text("1 · ground mineral filler").click()
+    sidebar.get_by_text(f"1 · {demo().ingredients[0].name}").click()
     box = sidebar.get_by_label("Loading").first
     box.fill("42")
     box.press("Enter")
@@ -174,6 +192,7 @@ def test_every_page_opens_and_is_saved_as_a_screenshot(page):
         assert not page.get_by_text("unexpected problem").count()
         _shot(page, name)
     page.get_by_role("button", name="Use the demo candidates").click()
+    _settled(page)
     page.get_by_role("button", name="Screen the candidates").click()
     expect(_metric(page, "Candidates")).to_have_text("13", timeout=WAIT_MS)
     _shot(page, "batch-screen-results")
@@ -208,22 +227,34 @@ def test_size_table_and_lab_data_uploads(page):
 
 
 def test_presentation_layout_and_demo_switch(page):
+    from playwright.sync_api import TimeoutError as PlaywrightTimeout
     from playwright.sync_api import expect
 
     sidebar = page.get_by_test_id("stSidebar")
     sidebar.get_by_text("Open, save, demos").click()
     picker = sidebar.get_by_test_id("stSelectbox").filter(has_text="Demo scenarios")
-    picker.click()
-    page.get_by_role("option", name=demo("hand_cream").name).click()
-    page.wait_for_load_state("networkidle")
+    expect(picker).to_be_visible(timeout=WAIT_MS)
+    option = page.get_by_role("option", name=demo("hand_cream").name)
+    for _ in range(3):      # a click during the expander's opening animation can miss
+        picker.click()
+        try:
+            option.wait_for(timeout=5_000)
+            break
+        except PlaywrightTimeout:
+            page.keyboard.press("Escape")
+    option.click()
+    _settled(page)
     sidebar.get_by_role("button", name="Open this demo").click()
+    _settled(page)
     expect(page.get_by_test_id("stMain").get_by_text(demo("hand_cream").name)).to_be_visible(
         timeout=WAIT_MS)
     expect(sidebar.get_by_text(f"Liquid: {demo('hand_cream').liquid.name}")).to_be_visible(
         timeout=WAIT_MS)
     sidebar.get_by_text("Presentation layout (large type)").click()
-    page.wait_for_timeout(1500)
+    _settled(page)
     _go(page, "Droplets")
+    expect(sidebar.get_by_text(f"1 · {demo('hand_cream').ingredients[0].name}")).to_be_visible(
+        timeout=WAIT_MS)
     expect(page.get_by_test_id("stMetric").filter(has_text="Viscosity now")).to_contain_text(
         "regime: concentrated", timeout=WAIT_MS)
     _shot(page, "droplets-presentation")

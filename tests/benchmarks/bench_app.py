@@ -8,11 +8,16 @@ case). The first run of a page (imports, cold caches, numba) is reported apart.
 from __future__ import annotations
 
 import itertools
+import logging
 import statistics
 import time
 
 from tests.app.conftest import page
 from tests.benchmarks.common import row
+
+# AppTest outside a server logs a harmless 'missing ScriptRunContext' line per element.
+for _name in ("streamlit", "streamlit.runtime.scriptrunner_utils.script_run_context"):
+    logging.getLogger(_name).setLevel(logging.ERROR)
 
 GOAL = "under 100 ms per interaction"
 
