@@ -407,8 +407,12 @@ def _distribution(ctx: _Context, table: str, d50: float, spread: float):
     if key not in ctx.size_cache:
         try:
             if table:
-                path = pathlib.Path(table)
-                path = path if path.is_absolute() else ctx.base_dir / path
+                # Only files beside the candidate table: never a path that leaves its folder.
+                base = ctx.base_dir.resolve()
+                path = (base / table).resolve()
+                if pathlib.Path(table).is_absolute() or base not in path.parents:
+                    raise InputRangeError(f"size table '{table}'", table,
+                                          "a file name in the candidate table's own folder")
                 dist = read_size_table(path, field=f"size table '{table}'")
             elif math.isnan(spread) or spread == 1.0:
                 dist = sizes.SizeDistribution.single(d50)

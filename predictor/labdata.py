@@ -144,8 +144,17 @@ def _rows(text: str, source: str):
         raise ScenarioError(f"{source}: needs a header line and at least one data row")
     head = lines[0][1]
     delimiter = max(",;\t", key=head.count)
-    parsed = [(n, row) for (n, _), row in zip(
-        lines, csv.reader([ln for _, ln in lines], delimiter=delimiter), strict=True)]
+    # Parse line by line, so that an unclosed quote is reported at its own line instead of
+    # silently swallowing the lines after it.
+    parsed = []
+    for number, line in lines:
+        try:
+            rows = list(csv.reader([line], delimiter=delimiter, strict=True))
+        except csv.Error:
+            rows = []
+        if len(rows) != 1 or line.count('"') % 2:
+            raise ScenarioError(f"{source}, line {number}: unbalanced quotes in {line[:60]!r}")
+        parsed.append((number, rows[0]))
     return parsed[0][1], parsed[1:]
 
 

@@ -1220,7 +1220,7 @@ def packing_estimates(diameters_m, fractions=None, basis: str = "volume",
     estimates, skipped = {}, {}
     for spec in models("packing"):
         if spec.name == "simulation" and not include_simulation:
-            skipped[spec.name] = "not run (include_simulation=False)"
+            skipped[spec.name] = "not run here: the simulation runs on demand (seconds)"
             continue
         check = _MESSAGES.get(spec.name)
         message = check(d, f) if check else None

@@ -105,6 +105,22 @@ def test_bad_rows_reported_and_good_rows_kept(error_result):
     assert len(written) == 11 and written["status"].tolist() == frame["status"].tolist()
 
 
+@pytest.mark.parametrize("table_cell", ["../outside.csv", "/etc/hostname"])
+def test_size_tables_outside_the_candidate_folder_are_refused(tmp_path, table_cell):
+    # No path taken from user input may read outside the chosen folder (reliability issue).
+    (tmp_path / "outside.csv").write_text("size [um],volume [%]\n1,50\n2,50\n")
+    folder = tmp_path / "candidates"
+    folder.mkdir()
+    table = pd.DataFrame({
+        "candidate": ["escape"], "liquid": ["water"], "relation": ["krieger-dougherty"],
+        "ingredient 1": ["powder"], "ingredient 1 loading [wt%]": ["30"],
+        "ingredient 1 density [g/cm3]": ["2.5"], "ingredient 1 size table": [table_cell],
+        "window 1 shear rate [1/s]": ["10"], "window 1 max viscosity [Pa*s]": ["1"]})
+    row = batch.screen(table, base_dir=folder).iloc[0]
+    assert row["status"] == "error"
+    assert "own folder" in row["error"]
+
+
 def test_formula_cells_escaped_in_csv(error_result):
     _, _, out = error_result
     rows = list(csv.reader(io.StringIO(out.read_text(encoding="utf-8"))))

@@ -82,6 +82,7 @@ def test_demo_flow_curve_calibrates():
     ("phi [-],wt% solids,viscosity [mPa*s]\n0.1,10,2\n", ScenarioError, "keep one"),
     ("phi [-],viscosity [mPa*s]\n0.1,-2\n", ScenarioError, "line 2.*positive"),
     ("# only a comment\n", ScenarioError, "header"),
+    ('phi [-],viscosity [mPa*s]\n0.1,"2\n0.2,3\n', ScenarioError, "line 2: unbalanced quotes"),
 ])
 def test_errors_name_line_and_column(text, error, match):
     with pytest.raises(error, match=match):
