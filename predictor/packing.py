@@ -1102,7 +1102,10 @@ def _simulation_fit(d, f, phi0):
     correction = sum(c * t for c, t in zip(SIMULATION_FIT_COEFFICIENTS,
                                            _fit_features(delta, skew), strict=True))
     # Interaction between classes only lowers the packing: never above the Furnas bound.
-    return float(min(base + phi0 / PHI_RCP * correction, _furnas(d, f, phi0)))
+    # Random close packing of spheres rises with polydispersity (Desmond & Weeks 2014;
+    # Farr & Groot 2009): never below the single-size value either (the fitted correction
+    # can dip by ~1e-5 for a trace of fines).
+    return float(max(min(base + phi0 / PHI_RCP * correction, _furnas(d, f, phi0)), phi0))
 
 
 def _simulation_fit_message(d, f) -> str | None:
