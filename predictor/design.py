@@ -679,6 +679,10 @@ def packing_estimator_spread(formulation: fm.Formulation,
                              methods: Iterable[str] | None = None) -> dict:
     """phi_max of the solids by each fast packing estimator, and their relative spread.
 
+    The estimators describe spheres; each is scaled by the same factor that takes the
+    default sphere estimate to the formulation's own phi_max (its shape factor, or the
+    phi_max the user gave), so the range sits around the value in use.
+
     Parameters
     ----------
     formulation : Formulation
@@ -708,9 +712,14 @@ def packing_estimator_spread(formulation: fm.Formulation,
     summary = packing.packing_estimates(combined.diameters_m, combined.fractions)
     names = set(methods) if methods is not None else set(summary.estimates) | set(
         k for k in summary.skipped if k != "simulation")
-    estimates = {k: v for k, v in summary.estimates.items() if k in names and 0.0 < v < 1.0}
+    # The estimators describe spheres; scale them by the ratio the formulation applies to
+    # its own default (shape factor, or a phi_max the user gave), so the range sits around
+    # the phi_max actually used.
+    scale = mix.phi_max / summary.default if summary.default > 0 else 1.0
+    estimates = {k: v * scale for k, v in summary.estimates.items()
+                 if k in names and 0.0 < v * scale < 1.0}
     left_out = {k: r for k, r in summary.skipped.items() if k in names}
-    left_out.update({k: f"phi_max = {v:.4g} outside (0, 1)"
+    left_out.update({k: f"phi_max = {v * scale:.4g} outside (0, 1)"
                      for k, v in summary.estimates.items() if k in names and k not in estimates})
     values = np.array(list(estimates.values()))
     rel = float(np.std(values, ddof=1) / np.mean(values)) if values.size > 1 else np.nan
