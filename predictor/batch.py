@@ -74,6 +74,7 @@ import pandas as pd
 
 from . import composition, formulation, sizes, suspension
 from .errors import InputRangeError, LoadlineError, ScenarioError, UnitError
+from .labdata import decimal_point, decode_text, looks_like_data, read_bytes
 from .registry import get_model
 from .units import from_si, parse_loading, to_si
 
@@ -82,6 +83,10 @@ DEFAULT_RELATION = "krieger-dougherty"
 DEFAULT_DROPLET_RELATION = "phan-thien-pham"
 WATER_DENSITY_KG_PER_M3 = 997.0  # the default of formulation.Liquid
 CLOSE_TO_JAMMING = 0.95          # headroom above which a row is flagged (our own threshold)
+# Candidate tables are streamed in chunks, so their limit is far above the 5 MB of a size
+# table or a scenario; it only stops a wrong file (a disk image, a video) being parsed.
+MAX_TABLE_BYTES = 500_000_000
+MAX_SIZE_TABLE_BYTES = 5_000_000
 
 # field name -> dimension passed to units.to_si ("loading" and "text" are special)
 _LIQUID_FIELDS = {
@@ -225,8 +230,29 @@ _EXAMPLE_UNITS = {"viscosity": "Pa*s", "temperature": "degC", "density": "kg/m3"
 # -- reading ----------------------------------------------------------------------------------
 
 
+def _sniff(text: str, name: str) -> str:
+    """The delimiter of a CSV (',', ';' or tab, from its header line); refuses a missing header."""
+    head = next(ln for ln in text.splitlines() if ln.strip())
+    delimiter = max(",;\t", key=head.count)
+    if looks_like_data(head.split(delimiter)):
+        raise ScenarioError(f"{name}, line 1: {head[:60]!r} looks like data, not a header; the "
+                            "first line must name the columns (with units in brackets)")
+    return delimiter
+
+
+def _decimal_points(frame: pd.DataFrame) -> pd.DataFrame:
+    """Decimal commas -> points in every cell (for ';' or tab files)."""
+    return frame.apply(lambda col: col.map(decimal_point))
+
+
 def read_table(path, chunk_rows: int = CHUNK_ROWS) -> Iterator[pd.DataFrame]:
-    """The candidate table in chunks of text cells (CSV streamed; Excel read whole)."""
+    """The candidate table in chunks of text cells (CSV streamed; Excel read whole).
+
+    A CSV is UTF-8 (a BOM is allowed; Latin-1 is refused with the line of the first bad
+    byte, not guessed), delimited by ``,``, ``;`` or a tab (found from the header line), and
+    at most `MAX_TABLE_BYTES`. In a ``;`` or tab file, a decimal comma (``0,25``) reads as a
+    decimal point.
+    """
     path = pathlib.Path(path)
     if not path.is_file():
         raise ScenarioError(f"candidate table {path} does not exist.")
@@ -241,14 +267,29 @@ def read_table(path, chunk_rows: int = CHUNK_ROWS) -> Iterator[pd.DataFrame]:
         for start in range(0, max(len(frame), 1), chunk_rows):
             yield frame.iloc[start:start + chunk_rows].reset_index(drop=True)
         return
+    what = "a candidate table: a header row and candidate rows"
+    size = path.stat().st_size
+    if size > MAX_TABLE_BYTES:
+        raise ScenarioError(f"{path.name} is {size / 1e6:.1f} MB, over the "
+                            f"{MAX_TABLE_BYTES / 1e6:g} MB limit for a candidate table; is it "
+                            "the right file?")
+    with path.open("rb") as handle:
+        start = handle.read(1 << 16)
+    if len(start) == 1 << 16:  # cut at a line end, so a split character is not misreported
+        start = start[:start.rfind(b"\n") + 1] or start[:-4]
+    delimiter = _sniff(decode_text(start, path.name, what), path.name)
     try:
         reader = pd.read_csv(path, dtype=str, keep_default_na=False, chunksize=chunk_rows,
-                             skipinitialspace=True, encoding="utf-8-sig")
-        yield from reader
+                             skipinitialspace=True, encoding="utf-8-sig", sep=delimiter)
+        for chunk in reader:
+            yield chunk if delimiter == "," else _decimal_points(chunk)
     except pd.errors.EmptyDataError:
         raise ScenarioError(f"{path.name} is empty; expected a header row and "
                             "candidate rows.") from None
-    except (pd.errors.ParserError, UnicodeDecodeError) as err:
+    except UnicodeDecodeError as err:
+        raise ScenarioError(f"{path.name}: byte 0x{err.object[err.start]:02x} is not UTF-8 "
+                            "(far into the file); save the table as UTF-8.") from None
+    except pd.errors.ParserError as err:
         raise ScenarioError(f"{path.name} is not a readable CSV table ({err}).") from None
 
 
@@ -271,15 +312,29 @@ def read_size_table(path, field: str = "size table") -> sizes.SizeDistribution:
     ``passing [vol%]`` (cumulative percent finer), ``amount [vol%]`` (per class) or
     ``retained [g]`` (any positive total, normalised); ``[wt%]`` is the same as vol% for one
     material, ``[num%]`` reads as a number basis. Other columns (notes) are ignored.
+
+    The file is UTF-8 (a BOM is allowed; Latin-1 is refused with the line of the first bad
+    byte, not guessed), delimited by ``,``, ``;`` or a tab, and at most
+    `MAX_SIZE_TABLE_BYTES`; in a ``;`` or tab file a decimal comma (``0,25``) reads as a
+    decimal point.
     """
     path = pathlib.Path(path)
+    if not path.is_file():
+        raise ScenarioError(f"{field}: file {path} does not exist.")
+    what = "a size table: a header row and size classes"
     try:
-        frame = pd.read_csv(path, dtype=str, keep_default_na=False, skipinitialspace=True,
-                            encoding="utf-8-sig")
-    except FileNotFoundError:
-        raise ScenarioError(f"{field}: file {path} does not exist.") from None
-    except (OSError, pd.errors.ParserError, pd.errors.EmptyDataError, UnicodeDecodeError) as err:
+        text = decode_text(read_bytes(path, path.name, "a size table", MAX_SIZE_TABLE_BYTES),
+                           path.name, what)
+        delimiter = _sniff(text, path.name)
+    except ScenarioError as err:
+        raise ScenarioError(f"{field}: {err}") from None
+    try:
+        frame = pd.read_csv(io.StringIO(text), dtype=str, keep_default_na=False,
+                            skipinitialspace=True, sep=delimiter)
+    except (pd.errors.ParserError, pd.errors.EmptyDataError) as err:
         raise ScenarioError(f"{field}: {path.name} is not a readable CSV ({err}).") from None
+    if delimiter != ",":
+        frame = _decimal_points(frame)
     size_col = amount_col = None
     cumulative = normalise = False
     basis = "volume"
@@ -308,8 +363,9 @@ def read_size_table(path, field: str = "size table") -> sizes.SizeDistribution:
         try:
             sizes_m.append(float(cell) * scale)
         except ValueError:
-            raise InputRangeError(f"{path.name} row {i + 2}, column {size_col[0]}",
-                                  repr(cell), "a number") from None
+            raise InputRangeError(f"{path.name} row {i + 2}, column {size_col[0]}", repr(cell),
+                                  f"a plain number in the header's unit ({size_col[1]}); "
+                                  "mixed units are not read") from None
     return sizes.SizeDistribution.from_table(
         sizes_m, list(amounts[keep]), basis=basis, cumulative=cumulative, normalise=normalise,
         columns=(str(size_col[0]), str(amount_col[0])), first_row=2)

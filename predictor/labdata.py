@@ -4,9 +4,12 @@ An edge reader (it may use pandas and `predictor.units`). Headers name the quant
 unit, e.g. ``phi [-]``, ``wt% solids``, ``solids [vol%]``, ``viscosity [mPa*s]``,
 ``relative viscosity [-]``, ``shear rate [1/s]``, ``shear stress [Pa]``,
 ``temperature [degC]``. Lines starting with ``#`` are comments; the delimiter is ``,``,
-``;`` or a tab. Mass fractions are converted to volume fractions with the densities of the
-formulation (solids in the liquid; ideal mixing). Every error names the file line and the
-column.
+``;`` or a tab, and in a ``;`` or tab file a decimal comma (``0,25``) is read as a decimal
+point. The file must be UTF-8 (a BOM is allowed) and at most `MAX_BYTES`; Latin-1 or
+Windows-1252 text is refused with the line of the first bad byte, not guessed, since a wrong
+guess would silently misread units such as ``µm`` or ``°C``. Mass fractions are converted
+to volume fractions with the densities of the formulation (solids in the liquid; ideal
+mixing). Every error names the file line and the column.
 """
 
 from __future__ import annotations
@@ -39,6 +42,10 @@ ROLES = {
     "shear_stress": ("stress", "shear_stress_Pa"),
     "temperature": ("temperature", "temperature_K"),
 }
+
+MAX_BYTES = 5_000_000
+_DECIMAL_COMMA = re.compile(r"^\s*[-+]?\d*,\d+(?:[eE][-+]?\d+)?(?=\s|$)")
+_PLAIN_NUMBER = re.compile(r"^\s*[-+]?(?:\d+[.,]?\d*|[.,]\d+)(?:[eE][-+]?\d+)?\s*$")
 
 
 @dataclass(frozen=True, eq=False)
@@ -137,6 +144,58 @@ def classify_header(header: str) -> tuple[str | None, str | None]:
     return None, None
 
 
+def read_bytes(path, name: str, what: str, max_bytes: int = MAX_BYTES) -> bytes:
+    """The bytes of a file, refusing a missing file or one over `max_bytes` (names the limit)."""
+    path = pathlib.Path(path)
+    try:
+        if not path.is_file():
+            raise ScenarioError(f"{name}: no such file")
+        size = path.stat().st_size
+        if size > max_bytes:
+            raise ScenarioError(f"{name} is {size / 1e6:.1f} MB, over the {max_bytes / 1e6:g} MB "
+                                f"limit for {what}; is it the right file?")
+        return path.read_bytes()
+    except OSError as err:
+        raise ScenarioError(f"cannot read {name}: {err.strerror or err}") from None
+
+
+def decode_text(data: bytes, name: str, what: str) -> str:
+    """UTF-8 text of a file's bytes (BOM removed); a clear `ScenarioError` for empty, binary
+    or non-UTF-8 content, naming the line of the first bad byte."""
+    if isinstance(data, str):
+        text = data.removeprefix("\ufeff")
+    else:
+        if data.startswith(b"\x89PNG") or b"\x00" in data:
+            offset = 0 if data.startswith(b"\x89PNG") else data.index(b"\x00")
+            raise ScenarioError(f"{name} looks like a binary file (byte {offset} is not text); "
+                                f"expected {what} as UTF-8 text")
+        try:
+            text = data.decode("utf-8-sig")
+        except UnicodeDecodeError as err:
+            line = data[:err.start].count(b"\n") + 1
+            column = err.start - (data.rfind(b"\n", 0, err.start) + 1) + 1
+            raise ScenarioError(f"{name}, line {line}, column {column}: byte "
+                                f"0x{data[err.start]:02x} is not UTF-8; save the file as UTF-8 "
+                                "(Latin-1 / Windows text is not guessed)") from None
+    if "\x00" in text:
+        raise ScenarioError(f"{name} looks like a binary file (it holds NUL characters); "
+                            f"expected {what} as text")
+    if not text.strip():
+        raise ScenarioError(f"{name} is empty; expected {what}")
+    return text
+
+
+def looks_like_data(cells) -> bool:
+    """True when a would-be header line holds a plain number (the header line is missing)."""
+    return any(_PLAIN_NUMBER.match(str(c)) for c in cells)
+
+
+def decimal_point(cell: str) -> str:
+    """'0,25' -> '0.25' (for files delimited by ';' or a tab); other text unchanged."""
+    match = _DECIMAL_COMMA.match(cell)
+    return cell.replace(",", ".", 1) if match else cell
+
+
 def _rows(text: str, source: str):
     lines = [(i + 1, ln) for i, ln in enumerate(text.splitlines())
              if ln.strip() and not ln.lstrip().startswith("#")]
@@ -154,7 +213,12 @@ def _rows(text: str, source: str):
             rows = []
         if len(rows) != 1 or line.count('"') % 2:
             raise ScenarioError(f"{source}, line {number}: unbalanced quotes in {line[:60]!r}")
-        parsed.append((number, rows[0]))
+        cells = rows[0] if delimiter == "," else [decimal_point(c) for c in rows[0]]
+        parsed.append((number, cells))
+    if looks_like_data(parsed[0][1]):
+        raise ScenarioError(f"{source}, line {parsed[0][0]}: {head[:60]!r} looks like data, "
+                            "not a header; the first line must name the columns with their "
+                            "units, e.g. 'phi [-],shear rate [1/s],viscosity [mPa*s]'")
     return parsed[0][1], parsed[1:]
 
 
@@ -220,20 +284,18 @@ def read_lab_csv(source, *, formulation=None, particle_density_kg_per_m3=None,
     ------
     ScenarioError
         Missing, empty or non-numeric cells, loadings outside 0-100 %, duplicated roles;
-        the message names the line and the column.
+        the message names the line and the column. Also an empty, binary or non-UTF-8 file,
+        one over `MAX_BYTES`, or a first line that is data instead of a header.
     UnitError
         Unknown units, a header without a unit, or cells in another unit than the header
         (mixed units).
     """
     name = str(getattr(source, "name", source))
+    what = "a lab-data CSV with a header line and data rows"
     if hasattr(source, "read"):
-        text = source.read()
-        text = text.decode("utf-8-sig") if isinstance(text, bytes) else text
+        text = decode_text(source.read(), name, what)
     else:
-        path = pathlib.Path(source)
-        if not path.is_file():
-            raise ScenarioError(f"{name}: no such file")
-        text = path.read_text(encoding="utf-8-sig")
+        text = decode_text(read_bytes(source, name, "a lab-data CSV"), name, what)
     header, rows = _rows(text, name)
     lines = [n for n, _ in rows]
     for n, row in rows:
@@ -252,6 +314,9 @@ def read_lab_csv(source, *, formulation=None, particle_density_kg_per_m3=None,
             raise ScenarioError(f"{name}: two columns for {role.replace('_', ' ')} "
                                 f"('{roles[role][1]}' and '{h}'); keep one")
         roles[role] = (j, h, unit)
+    if not roles:
+        raise ScenarioError(f"{name}: no column Loadline reads in the header {header!r}; name "
+                            "them with units, e.g. 'phi [-]', 'viscosity [mPa*s]'")
     loading_roles = [r for r in ("loading_volume", "loading_mass") if r in roles]
     if len(loading_roles) == 2:
         raise ScenarioError(f"{name}: both a volume and a mass loading column "

@@ -14,6 +14,7 @@ import math
 import os
 import pathlib
 import tempfile
+import warnings
 
 from . import sizes
 from .errors import LoadlineError, ScenarioError
@@ -115,8 +116,41 @@ def scenario_to_dict(formulation: Formulation) -> dict:
     }
 
 
-def scenario_from_dict(doc: dict) -> Formulation:
-    """Build a Formulation from a scenario document, migrating older schema versions."""
+_KNOWN_KEYS = {
+    "": {"format", "schema_version", "name", "description", "relations", "liquid",
+         "ingredients"},
+    "liquid": {"name", "preset", "law", "parameters", "glycerol_mass_fraction",
+               *_LIQUID_QUANTITIES},
+    "ingredient": {"name", "kind", "loading", "size_distribution", *_INGREDIENT_QUANTITIES,
+                   *_INGREDIENT_NUMBERS},
+}
+
+
+def unknown_keys(doc) -> list[str]:
+    """Keys of a scenario document that Loadline does not read (typos, other tools' notes)."""
+    if not isinstance(doc, dict):
+        return []
+    found = [k for k in doc if k not in _KNOWN_KEYS[""]]
+    if isinstance(doc.get("liquid"), dict):
+        found += [f"liquid.{k}" for k in doc["liquid"] if k not in _KNOWN_KEYS["liquid"]]
+    items = doc.get("ingredients")
+    for i, item in enumerate(items if isinstance(items, list) else []):
+        if isinstance(item, dict):
+            found += [f"ingredients[{i}].{k}" for k in item
+                      if k not in _KNOWN_KEYS["ingredient"]]
+    return found
+
+
+def scenario_from_dict(doc: dict, source: str = "the scenario") -> Formulation:
+    """Build a Formulation from a scenario document, migrating older schema versions.
+
+    Keys Loadline does not know are ignored, with one `UserWarning` that lists them (a typo
+    such as ``densty`` would otherwise drop a value silently).
+    """
+    extra = unknown_keys(doc)
+    if extra:
+        warnings.warn(f"{source}: ignored unknown keys {', '.join(extra)}", UserWarning,
+                      stacklevel=2)
     try:
         return _from_dict(doc)
     except LoadlineError:
@@ -230,14 +264,20 @@ def dumps(formulation: Formulation) -> str:
     return json.dumps(scenario_to_dict(formulation), indent=2, ensure_ascii=False) + "\n"
 
 
-def loads(text: str) -> Formulation:
+def loads(text: str, source: str = "the scenario") -> Formulation:
     """A Formulation from JSON text; `ScenarioError` with the reason if it is not one."""
+    if not text.strip():
+        raise ScenarioError("the scenario is empty; expected a JSON object.")
+    if "\x00" in text:
+        raise ScenarioError("the scenario holds NUL characters: a binary file, not JSON.")
     try:
         doc = json.loads(text)
     except json.JSONDecodeError as err:
+        ends_early = err.pos >= len(text.rstrip()) or err.msg.startswith("Unterminated")
+        cut = " (the file ends early: truncated?)" if ends_early else ""
         raise ScenarioError(f"the scenario is not valid JSON (line {err.lineno}, "
-                            f"column {err.colno}: {err.msg}).") from None
-    return scenario_from_dict(doc)
+                            f"column {err.colno}: {err.msg}){cut}.") from None
+    return scenario_from_dict(doc, source)
 
 
 def read_scenario(path) -> Formulation:
@@ -246,21 +286,26 @@ def read_scenario(path) -> Formulation:
     Raises
     ------
     ScenarioError
-        Missing, too large, not JSON, malformed, or newer than this version; the message
-        names the last good copy (`.bak`) when one exists.
+        Missing, too large, empty, binary, not UTF-8 (Latin-1 is refused, not guessed), not
+        JSON, malformed, or newer than this version; the message names the last good copy
+        (`.bak`) when one exists.
     """
     path = pathlib.Path(path)
     try:
         if path.stat().st_size > MAX_BYTES:
             raise ScenarioError(f"{path.name} is larger than {MAX_BYTES // 1_000_000} MB; "
                                 "a scenario is a few kB.")
-        text = path.read_text(encoding="utf-8-sig")
+        data = path.read_bytes()
+        text = data.decode("utf-8-sig")
     except OSError as err:
         raise ScenarioError(f"cannot read {path}: {err.strerror or err}.") from None
-    except UnicodeDecodeError:
-        raise ScenarioError(f"{path.name} is not UTF-8 text.") from None
+    except UnicodeDecodeError as err:
+        line = data[:err.start].count(b"\n") + 1
+        raise ScenarioError(f"{path.name} is not UTF-8 text (line {line}: byte "
+                            f"0x{data[err.start]:02x}); a scenario is UTF-8 JSON, Latin-1 is "
+                            "not guessed.") from None
     try:
-        return loads(text)
+        return loads(text, path.name)
     except ScenarioError as err:
         backup = path.with_name(path.name + ".bak")
         hint = f" The last good copy is kept in {backup.name}." if backup.exists() else ""
