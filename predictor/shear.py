@@ -231,7 +231,8 @@ def thinning_onset_reduced_stress(zero_shear_relative_viscosity, high_shear_rela
     Returns
     -------
     reduced_stress : float or numpy.ndarray
-        sigma_r at the onset; ``nan`` where the plateaus differ by less than `drop`. [-]
+        sigma_r at the onset; ``inf`` (never reached) where the plateaus differ by less than
+        `drop`. [-]
 
     Notes
     -----
@@ -259,7 +260,7 @@ def thinning_onset_reduced_stress(zero_shear_relative_viscosity, high_shear_rela
     target = (1.0 - d) * eta0
     with np.errstate(divide="ignore", invalid="ignore"):
         s = np.where(target > eta_inf, sc * ((eta0 - eta_inf) / (target - eta_inf) - 1.0),
-                     np.nan)
+                     np.inf)
     return scalar_or_array(s, eta0, eta_inf, sc, d)
 
 
