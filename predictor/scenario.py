@@ -147,19 +147,15 @@ def scenario_from_dict(doc: dict, source: str = "the scenario") -> Formulation:
     Keys Loadline does not know are ignored, with one `UserWarning` that lists them (a typo
     such as ``densty`` would otherwise drop a value silently).
     """
-    extra = unknown_keys(doc)
-    if extra:
-        warnings.warn(f"{source}: ignored unknown keys {', '.join(extra)}", UserWarning,
-                      stacklevel=2)
     try:
-        return _from_dict(doc)
+        return _from_dict(doc, source)
     except LoadlineError:
         raise
     except (KeyError, TypeError, ValueError, AttributeError) as err:
         raise ScenarioError(f"the scenario is malformed: {type(err).__name__}: {err}") from None
 
 
-def _from_dict(doc: dict) -> Formulation:
+def _from_dict(doc: dict, source: str) -> Formulation:
     if not isinstance(doc, dict) or doc.get("format") != FORMAT:
         raise ScenarioError(f"not a Loadline scenario: the field 'format' must be {FORMAT!r}.")
     version = doc.get("schema_version")
@@ -171,6 +167,10 @@ def _from_dict(doc: dict) -> Formulation:
     while version < SCHEMA_VERSION:
         doc = _MIGRATIONS[version](doc)
         version = doc["schema_version"]
+    extra = unknown_keys(doc)   # after migration: renamed keys are known again
+    if extra:
+        warnings.warn(f"{source}: ignored unknown keys {', '.join(extra)}", UserWarning,
+                      stacklevel=4)
     raw = doc["liquid"]
     liquid_kwargs = {}
     for key, (attr, dimension, _) in _LIQUID_QUANTITIES.items():

@@ -118,3 +118,26 @@ def formulations(draw):
 def test_random_scenarios_round_trip_exactly(formulation):
     # A thousand random scenarios (reliability issue): text -> Formulation -> text is exact.
     assert loads(dumps(formulation)) == formulation
+
+
+def test_older_schema_versions_are_migrated(monkeypatch):
+    # The mechanism, exercised with a stand-in version 2 whose migration from 1 renames a
+    # field (an invented example; version 1 is the only real version so far).
+    from predictor import scenario
+
+    doc = json.loads(dumps(read_scenario(DEMO[0])))
+    doc["ingredients"][0]["shape_factor"] = doc["ingredients"][0].pop("aspect_ratio")
+
+    def upgrade(old):
+        new = dict(old, schema_version=2)
+        for ing in new["ingredients"]:
+            if "shape_factor" in ing:
+                ing["aspect_ratio"] = ing.pop("shape_factor")
+        return new
+
+    monkeypatch.setattr(scenario, "SCHEMA_VERSION", 2)
+    monkeypatch.setitem(scenario._MIGRATIONS, 1, upgrade)
+    migrated = loads(json.dumps(doc))
+    original = read_scenario(DEMO[0]).ingredients[0]
+    assert migrated.ingredients[0].aspect_ratio == original.aspect_ratio
+    assert json.loads(dumps(migrated))["schema_version"] == 2
