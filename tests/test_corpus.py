@@ -148,9 +148,11 @@ def test_corpus_file(reader, name, expected, tmp_path):
     path = tmp_path / name
     shutil.copyfile(CORPUS / name, path)
     if isinstance(expected, dict):
-        _check_values(READERS[reader](path), expected)
+        got = READERS[reader](path)
+        _check_values(got, expected)
+        assert got.keys() == expected.keys()
     else:
-        _check_error(lambda: READERS[reader](path), *expected)
+        assert _check_error(lambda: READERS[reader](path), *expected)
 
 
 def test_candidate_row_in_other_unit_is_flagged_and_the_rest_is_read(tmp_path):
@@ -205,7 +207,7 @@ def test_huge_candidate_table_is_refused_naming_the_limit(tmp_path, monkeypatch)
     path = tmp_path / "huge.csv"
     _huge(path, "candidate,ingredient 1 loading [wt%],ingredient 1 density [kg/m3]\n",
           "A,30,2500\n", 1_000_001)
-    _check_error(lambda: _candidates(path), ScenarioError, ["huge.csv", "1 MB"])
+    assert _check_error(lambda: _candidates(path), ScenarioError, ["huge.csv", "1 MB"])
 
 
 def test_lab_text_upload_with_bom_and_decimal_commas():

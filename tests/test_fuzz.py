@@ -110,7 +110,9 @@ def test_fuzz_public_function(label):
     def run(kwargs):
         check_outcome(label, lambda: func(**kwargs))
 
+    before = FUZZ_CASES[label]
     run()
+    assert FUZZ_CASES[label] > before   # the examples really ran
 
 
 @given(phi=wild_value, spec=st.sampled_from(pr.models("suspension") + pr.models("emulsion")),
@@ -216,6 +218,7 @@ def test_fuzz_scenario_documents(mutations):
         except (KeyError, IndexError, TypeError):
             continue
     formulation = check_outcome("scenario.loads", lambda: pr.scenario.loads(json.dumps(doc)))
+    assert formulation is None or isinstance(formulation, pr.Formulation)
     if formulation is not None:
         check_outcome("formulation.predict",
                       lambda: pr.predict(formulation, [0.1, 100.0])["viscosity_Pa_s"].to_numpy())
@@ -224,5 +227,6 @@ def test_fuzz_scenario_documents(mutations):
 @given(st.binary(max_size=200))
 @settings(max_examples=FUZZ_EXAMPLES // 3)
 def test_fuzz_scenario_bytes(raw):
-    check_outcome("scenario.loads(bytes)",
-                  lambda: pr.scenario.loads(raw.decode("utf-8", errors="replace")))
+    result = check_outcome("scenario.loads(bytes)",
+                           lambda: pr.scenario.loads(raw.decode("utf-8", errors="replace")))
+    assert result is None or isinstance(result, pr.Formulation)

@@ -136,4 +136,5 @@ def test_every_builder_writes_valid_vega_lite(big):
         charts.blend_curve(blend3, names=["a", "b", "c"], big=big),
     ]
     for spec in specs:
-        _valid(spec)
+        _valid(spec)  # schema validation; raises on an invalid spec
+        assert "vega-lite" in spec.get("$schema", "")
