@@ -392,8 +392,12 @@ def beris_yield_parameter(yield_stress_Pa, diameter_m, particle_density_kg_per_m
     d = positive(diameter_m, "diameter_m")
     drho = np.abs(_density_difference(particle_density_kg_per_m3, liquid_density_kg_per_m3))
     g = positive(gravity_m_per_s2, "gravity_m_per_s2")
+    with np.errstate(under="ignore"):
+        weight = d * drho * g            # may underflow to 0 for absurd inputs
     with np.errstate(divide="ignore", invalid="ignore"):
-        y = np.where(drho > 0, 3.0 * tau / (d * np.where(drho > 0, drho, 1.0) * g), np.inf)
+        # No yield stress holds nothing (Y = 0); no net weight is held by any yield stress.
+        y = np.where(tau == 0.0, 0.0,
+                     np.where(weight > 0, 3.0 * tau / np.where(weight > 0, weight, 1.0), np.inf))
     return scalar_or_array(y, tau, d, drho, g)
 
 
@@ -481,7 +485,11 @@ def storage_verdict(diameter_m, particle_density_kg_per_m3, liquid_density_kg_pe
     """
     args = {"diameter_m": diameter_m, "phi": phi, "yield_stress_Pa": yield_stress_Pa,
             "clear_layer_m": clear_layer_m, "storage_time_s": storage_time_s,
-            "container_height_m": container_height_m}
+            "container_height_m": container_height_m,
+            "particle_density_kg_per_m3": particle_density_kg_per_m3,
+            "liquid_density_kg_per_m3": liquid_density_kg_per_m3,
+            "viscosity_Pa_s": viscosity_Pa_s, "temperature_K": temperature_K,
+            "exponent": exponent, "gravity_m_per_s2": gravity_m_per_s2}
     for name, value in args.items():
         if np.ndim(value) != 0:
             raise InputRangeError(name, f"an array of shape {np.shape(value)}",
