@@ -48,11 +48,13 @@ schemapi.disable_debug_mode()
 
 
 class Figure:
-    """Altair charts on named datasets, turned into one Vega-Lite spec (a plain dict).
+    """Altair charts on named datasets, assembled into one Vega-Lite spec (a plain dict).
 
-    Keeping the frames out of the Altair objects until the end avoids copying them at every
-    `.properties()`/`.encode()` step, and `to_dict(validate=False)` skips a second schema
-    check; together this keeps an interaction well inside its time budget.
+    Altair builds each mark and its encodings (cheap); layers and stacks are assembled here
+    as plain dicts, because Altair's own `LayerChart` deep-copies every layer two or three
+    times and that alone cost more than the rest of a page run. The frames stay out of the
+    Altair objects until the end, and `to_dict(validate=False)` skips a second schema check;
+    tests/app/test_charts.py validates every builder's finished spec once.
     """
 
     def __init__(self):
@@ -63,8 +65,29 @@ class Figure:
         self.frames[name] = frame
         return alt.Chart(alt.NamedData(name))
 
+    @staticmethod
+    def part(chart) -> dict:
+        """One chart (or an already assembled dict) as a nested Vega-Lite view."""
+        if isinstance(chart, dict):
+            return chart
+        return chart.to_dict(validate=False, context={"top_level": False})
+
+    def layer(self, *charts, resolve: dict | None = None, **properties) -> dict:
+        """Charts drawn on top of each other (Vega-Lite "layer")."""
+        spec = {"layer": [self.part(c) for c in charts], **properties}
+        if resolve:
+            spec["resolve"] = resolve
+        return spec
+
+    def vconcat(self, *charts, resolve: dict | None = None, **properties) -> dict:
+        """Charts stacked vertically (Vega-Lite "vconcat")."""
+        spec = {"vconcat": [self.part(c) for c in charts], **properties}
+        if resolve:
+            spec["resolve"] = resolve
+        return spec
+
     def spec(self, chart, big: bool = False) -> dict:
-        spec = chart.to_dict(validate=False)
+        spec = {"$schema": alt.SCHEMA_URL, **self.part(chart)}
         spec["config"] = config(big)
         spec["datasets"] = dict(self.frames)
         return spec
@@ -128,7 +151,7 @@ def loading_sweep(curves: pd.DataFrame, *, y_title: str, series: str = "relation
             "low": phi_max_range[0], "high": phi_max_range[1],
             "what": "packing-limit range of the estimators"}])).mark_rect(
             color=ORANGE, opacity=0.18, clip=True).encode(
-            x=alt.X("low:Q", scale=x_scale, axis=None), x2="high:Q",
+            x=alt.X("low:Q", scale=x_scale, axis=None), x2=alt.X2("high:Q"),
             tooltip=[alt.Tooltip("what:N", title=" "), alt.Tooltip("low:Q", format=".3f",
                      title="lowest φmax"), alt.Tooltip("high:Q", format=".3f",
                                                        title="highest φmax")]))
@@ -137,7 +160,7 @@ def loading_sweep(curves: pd.DataFrame, *, y_title: str, series: str = "relation
                            low=band["low"].clip(lower=y_domain[0], upper=y_domain[1]))
         layers.append(fig.chart(band).mark_area(color=BLUE, opacity=0.18, clip=True).encode(
             x=alt.X("phi:Q", scale=x_scale, axis=None),
-            y=alt.Y("low:Q", scale=y_scale, title=y_title), y2="high:Q"))
+            y=alt.Y("low:Q", scale=y_scale, title=y_title), y2=alt.Y2("high:Q")))
     dash = alt.StrokeDash(f"{series}:N", legend=None, scale=alt.Scale(
         domain=names or [""], range=[[1, 0]] + [[6, 3]] * max(len(names) - 1, 0)))
     layers.append(fig.chart(data).mark_line(strokeWidth=3 if big else 2.4, clip=True).encode(
@@ -156,14 +179,14 @@ def loading_sweep(curves: pd.DataFrame, *, y_title: str, series: str = "relation
                       .encode(x=alt.X("phi:Q", scale=x_scale, axis=None)))
         layers.append(base.mark_text(color=VERMILLION, align="right", dx=-6, y=12,
                                      fontWeight="bold")
-                      .encode(x=alt.X("phi:Q", scale=x_scale, axis=None), text="text:N"))
+                      .encode(x=alt.X("phi:Q", scale=x_scale, axis=None), text=alt.Text("text:N")))
     if limit is not None and limit.get("viscosity"):
         lim = pd.DataFrame([limit])
         layers.append(fig.chart(lim).mark_rule(color=GREY, strokeDash=[2, 3]).encode(
             y=alt.Y("viscosity:Q", scale=y_scale, title=y_title)))
         layers.append(fig.chart(lim).mark_text(color=GREY, align="left", dx=4, dy=-7,
                                                x=4).encode(
-            y=alt.Y("viscosity:Q", scale=y_scale, title=y_title), text="label:N"))
+            y=alt.Y("viscosity:Q", scale=y_scale, title=y_title), text=alt.Text("label:N")))
     if current is not None and current.get("viscosity"):
         cur = pd.DataFrame([current])
         layers.append(fig.chart(cur).mark_point(shape="diamond", size=260 if big else 170,
@@ -174,15 +197,15 @@ def loading_sweep(curves: pd.DataFrame, *, y_title: str, series: str = "relation
         layers.append(fig.chart(cur).mark_text(align="right", dx=-12, dy=-10,
                                                fontWeight="bold", color=BLACK).encode(
             x=alt.X("phi:Q", scale=x_scale, axis=None),
-            y=alt.Y("viscosity:Q", scale=y_scale, title=y_title), text="label:N"))
+            y=alt.Y("viscosity:Q", scale=y_scale, title=y_title), text=alt.Text("label:N")))
     if wt_ticks:
         top = pd.DataFrame({"phi": [p for p, _ in wt_ticks]})
         layers.append(fig.chart(top).mark_tick(opacity=0).encode(
             x=alt.X("phi:Q", scale=x_scale, title="Solids in the formulation [wt%]",
                     axis=alt.Axis(orient="top", values=[p for p, _ in wt_ticks],
                                   labelExpr=_top_axis_expr(wt_ticks), grid=False))))
-    chart = alt.layer(*layers).resolve_axis(x="independent").properties(
-        height=_height(big), width="container")
+    chart = fig.layer(*layers, resolve={"axis": {"x": "independent"}},
+                      height=_height(big), width="container")
     return fig.spec(chart, big)
 
 
@@ -275,18 +298,18 @@ def flow_curve(curve: pd.DataFrame, *, windows: pd.DataFrame, x_title: str, y_ti
                     scale=alt.Scale(paddingInner=0.1))
     colour = alt.Color("chosen:N", legend=None,
                        scale=alt.Scale(domain=[True, False], range=[VERMILLION, SKY]))
-    strip = alt.layer(
+    strip = fig.layer(
         fig.chart(shown).mark_bar(height=7 if not big else 9, yOffset=5, cornerRadius=2).encode(
-            x=alt.X("low_c:Q", scale=x_scale, axis=None), x2="high_c:Q", y=strip_y,
+            x=alt.X("low_c:Q", scale=x_scale, axis=None), x2=alt.X2("high_c:Q"), y=strip_y,
             color=colour, tooltip=[alt.Tooltip("name:N", title="process"),
                                    alt.Tooltip("low:Q", format="~g", title="from"),
                                    alt.Tooltip("high:Q", format="~g", title="to")]),
         fig.chart(shown).mark_text(align="left", baseline="bottom", dx=2, dy=1).encode(
-            x=alt.X("low_c:Q", scale=x_scale, axis=None), y=strip_y, text="name:N",
+            x=alt.X("low_c:Q", scale=x_scale, axis=None), y=strip_y, text=alt.Text("name:N"),
             color=alt.Color("chosen:N", legend=None, scale=alt.Scale(
                 domain=[True, False], range=[VERMILLION, "#333333"]))),
-    ).properties(height=row * max(len(shown), 1), width=width,
-                 title=f"Typical process shear rates [{x_title.split('[')[-1].rstrip(']')}]")
+        height=row * max(len(shown), 1), width=width,
+        title=f"Typical process shear rates [{x_title.split('[')[-1].rstrip(']')}]")
 
     def panel(field: str, title: str, with_regime: bool) -> dict:
         data = curve[(curve[field] > 0) & (curve[field] < float("inf"))]
@@ -301,7 +324,8 @@ def flow_curve(curve: pd.DataFrame, *, windows: pd.DataFrame, x_title: str, y_ti
         if selected is not None and bool(shown["chosen"].any()):
             layers.append(fig.chart(shown[shown["chosen"]]).mark_rect(
                 color=VERMILLION, opacity=0.10).encode(
-                x=alt.X("low_c:Q", scale=x_scale, title=x_title, axis=x_axis), x2="high_c:Q"))
+                x=alt.X("low_c:Q", scale=x_scale, title=x_title, axis=x_axis),
+                x2=alt.X2("high_c:Q")))
         base = fig.chart(data).encode(x=x_enc)
         layers.append(base.mark_line(color=BLUE, strokeWidth=3 if big else 2.4).encode(
             y=y_enc, tooltip=[alt.Tooltip("rate:Q", format=".3g", title=x_title),
@@ -311,7 +335,7 @@ def flow_curve(curve: pd.DataFrame, *, windows: pd.DataFrame, x_title: str, y_ti
             bands = data.assign(rate_next=data["rate"].shift(-1).fillna(data["rate"].iloc[-1]))
             layers.append(fig.chart(bands).mark_rect(y=alt.expr("height - 9"),
                                                      y2=alt.expr("height"), strokeWidth=0.6)
-                          .encode(x=x_enc, x2="rate_next:Q",
+                          .encode(x=x_enc, x2=alt.X2("rate_next:Q"),
                                   color=alt.Color("regime:N", title="Regime", scale=alt.Scale(
                               domain=regimes, range=[REGIME_COLOURS.get(r, GREY)
                                                      for r in regimes])),
@@ -324,18 +348,19 @@ def flow_curve(curve: pd.DataFrame, *, windows: pd.DataFrame, x_title: str, y_ti
                 x=x_enc))
             layers.append(fig.chart(markers).mark_text(
                 align="left", dx=4, y=10, color=BLACK, fontWeight="bold").encode(
-                x=x_enc, text="label:N"))
+                x=x_enc, text=alt.Text("label:N")))
         if point is not None and point.get(field, 0) > 0:
             layers.append(fig.chart(pd.DataFrame([point])).mark_point(
                 shape="diamond", filled=True, color=BLACK, size=260 if big else 170).encode(
                 x=x_enc, y=y_enc))
-        return alt.layer(*layers).properties(height=_height(big, 280), width=width)
+        return fig.layer(*layers, height=_height(big, 280), width=width)
 
     panels = [strip, panel("viscosity", y_title, True)]
     if stress_title:
         panels.append(panel("stress", stress_title, False))
     if joined:
-        joined_chart = alt.vconcat(*panels, spacing=12).resolve_scale(color="independent")
+        joined_chart = fig.vconcat(*panels, spacing=12,
+                                   resolve={"scale": {"color": "independent"}})
         return fig.spec(joined_chart, big)
     return [fig.spec(p, big) for p in panels]
 
@@ -377,7 +402,7 @@ def phase_ratio(frame: pd.DataFrame, *, y_title: str, yield_title: str,
 
     def backdrop():
         layers = [fig.chart(regimes).mark_rect(opacity=0.9).encode(
-            x=alt.X("low:Q", scale=x_scale, title=x_title, axis=x_axis), x2="high:Q",
+            x=alt.X("low:Q", scale=x_scale, title=x_title, axis=x_axis), x2=alt.X2("high:Q"),
             color=alt.Color("regime:N", title="Regime (as designed)", scale=alt.Scale(
                 domain=list(regimes["regime"]),
                 range=[REGIME_SHADES.get(r, "#FFFFFF") for r in regimes["regime"]]),
@@ -386,10 +411,11 @@ def phase_ratio(frame: pd.DataFrame, *, y_title: str, yield_title: str,
             band = pd.DataFrame([{"low": caution[0], "high": caution[1],
                                   "text": "phase inversion often seen"}])
             layers.append(fig.chart(band).mark_rect(color=ORANGE, opacity=0.15).encode(
-                x=alt.X("low:Q", scale=x_scale, title=x_title, axis=x_axis), x2="high:Q"))
+                x=alt.X("low:Q", scale=x_scale, title=x_title, axis=x_axis), x2=alt.X2("high:Q")))
             layers.append(fig.chart(band).mark_text(color="#8A5A00", y=10, dx=4,
                                                     align="left").encode(
-                x=alt.X("low:Q", scale=x_scale, title=x_title, axis=x_axis), text="text:N"))
+                x=alt.X("low:Q", scale=x_scale, title=x_title, axis=x_axis),
+                text=alt.Text("text:N")))
         return layers
 
     def panel(field: str, title: str) -> dict:
@@ -418,15 +444,15 @@ def phase_ratio(frame: pd.DataFrame, *, y_title: str, yield_title: str,
                 layers.append(fig.chart(dot).mark_text(align="left", dx=10, dy=-10,
                                                        fontWeight="bold").encode(
                     x=alt.X("phi:Q", scale=x_scale, title=x_title, axis=x_axis), y=y_enc,
-                    text="label:N"))
-        return alt.layer(*layers).resolve_scale(color="independent").properties(
-            height=_height(big, 320), width=width)
+                    text=alt.Text("label:N")))
+        return fig.layer(*layers, resolve={"scale": {"color": "independent"}},
+                         height=_height(big, 320), width=width)
 
     panels = [panel("viscosity", y_title)]
     if (frame["yield_stress"] > 0).any():
         panels.append(panel("yield_stress", yield_title))
     if joined:
-        return fig.spec(alt.vconcat(*panels, spacing=12), big)
+        return fig.spec(fig.vconcat(*panels, spacing=12), big)
     return [fig.spec(p, big) for p in panels]
 
 
@@ -443,7 +469,7 @@ def fit_chart(curve: pd.DataFrame, data: pd.DataFrame, *, model: str, level: str
     band = fig.chart(curve[np.isfinite(curve["high"])]).mark_area(
         color=BLUE, opacity=0.18, clip=True).encode(
         x=x, y=alt.Y("low:Q", scale=y_scale, title="Relative viscosity [–]", axis=y_axis),
-        y2="high:Q")
+        y2=alt.Y2("high:Q"))
     line = fig.chart(curve.assign(what=f"{model}, fitted")).mark_line(
         color=BLUE, strokeWidth=2.6).encode(
         x=x, y=alt.Y("central:Q", scale=y_scale, title="Relative viscosity [–]", axis=y_axis),
@@ -452,8 +478,8 @@ def fit_chart(curve: pd.DataFrame, data: pd.DataFrame, *, model: str, level: str
                                         else 140, shape="circle").encode(
         x=x, y=alt.Y("measured:Q", scale=y_scale),
         tooltip=[alt.Tooltip("phi:Q", format=".3f"), alt.Tooltip("measured:Q", format=".4g")])
-    chart = alt.layer(band, line, points).properties(
-        height=_height(big, 340), width="container",
+    chart = fig.layer(
+        band, line, points, height=_height(big, 340), width="container",
         title=f"Measured (points), fitted {model} (line), {level} band (shaded)")
     return fig.spec(chart, big)
 
@@ -461,13 +487,13 @@ def fit_chart(curve: pd.DataFrame, data: pd.DataFrame, *, model: str, level: str
 def residuals(data: pd.DataFrame, big: bool = False) -> dict:
     """ln(measured) - ln(fitted) against phi, with the zero line."""
     fig = Figure()
-    zero = fig.chart(pd.DataFrame({"y": [0.0]})).mark_rule(color=GREY).encode(y="y:Q")
+    zero = fig.chart(pd.DataFrame({"y": [0.0]})).mark_rule(color=GREY).encode(y=alt.Y("y:Q"))
     pts = fig.chart(data).mark_point(filled=True, color=VERMILLION, size=80).encode(
         x=alt.X("phi:Q", title="Volume fraction φ [–]"),
         y=alt.Y("residual:Q", title="Residual ln(measured / fitted) [–]"),
         tooltip=[alt.Tooltip("phi:Q", format=".3f"), alt.Tooltip("residual:Q", format=".3g")])
-    chart = alt.layer(zero, pts).properties(height=_height(big, 200), width="container",
-                                            title="Residuals")
+    chart = fig.layer(zero, pts, height=_height(big, 200), width="container",
+                      title="Residuals")
     return fig.spec(chart, big)
 
 
@@ -485,11 +511,12 @@ def headroom_bars(data: pd.DataFrame, big: bool = False, limit: float = 0.95) ->
                 scale=alt.Scale(domain=[0, max(1.0, float(data["headroom"].max()))])),
         color=alt.Color("verdict:N", title="Target windows", scale=alt.Scale(
             domain=names, range=[VERDICT_COLOURS[n] for n in names])),
-        tooltip=["candidate:N", alt.Tooltip("headroom:Q", format=".3f"), "verdict:N"])
+        tooltip=[alt.Tooltip("candidate:N"), alt.Tooltip("headroom:Q", format=".3f"),
+                 alt.Tooltip("verdict:N")])
     rule = fig.chart(pd.DataFrame({"x": [limit]})).mark_rule(
-        color=BLACK, strokeDash=[6, 3]).encode(x="x:Q")
-    chart = alt.layer(bars, rule).properties(height=(28 if big else 22) * len(data) + 70,
-                                             width="container")
+        color=BLACK, strokeDash=[6, 3]).encode(x=alt.X("x:Q"))
+    chart = fig.layer(bars, rule, height=(28 if big else 22) * len(data) + 70,
+                      width="container")
     return fig.spec(chart, big)
 
 
@@ -507,13 +534,12 @@ def size_classes(data: pd.DataFrame, marks: pd.DataFrame, *, x_title: str,
         color=alt.Color("basis:N", title="Basis", scale=alt.Scale(
             domain=["volume", "number"], range=[BLUE, PURPLE])),
         tooltip=[alt.Tooltip("diameter:Q", format=".3g"), alt.Tooltip("amount:Q", format=".3g"),
-                 "basis:N"])
+                 alt.Tooltip("basis:N")])
     rules = fig.chart(marks).mark_rule(color=GREY, strokeDash=[4, 3]).encode(
         x=alt.X("diameter:Q", scale=x_scale))
     text = fig.chart(marks).mark_text(y=8, dx=3, align="left", color=BLACK).encode(
-        x=alt.X("diameter:Q", scale=x_scale), text="label:N")
-    chart = alt.layer(lines, rules, text).properties(height=_height(big, 280),
-                                                     width="container")
+        x=alt.X("diameter:Q", scale=x_scale), text=alt.Text("label:N"))
+    chart = fig.layer(lines, rules, text, height=_height(big, 280), width="container")
     return fig.spec(chart, big)
 
 
@@ -527,13 +553,12 @@ def estimator_bars(data: pd.DataFrame, big: bool = False) -> dict:
     y = alt.Y("method:N", sort=None, title=None, axis=alt.Axis(labelLimit=240))
     dots = fig.chart(data).mark_point(filled=True, size=160 if big else 110, color=ORANGE,
                                       opacity=1, clip=True).encode(
-        x=x, y=y, tooltip=["method:N", alt.Tooltip("phi_max:Q", format=".4f")])
+        x=x, y=y, tooltip=[alt.Tooltip("method:N"), alt.Tooltip("phi_max:Q", format=".4f")])
     text = fig.chart(data).mark_text(align="left", dx=10, clip=True).encode(
         x=x, y=y, text=alt.Text("phi_max:Q", format=".3f"))
     # the page fits axes and title inside the height: leave room for them
-    chart = alt.layer(dots, text).properties(
-        height=(34 if big else 28) * len(data) + 90, width="container",
-        title="Packing limit by each estimator")
+    chart = fig.layer(dots, text, height=(34 if big else 28) * len(data) + 90,
+                      width="container", title="Packing limit by each estimator")
     return fig.spec(chart, big)
 
 
@@ -548,7 +573,7 @@ def blend_curve(frame: pd.DataFrame, *, names: list[str], big: bool = False):
                          scale=alt.Scale(zero=False)),
             tooltip=[alt.Tooltip("share_1:Q", format=".0f"),
                      alt.Tooltip("phi_max:Q", format=".4f")])]
-        top = alt.layer(*layers).properties(height=_height(big, 240), width="container")
+        top = fig.layer(*layers, height=_height(big, 240), width="container")
         if "relative_viscosity" not in frame:
             return fig.spec(top, big)
         long = pd.concat([
@@ -560,10 +585,10 @@ def blend_curve(frame: pd.DataFrame, *, names: list[str], big: bool = False):
             x=x, y=alt.Y("value:Q", title="Relative viscosity [–]",
                          scale=alt.Scale(type="log")),
             color=alt.Color("view:N", title="View", scale=alt.Scale(range=[BLUE, GREEN])),
-            tooltip=["view:N", alt.Tooltip("share_1:Q", format=".0f"),
+            tooltip=[alt.Tooltip("view:N"), alt.Tooltip("share_1:Q", format=".0f"),
                      alt.Tooltip("value:Q", format=".4g")]
         ).properties(height=_height(big, 220), width="container")
-        return fig.spec(alt.vconcat(top, bottom), big)
+        return fig.spec(fig.vconcat(top, bottom), big)
     chart = fig.chart(frame).mark_circle(size=60 if not big else 90).encode(
         x=alt.X("share_1:Q", title=f"{names[0]} [vol% of solids]"),
         y=alt.Y("share_2:Q", title=f"{names[1]} [vol% of solids]"),

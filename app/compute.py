@@ -286,7 +286,7 @@ def droplet_inputs(scenario: str) -> list[dict]:
 @st.cache_data(**CACHE)
 def phase_ratio(inputs: tuple, model: str, shear_rate_1_per_s: float, phi_max: float,
                 rigid: bool, jammed_yield: str, target_viscosity_Pa_s: float | None,
-                target_branch: str) -> dict:
+                target_branch: str, thinning: bool = True) -> dict:
     """Phase-ratio sweep (both branches), the phi for a target, and the breakup size.
 
     `inputs`: (continuous viscosity, droplet viscosity, interfacial tension, Sauter
@@ -299,7 +299,7 @@ def phase_ratio(inputs: tuple, model: str, shear_rate_1_per_s: float, phi_max: f
 
     def run():
         common = dict(model=model, phi_max=phi_max, surfactant_rigid=rigid,
-                      jammed_yield=jammed_yield)
+                      jammed_yield=jammed_yield, deformation_thinning=thinning)
         sweep = pr.phase_ratio_sweep(eta_c, eta_d, gamma, d32, shear_rate_1_per_s, **common)
         target = None
         if target_viscosity_Pa_s:

@@ -127,7 +127,8 @@ DEFAULTS: dict[str, object] = {
     "sz_spread": 1.6, "sz_particles": 400, "sz_seeds": 2, "sz_sim": {}, "sz_assign": "",
     "sz_dist_json": "", "bl_powders": [], "bl_at_loading": True,
     # Droplets page
-    "drop_name": "", "drop_phi_max": 0.64, "drop_rigid": False, "drop_jammed": "mason",
+    "drop_name": "", "drop_phi_max": 0.64, "drop_rigid": False, "drop_thinning": True,
+    "drop_jammed": "mason",
     "drop_target": None, "drop_branch": "direct",
     # Calibration (JSON of the fit that set the relation; "" = none)
     "calibration_json": "", "cal_text": "", "cal_source": "", "cal_message": "",
@@ -149,6 +150,16 @@ def _session(ss):
 
 
 SNAPSHOT_KEY = "_scenario_snapshot"
+SAVE_BOX_KEY = "_save_box"
+
+
+def save_box(ss: MutableMapping | None = None) -> dict:
+    """The dict the Save button reads when pressed: {"text": the current scenario JSON}.
+
+    A download button given a callable calls it on another thread, where session state
+    cannot be read; the callable keeps this very dict instead, and runs refresh its text.
+    """
+    return _session(ss).setdefault(SAVE_BOX_KEY, {})
 
 
 def snapshot(ss: MutableMapping | None = None) -> None:

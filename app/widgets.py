@@ -96,7 +96,30 @@ def current_scenario() -> str | None:
                  icon=":material/error:")
         return None
     st.session_state["scenario_json_current"] = text
+    state.save_box()["text"] = text
     return text
+
+
+def page_body(func):
+    """Run a page's body as a fragment: its own widgets rerun only the body, not the sidebar.
+
+    A callback that changes what the sidebar or the page header shows calls
+    `request_full_run`; the next body run then reruns the whole app instead.
+    """
+    @st.fragment
+    @functools.wraps(func)
+    def body():
+        if st.session_state.pop(FULL_RUN_KEY, False):
+            st.rerun()
+        func()
+    return body
+
+
+FULL_RUN_KEY = "_full_run_requested"
+
+
+def request_full_run() -> None:
+    st.session_state[FULL_RUN_KEY] = True
 
 
 def slug(name: str) -> str:
@@ -168,8 +191,13 @@ def scenario_box() -> None:
             text = compute.scenario_json(state.document_text())
         except predictor.LoadlineError:
             text = None
+        box = state.save_box()
+        box["text"] = text or ""
+        # The file is written when the button is pressed, from the box that every page run
+        # refreshes (`current_scenario`): a page changed after this sidebar run saves as shown.
         st.download_button(
-            "Save scenario", data=text or "", disabled=text is None, on_click="ignore",
+            "Save scenario", data=functools.partial(box.get, "text", ""),
+            disabled=text is None, on_click="ignore",
             file_name=slug(st.session_state.get("sc_name", "")) + sc.SUFFIX,
             mime="application/json", key="save_scenario", icon=":material/download:",
             help="The whole scenario as a .loadline.json file; open it again above.")

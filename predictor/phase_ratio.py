@@ -20,9 +20,12 @@ commonly seen there (common practice, no source).
 
 Regimes of the dispersed fraction x (boundaries are ours or common practice, see the
 constants): ``"dilute"`` for x < `DILUTE_LIMIT`, ``"concentrated"`` for x < phi_max (a
-relative-viscosity relation of the registry, Newtonian, zero capillary number),
-``"jammed"`` for x >= phi_max (a soft solid: yield stress and a Herschel-Bulkley-like flow
-curve from `predictor.emulsion.flow_stress_jammed`; the viscosity is the apparent viscosity
+relative-viscosity relation of the registry at zero capillary number, thinned by droplet
+deformation at the chosen shear rate with `predictor.emulsion.deformation_thinning` unless
+``deformation_thinning=False``; the capillary number uses the viscosity of that branch's
+continuous liquid and half the Sauter diameter), ``"jammed"`` for x >= phi_max (a soft
+solid: yield stress and a Herschel-Bulkley-like flow curve from
+`predictor.emulsion.flow_stress_jammed`; the viscosity is the apparent viscosity
 stress / shear rate at the chosen shear rate).
 """
 
@@ -56,7 +59,7 @@ COLUMNS = (
     "phi", "branch", "dispersed_fraction", "viscosity_ratio", "regime",
     "relative_viscosity", "viscosity_Pa_s", "yield_stress_Pa", "shear_modulus_Pa",
     "capillary_number", "droplet_deformation", "droplets_deformed", "droplets_break",
-    "inversion_caution", "lower_viscosity", "shear_rate_1_per_s",
+    "inversion_caution", "lower_viscosity", "shear_rate_1_per_s", "thinning_factor",
 )
 
 
@@ -69,7 +72,7 @@ def _scalar(value, field, low=0.0, low_open=True):
 
 def _inputs(continuous_viscosity_Pa_s, droplet_viscosity_Pa_s, interfacial_tension_N_per_m,
             sauter_diameter_m, shear_rate_1_per_s, model, phi_max, surfactant_rigid,
-            jammed_yield, model_params):
+            jammed_yield, model_params, deformation_thinning):
     eta_c = _scalar(continuous_viscosity_Pa_s, "continuous_viscosity_Pa_s")
     eta_d = _scalar(droplet_viscosity_Pa_s, "droplet_viscosity_Pa_s")
     gamma = _scalar(interfacial_tension_N_per_m, "interfacial_tension_N_per_m")
@@ -90,7 +93,7 @@ def _inputs(continuous_viscosity_Pa_s, droplet_viscosity_Pa_s, interfacial_tensi
     params.pop("viscosity_ratio", None)
     return dict(eta_c=eta_c, eta_d=eta_d, gamma=gamma, d32=d32, rate=rate, phi_max=phi_max,
                 rigid=bool(surfactant_rigid), jammed_yield=jammed_yield, spec=spec,
-                params=params)
+                params=params, thinning=bool(deformation_thinning))
 
 
 def _branch(x, eta_cont, eta_drop, c):
@@ -102,7 +105,18 @@ def _branch(x, eta_cont, eta_drop, c):
     message = c["spec"].validity_message(x[fluid], {**c["params"], "viscosity_ratio": lam})
     if message:
         warnings.warn(message, ValidityWarning, stacklevel=4)
-    eta_r_fluid = c["spec"].func(x_fluid, viscosity_ratio=lam, **c["params"])
+    eta_r_zero = c["spec"].func(x_fluid, viscosity_ratio=lam, **c["params"])
+    ca = emulsion.capillary_number(eta_cont, c["rate"], 0.5 * c["d32"], c["gamma"])
+    if c["thinning"]:
+        with warnings.catch_warnings():
+            # The relation's range is reported just above; breakup is the droplets_break column.
+            warnings.simplefilter("ignore", ValidityWarning)
+            eta_r_fluid = emulsion.deformation_thinning(
+                x_fluid, ca, lam, model=c["spec"].name, model_params=c["params"])
+        with np.errstate(invalid="ignore"):       # inf / inf near a divergence: no factor
+            thinning = np.where(np.isfinite(eta_r_zero), eta_r_fluid / eta_r_zero, 1.0)
+    else:
+        eta_r_fluid, thinning = eta_r_zero, np.ones_like(x)
     jammed = ~fluid
     stress = np.zeros_like(x)
     yield_stress = np.zeros_like(x)
@@ -125,9 +139,9 @@ def _branch(x, eta_cont, eta_drop, c):
     # Above 0.99 there is no emulsion left to describe (the other liquid is a trace).
     empty = x > 0.99
     regime = np.where(empty, "none", regime)
-    viscosity, yield_stress, modulus = (np.where(empty, np.nan, v)
-                                        for v in (viscosity, yield_stress, modulus))
-    ca = emulsion.capillary_number(eta_cont, c["rate"], 0.5 * c["d32"], c["gamma"])
+    thinning = np.where(fluid, thinning, 1.0)
+    viscosity, yield_stress, modulus, thinning = (
+        np.where(empty, np.nan, v) for v in (viscosity, yield_stress, modulus, thinning))
     deformation = ca * emulsion._taylor_deformation_factor(np.asarray(lam, dtype=float))
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", ValidityWarning)    # lambda < 1e-4 is only an edge
@@ -144,13 +158,14 @@ def _branch(x, eta_cont, eta_drop, c):
         "droplets_deformed": np.full(x.shape, deformation > DEFORMATION_ONSET),
         "droplets_break": np.full(x.shape, ca > ca_crit),
         "inversion_caution": x >= INVERSION_CAUTION_BAND[0],
+        "thinning_factor": thinning,
     }
 
 
 def phase_ratio_sweep(continuous_viscosity_Pa_s, droplet_viscosity_Pa_s,
                       interfacial_tension_N_per_m, sauter_diameter_m, shear_rate_1_per_s,
                       model="pal", phi_max=0.64, surfactant_rigid=False, phi=None,
-                      jammed_yield="mason", model_params=None):
+                      jammed_yield="mason", model_params=None, deformation_thinning=True):
     """Viscosity and yield stress of an emulsion against the droplet-liquid fraction.
 
     Parameters
@@ -182,6 +197,10 @@ def phase_ratio_sweep(continuous_viscosity_Pa_s, droplet_viscosity_Pa_s,
         Yield-stress relation of the jammed regime (see `emulsion.flow_stress_jammed`).
     model_params : dict, optional
         Further parameters of the relation, e.g. ``{"variant": 1}`` for Pal.
+    deformation_thinning : bool, optional
+        Below phi_max, lower the relation's zero-shear value for droplet deformation at the
+        shear rate (`predictor.emulsion.deformation_thinning`; rigid droplets do not thin).
+        False gives the Newtonian (zero capillary number) value.
 
     Returns
     -------
@@ -191,10 +210,13 @@ def phase_ratio_sweep(continuous_viscosity_Pa_s, droplet_viscosity_Pa_s,
         "concentrated" / "jammed"), ``relative_viscosity``, ``viscosity_Pa_s``,
         ``yield_stress_Pa``, ``shear_modulus_Pa``, ``capillary_number``,
         ``droplet_deformation`` (Taylor), ``droplets_deformed`` (deformation above
-        `DEFORMATION_ONSET`: the Newtonian estimate is too high, shear thinning not
-        modelled), ``droplets_break`` (capillary number above the critical one),
+        `DEFORMATION_ONSET`), ``droplets_break`` (capillary number above the critical one:
+        the droplet size would change, so the values are indicative),
         ``inversion_caution``, ``lower_viscosity`` (the branch with the lower viscosity at
-        this phi) and ``shear_rate_1_per_s``.
+        this phi), ``shear_rate_1_per_s`` and ``thinning_factor`` (viscosity with
+        deformation thinning over the zero-shear value; 1 where not applied: jammed rows,
+        whose flow curve carries its own rate dependence, or ``deformation_thinning=False``;
+        NaN where there is no emulsion).
 
     Raises
     ------
@@ -220,7 +242,7 @@ def phase_ratio_sweep(continuous_viscosity_Pa_s, droplet_viscosity_Pa_s,
     """
     c = _inputs(continuous_viscosity_Pa_s, droplet_viscosity_Pa_s, interfacial_tension_N_per_m,
                 sauter_diameter_m, shear_rate_1_per_s, model, phi_max, surfactant_rigid,
-                jammed_yield, model_params)
+                jammed_yield, model_params, deformation_thinning)
     phi = DEFAULT_PHI if phi is None else np.atleast_1d(as_array(phi, "phi")).ravel()
     phi = in_range(phi, "phi", 0.0, 0.99)
     frames = []
@@ -244,7 +266,7 @@ def phase_ratio_for_target(continuous_viscosity_Pa_s, droplet_viscosity_Pa_s,
                            *, target_viscosity_Pa_s=None, target_yield_stress_Pa=None,
                            branch="direct", model="pal", phi_max=0.64, surfactant_rigid=False,
                            jammed_yield="mason", regime=None, phi_upper=0.95,
-                           model_params=None):
+                           model_params=None, deformation_thinning=True):
     """The droplet-liquid fraction phi that reaches a target viscosity or yield stress.
 
     Searches the dispersed fraction from 0 to `phi_upper` on one branch for the lowest
@@ -255,7 +277,7 @@ def phase_ratio_for_target(continuous_viscosity_Pa_s, droplet_viscosity_Pa_s,
     ----------
     continuous_viscosity_Pa_s, droplet_viscosity_Pa_s, interfacial_tension_N_per_m, \
 sauter_diameter_m, shear_rate_1_per_s, model, phi_max, surfactant_rigid, jammed_yield, \
-model_params
+model_params, deformation_thinning
         As in `phase_ratio_sweep`.
     target_viscosity_Pa_s : float, optional
         Target viscosity at the shear rate. [Pa*s]
@@ -297,7 +319,7 @@ model_params
     """
     c = _inputs(continuous_viscosity_Pa_s, droplet_viscosity_Pa_s, interfacial_tension_N_per_m,
                 sauter_diameter_m, shear_rate_1_per_s, model, phi_max, surfactant_rigid,
-                jammed_yield, model_params)
+                jammed_yield, model_params, deformation_thinning)
     if (target_viscosity_Pa_s is None) == (target_yield_stress_Pa is None):
         raise InputRangeError("target", None,
                               "exactly one of target_viscosity_Pa_s, target_yield_stress_Pa")

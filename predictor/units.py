@@ -6,6 +6,7 @@ The app, the CLI and the scenario reader turn user text such as "120 cP", "2.5 u
 
 from __future__ import annotations
 
+import functools
 import re
 
 import numpy as np
@@ -82,13 +83,35 @@ def parse_quantity(text, dimension: str, field: str) -> float:
     if not unit:
         return number
     try:
-        q = Q_(number, ureg.parse_units(unit))
-        return float(q.m_as(target)) if target else float(q.to("dimensionless").magnitude)
+        scale, offset = _affine(unit, target)
     except Exception as err:  # noqa: BLE001  pint's parser raises many kinds on odd text
-        if isinstance(err, UnitError):
-            raise
         raise UnitError(f"{field} = {text!r} could not be converted to {target or 'a pure number'}"
                         f" ({type(err).__name__}).") from None
+    if scale is None:       # not an affine unit: let pint convert this very number
+        q = Q_(number, ureg.parse_units(unit))
+        return float(q.m_as(target)) if target else float(q.to("dimensionless").magnitude)
+    return number * scale + offset
+
+
+@functools.lru_cache(maxsize=512)
+def _affine(unit: str, target: str) -> tuple[float | None, float]:
+    """(scale, offset) with value_in_target = value * scale + offset, found once per unit.
+
+    pint parses a unit in about a tenth of a millisecond; the app converts dozens of values
+    per interaction, so each unit pair is resolved once. Every unit pint knows for our
+    dimensions is affine (degC, degF included); the map is checked at a third point and
+    ``(None, 0)`` sends a non-affine unit back to pint for every value.
+    """
+    def convert(x: float) -> float:
+        q = Q_(x, ureg.parse_units(unit))
+        return float(q.m_as(target)) if target else float(q.to("dimensionless").magnitude)
+
+    offset = convert(0.0)
+    scale = convert(1.0) - offset
+    probe = convert(1000.0)
+    if not np.isclose(probe, 1000.0 * scale + offset, rtol=1e-12, atol=1e-300):
+        return None, 0.0
+    return scale, offset
 
 
 def to_si(value: float, unit: str, dimension: str, field: str = "value") -> float:
@@ -111,7 +134,11 @@ def from_si(value, unit: str, dimension: str):
     120.0
     """
     target = SI_UNITS[dimension]
-    magnitude = Q_(np.asarray(value, dtype=float), target).m_as(unit)
+    scale, offset = _affine(target, unit) if unit else (1.0, 0.0)
+    if scale is None:
+        magnitude = Q_(np.asarray(value, dtype=float), target).m_as(unit)
+    else:
+        magnitude = np.asarray(value, dtype=float) * scale + offset
     return float(magnitude) if np.ndim(magnitude) == 0 else magnitude
 
 

@@ -327,3 +327,206 @@ def test_jammed_flow_curve_is_herschel_bulkley_like(phi, rate, relation):
 def test_jammed_flow_refuses_unknown_relation():
     with pytest.raises(InputRangeError, match="yield_relation"):
         emulsion.flow_stress_jammed(0.8, 1.0, 1e-3, 5e-3, 5e-6, yield_relation="foam")
+
+
+# ---- Shear thinning by droplet deformation --------------------------------------------------
+#
+# Sources for the checks below (all from memory, not checked against the papers):
+# LMW 2002 = E. W. Llewellin, H. M. Mader and S. D. R. Wilson, "The constitutive equation and
+#   flow dynamics of bubbly magmas", Geophys. Res. Lett. 29(24), 2170, 2002, steady-flow form
+#   eta_r = eta_inf + (eta_0 - eta_inf) / (1 + (6/5 Ca)^2);
+# MLM 2013 = H. M. Mader, E. W. Llewellin and S. P. Mueller, "The rheology of two-phase magmas:
+#   A review and analysis", J. Volcanol. Geotherm. Res. 257, 135-158, 2013, which recommends it
+#   with eta_0 = (1 - phi)^-1 and eta_inf = (1 - phi)^(5/3);
+# Oldroyd 1953 = J. G. Oldroyd, "The elastic and viscous properties of emulsions and
+#   suspensions", Proc. R. Soc. Lond. A 218, 122-132, 1953: dilute relaxation time
+#   (19K + 16)(2K + 3)/(40(K + 1)) and high-Ca intrinsic viscosity 5(K - 1)/(2K + 3).
+# The generalisation to any viscosity ratio is Loadline's own construction (see the docstring);
+# the checks of it below are its limits, not published values.
+
+def llewellin_mader(phi, ca):
+    """LMW 2002 / MLM 2013 bubble relation, written out independently of predictor."""
+    eta_0 = 1.0 / (1.0 - phi)
+    eta_inf = (1.0 - phi) ** (5.0 / 3.0)
+    return eta_inf + (eta_0 - eta_inf) / (1.0 + (6.0 / 5.0 * ca) ** 2)
+
+
+def high_shear_intrinsic(lam):
+    """Oldroyd 1953 (from memory): 5(K - 1)/(2K + 3); 5/2 for rigid spheres."""
+    return 2.5 if np.isinf(lam) else 5.0 * (lam - 1.0) / (2.0 * lam + 3.0)
+
+
+# Beyond PTP's registered range, or beyond breakup: warned, and intended here.
+@pytest.mark.filterwarnings("ignore::predictor.errors.ValidityWarning")
+@pytest.mark.parametrize("phi", [0.01, 0.1, 0.3, 0.5, 0.7])
+@pytest.mark.parametrize("ca", [0.0, 0.05, 0.5, 0.8333, 3.0, 100.0])
+def test_bubbles_follow_llewellin_mader(phi, ca):
+    # LMW 2002, Eq. of the steady-flow viscosity, as recommended by MLM 2013 (from memory).
+    got = emulsion.deformation_thinning(phi, ca, viscosity_ratio=0.0)
+    assert got == pytest.approx(llewellin_mader(phi, ca), rel=1e-12)
+
+
+def test_bubble_relation_is_half_thinned_at_ca_five_sixths():
+    # LMW 2002: (6/5 Ca)^2 = 1 at Ca = 5/6, the midpoint between eta_0 and eta_inf.
+    phi = 0.4
+    mid = 0.5 * (1.0 / (1.0 - phi) + (1.0 - phi) ** (5.0 / 3.0))
+    assert emulsion.deformation_thinning(phi, 5.0 / 6.0, 0.0) == pytest.approx(mid, rel=1e-12)
+
+
+def test_oldroyd_relaxation_time_at_the_limits():
+    # Oldroyd 1953 (from memory): 6/5 for bubbles, the constant of LMW 2002; 35*5/80 for
+    # equal viscosities (hand calculation); grows like 19K/20; rigid spheres never relax.
+    assert emulsion.relaxation_time_oldroyd(0.0) == pytest.approx(6.0 / 5.0, rel=1e-15)
+    assert emulsion.relaxation_time_oldroyd(1.0) == pytest.approx(35.0 * 5.0 / 80.0, rel=1e-15)
+    assert emulsion.relaxation_time_oldroyd(1e9) == pytest.approx(19.0 / 20.0 * 1e9, rel=1e-8)
+    assert emulsion.relaxation_time_oldroyd(INF) == INF
+    out = emulsion.relaxation_time_oldroyd(np.array([0.0, 0.5, 4.0]))
+    lam = np.array([0.0, 0.5, 4.0])
+    assert np.allclose(out, (19 * lam + 16) * (2 * lam + 3) / (40 * (lam + 1)), rtol=1e-14)
+
+
+ZERO_SHEAR = {
+    "phan-thien-pham": (lambda phi, lam: emulsion.phan_thien_pham(phi, lam), {}),
+    "pal": (lambda phi, lam: emulsion.pal(phi, lam, 0.7, 1), {"phi_max": 0.7, "variant": 1}),
+    "taylor": (lambda phi, lam: emulsion.taylor(phi, lam), {}),
+}
+
+
+@pytest.mark.parametrize("model", ZERO_SHEAR)
+@pytest.mark.parametrize("lam", [0.0, 0.1, 1.0, 25.0, INF])
+def test_zero_capillary_number_gives_the_chosen_relation(model, lam):
+    # Ca -> 0: the Newtonian relation itself (Phan-Thien & Pham 1997, Pal 2001, Taylor 1932).
+    relation, params = ZERO_SHEAR[model]
+    phi = np.array([0.0, 0.02, 0.2, 0.5]) if model != "taylor" else np.array([0.0, 0.01, 0.02])
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", ValidityWarning)
+        at_rest = emulsion.deformation_thinning(phi, 0.0, lam, model=model, model_params=params)
+        slow = emulsion.deformation_thinning(phi, 1e-10, lam, model=model, model_params=params)
+    assert np.array_equal(at_rest, relation(phi, lam))
+    assert np.allclose(slow, relation(phi, lam), rtol=1e-12)
+
+
+# Beyond PTP's registered range, or beyond breakup: warned, and intended here.
+@pytest.mark.filterwarnings("ignore::predictor.errors.ValidityWarning")
+@pytest.mark.parametrize("lam", [0.0, 0.3, 1.0, 10.0])
+def test_dilute_slopes_are_taylor_at_rest_and_oldroyd_at_high_shear(lam):
+    # Taylor 1932: slope (2.5K + 1)/(K + 1) at Ca -> 0; Oldroyd 1953 (from memory):
+    # 5(K - 1)/(2K + 3) at Ca -> inf; at K = 0 that is -5/3 (LMW 2002, MLM 2013).
+    phi = 1e-7
+    rest = (emulsion.deformation_thinning(phi, 0.0, lam) - 1.0) / phi
+    fast = (emulsion.deformation_thinning(phi, 1e9, lam) - 1.0) / phi
+    assert rest == pytest.approx(taylor_coefficient(lam), rel=1e-5)
+    assert fast == pytest.approx(high_shear_intrinsic(lam), rel=1e-5, abs=1e-6)
+
+
+# Beyond PTP's registered range, or beyond breakup: warned, and intended here.
+@pytest.mark.filterwarnings("ignore::predictor.errors.ValidityWarning")
+@pytest.mark.parametrize("phi", [0.05, 0.3, 0.6, 0.9])
+def test_bubbles_at_high_capillary_number_tend_to_five_thirds_power(phi):
+    # MLM 2013 (from memory): eta_inf = (1 - phi)^(5/3) for bubbles; dilute slope -5/3.
+    got = emulsion.deformation_thinning(phi, 1e8, 0.0)
+    assert got == pytest.approx((1.0 - phi) ** (5.0 / 3.0), rel=1e-12)
+    assert got < 1.0       # deformed bubbles make the flow easier than the liquid alone
+
+
+@pytest.mark.parametrize("model", ZERO_SHEAR)
+@pytest.mark.parametrize("ca", [0.0, 1e-3, 1.0, 1e6])
+def test_rigid_spheres_do_not_thin(model, ca):
+    # Rigid spheres (Einstein 1906; Phan-Thien & Pham 1997 / Pal 2001 rigid limits) do not
+    # deform, so the viscosity is the zero-shear one at every capillary number.
+    relation, params = ZERO_SHEAR[model]
+    phi = np.array([0.0, 0.01, 0.02]) if model == "taylor" else np.array([0.0, 0.3, 0.6])
+    got = emulsion.deformation_thinning(phi, ca, INF, model=model, model_params=params)
+    assert np.array_equal(got, relation(phi, INF))
+
+
+def test_very_viscous_droplets_hardly_thin_with_phan_thien_pham():
+    # Dilute amplitude phi (19K + 16)/((2K + 2)(2K + 3)) -> 0 as K -> inf (Taylor 1932 minus
+    # Oldroyd 1953 intrinsic viscosities, hand algebra): continuity with rigid spheres.
+    rigid = emulsion.phan_thien_pham(0.3, INF)
+    assert emulsion.deformation_thinning(0.3, 1e3, 1e12) == pytest.approx(rigid, rel=1e-9)
+
+
+@pytest.mark.parametrize("model", ["phan-thien-pham", "pal"])
+@given(phi=st.floats(0.0, 0.69), lam=ratios, ca=st.floats(0.0, 1e6), factor=st.floats(1.0, 1e3))
+@settings(max_examples=80, deadline=None)
+def test_thinning_never_thickens_and_stays_between_its_plateaus(model, phi, lam, ca, factor):
+    # The form of LMW 2002 decreases with Ca from eta_0 to eta_inf. Our generalisation:
+    # eta_inf = eta_0 (1 - phi)^([eta]_0 - [eta]_inf), Taylor 1932 minus Oldroyd 1953 (from
+    # memory) intrinsic viscosities, a non-negative exponent, so it never thickens.
+    params = {"phi_max": 0.7} if model == "pal" else {}
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", ValidityWarning)
+        slow = emulsion.deformation_thinning(phi, ca, lam, model=model, model_params=params)
+        fast = emulsion.deformation_thinning(phi, ca * factor + 1e-9, lam, model=model,
+                                             model_params=params)
+        eta_0 = emulsion.deformation_thinning(phi, 0.0, lam, model=model, model_params=params)
+    exponent = 0.0 if np.isinf(lam) else taylor_coefficient(lam) - high_shear_intrinsic(lam)
+    assert exponent >= 0.0
+    eta_inf = eta_0 * (1.0 - phi) ** exponent
+    assert fast <= slow * (1 + 1e-12)
+    assert eta_inf * (1 - 1e-12) <= fast <= slow <= eta_0 * (1 + 1e-12)
+
+
+def test_deformation_thinning_broadcasts_and_keeps_scalars():
+    out = emulsion.deformation_thinning(np.array([[0.1], [0.3]]), np.array([0.0, 0.1, 10.0]),
+                                        np.array([0.0, 1.0, INF]))
+    assert out.shape == (2, 3)
+    assert isinstance(emulsion.deformation_thinning(0.1, 0.1, 0.0), float)
+    assert isinstance(emulsion.relaxation_time_oldroyd(1.0), float)
+
+
+def test_deformation_thinning_warns_where_droplets_break():
+    # Above the critical capillary number (de Bruijn 1989 fit of Grace 1982) droplets break.
+    with pytest.warns(ValidityWarning, match="critical capillary number for breakup"):
+        emulsion.deformation_thinning(0.2, 1.0, 1.0)
+    with warnings.catch_warnings():
+        warnings.simplefilter("error", ValidityWarning)
+        emulsion.deformation_thinning(0.2, 0.1, 1.0)       # below Ca_crit(1) = 0.48
+        emulsion.deformation_thinning(0.2, 100.0, 10.0)    # K > 4.08: no breakup in shear
+        emulsion.deformation_thinning(0.2, 100.0, 0.0)     # bubbles: no breakup in the fit
+
+
+def test_deformation_thinning_reports_the_relation_range():
+    with pytest.warns(ValidityWarning, match="taylor"):
+        emulsion.deformation_thinning(0.3, 0.1, 1.0, model="taylor")
+
+
+@pytest.mark.parametrize("kwargs, field", [
+    ({"phi": -0.1}, "phi"),
+    ({"phi": 1.0}, "phi"),
+    ({"phi": np.nan}, "phi"),
+    ({"phi": "oil"}, "phi"),
+    ({"phi": 0.7, "model": "pal"}, "phi = 0.7"),          # at or above Pal's phi_max 0.64
+    ({"capillary_number": -1.0}, "capillary_number"),
+    ({"capillary_number": np.inf}, "capillary_number"),
+    ({"capillary_number": np.nan}, "capillary_number"),
+    ({"viscosity_ratio": -1.0}, "viscosity_ratio"),
+    ({"viscosity_ratio": np.nan}, "viscosity_ratio"),
+    ({"model_params": {"viscosity_ratio": 1.0}}, "model_params"),
+    ({"model_params": {"phi_max": 2.0}, "model": "pal"}, "phi_max"),
+    ({"model_params": {"phi_max": 0.7}}, "phi_max"),       # not a parameter of PTP
+])
+def test_deformation_thinning_bad_inputs_raise_named_errors(kwargs, field):
+    args = {"phi": 0.3, "capillary_number": 0.1, **kwargs}
+    with pytest.raises(InputRangeError, match=field):
+        emulsion.deformation_thinning(**args)
+
+
+def test_deformation_thinning_refuses_a_suspension_relation():
+    with pytest.raises(pr.UnknownModelError, match="phan-thien-pham"):
+        emulsion.deformation_thinning(0.3, 0.1, model="krieger-dougherty")
+
+
+def test_viscous_droplets_keep_pals_packing_divergence_when_thinned():
+    # With Pal 2001's packing limit the thinned value keeps the divergence at phi_max and,
+    # for viscous droplets, stays close to the zero-shear one: the factor (1 - phi)^D with
+    # D = (19K + 16)/(2(K + 1)(2K + 3)) (Taylor 1932 minus Oldroyd 1953, hand algebra)
+    # is 0.983 at K = 100, phi = 0.5.
+    params = {"phi_max": 0.64}
+    rest = emulsion.deformation_thinning(0.5, 0.0, 100.0, model="pal", model_params=params)
+    fast = emulsion.deformation_thinning(0.5, 1e9, 100.0, model="pal", model_params=params)
+    assert fast / rest == pytest.approx(0.5 ** (1916.0 / (2 * 101 * 203)), rel=1e-9)
+    near = emulsion.deformation_thinning(0.6399, 1e9, 1.0, model="pal", model_params=params)
+    assert near > 50.0 * emulsion.deformation_thinning(0.3, 1e9, 1.0, model="pal",
+                                                       model_params=params)

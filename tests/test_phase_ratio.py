@@ -41,7 +41,8 @@ def test_table_shape_and_columns():
 
 
 def test_fluid_rows_are_the_registered_relation_times_the_continuous_viscosity():
-    table = sweep(model="pal", phi_max=0.7)
+    # Newtonian (zero capillary number) values: deformation thinning off.
+    table = sweep(model="pal", phi_max=0.7, deformation_thinning=False)
     direct = branch(table, "direct")
     fluid = direct[direct["dispersed_fraction"] < 0.7]
     expected = 2e-3 * emulsion.pal(fluid["dispersed_fraction"].to_numpy(), 25.0, 0.7)
@@ -50,6 +51,66 @@ def test_fluid_rows_are_the_registered_relation_times_the_continuous_viscosity()
     fluid = inverted[inverted["dispersed_fraction"] < 0.7]
     expected = 50e-3 * emulsion.pal(fluid["dispersed_fraction"].to_numpy(), 2e-3 / 50e-3, 0.7)
     assert np.allclose(fluid["viscosity_Pa_s"].to_numpy(), expected, rtol=1e-14)
+
+
+def test_fluid_rows_are_thinned_by_droplet_deformation_at_the_branch_capillary_number():
+    # Invented high-shear case, 1e5 1/s: Ca = eta_continuous * rate * d32/2 / Gamma on each
+    # branch (Taylor 1934's definition), thinning from predictor.emulsion.deformation_thinning.
+    table = sweep(model="pal", phi_max=0.7, shear_rate_1_per_s=1e5)
+    for name, eta_cont, lam in (("direct", 2e-3, 25.0), ("inverted", 50e-3, 2e-3 / 50e-3)):
+        rows = branch(table, name)
+        fluid = rows[rows["dispersed_fraction"] < 0.7]
+        x = fluid["dispersed_fraction"].to_numpy()
+        ca = eta_cont * 1e5 * 2.5e-6 / 5e-3
+        assert np.allclose(fluid["capillary_number"], ca, rtol=1e-14)
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore", ValidityWarning)
+            thinned = emulsion.deformation_thinning(x, ca, lam, model="pal",
+                                                    model_params={"phi_max": 0.7})
+        assert np.allclose(fluid["viscosity_Pa_s"], eta_cont * thinned, rtol=1e-14)
+        zero = emulsion.pal(x, lam, 0.7)
+        assert np.allclose(fluid["thinning_factor"], thinned / zero, rtol=1e-14)
+
+
+@pytest.mark.parametrize("rigid", [False, True])
+def test_thinning_lowers_the_viscosity_at_high_shear_only(rigid):
+    # Llewellin et al. 2002 form (and our generalisation): eta_r falls with Ca, and Ca -> 0
+    # gives the Newtonian relation; rigid droplets do not deform, so they do not thin.
+    for rate in (1e-9, 1e5):
+        on = sweep(shear_rate_1_per_s=rate, surfactant_rigid=rigid)
+        off = sweep(shear_rate_1_per_s=rate, surfactant_rigid=rigid, deformation_thinning=False)
+        v_on, v_off = on["viscosity_Pa_s"].to_numpy(), off["viscosity_Pa_s"].to_numpy()
+        jammed = (on["regime"] == "jammed").to_numpy()
+        fluid = on["regime"].isin(["dilute", "concentrated"]).to_numpy()
+        assert np.array_equal(v_on[jammed], v_off[jammed])
+        assert np.all(v_on[fluid] <= v_off[fluid])
+        assert (off.loc[fluid, "thinning_factor"] == 1.0).all()
+        assert (on.loc[jammed, "thinning_factor"] == 1.0).all()
+        if rate < 1.0 or rigid:
+            assert np.array_equal(v_on[fluid], v_off[fluid])
+        else:
+            # Both branches thin visibly wherever there are droplets (phi > 0 on that branch).
+            some = fluid & (on["dispersed_fraction"] > 0.1).to_numpy()
+            assert np.all(v_on[some] < 0.99 * v_off[some])
+            assert np.all(on.loc[some, "thinning_factor"] < 0.99)
+
+
+def test_thinning_factor_is_nan_where_there_is_no_emulsion():
+    row = branch(sweep(phi=[0.0]), "inverted").loc[0.0]
+    assert np.isnan(row["thinning_factor"])
+    assert branch(sweep(phi=[0.0]), "direct").loc[0.0, "thinning_factor"] == 1.0
+
+
+def test_a_thinner_emulsion_needs_more_droplets_for_the_same_target():
+    # Thinned viscosity <= Newtonian at every phi, so the target is reached at a phi at least
+    # as high (invented high-shear case).
+    target = 10e-3
+    on = for_target(target_viscosity_Pa_s=target, shear_rate_1_per_s=1e5)
+    off = for_target(target_viscosity_Pa_s=target, shear_rate_1_per_s=1e5,
+                     deformation_thinning=False)
+    assert on > off
+    row = branch(sweep(phi=[on], shear_rate_1_per_s=1e5), "direct").iloc[0]
+    assert row["viscosity_Pa_s"] == pytest.approx(target, rel=1e-9)
 
 
 def test_jammed_rows_use_the_flow_curve_and_the_yield_stress():
@@ -160,7 +221,7 @@ def test_sweep_unknown_model():
 def for_target(**kwargs):
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", ValidityWarning)
-        return phase_ratio.phase_ratio_for_target(**CREAM, **kwargs)
+        return phase_ratio.phase_ratio_for_target(**{**CREAM, **kwargs})
 
 
 @pytest.mark.parametrize("model", ["pal", "phan-thien-pham", "taylor"])

@@ -160,6 +160,7 @@ def _verdicts(frame: pd.DataFrame) -> list[str]:
     return out
 
 
+@widgets.page_body
 def body() -> None:
     left, right = st.columns([1, 3], gap="large")
     with left:

@@ -41,10 +41,12 @@ def _use(fit: dict) -> None:
         "model": fit["model"], "params": fit["params"], "fixed": fit["fixed"] or None,
         "intervals": fit["intervals"], "source": ss["cal_source"],
         "phi": fit["phi"], "relative_viscosity": fit["relative_viscosity"]})
+    widgets.request_full_run()          # the page header shows the calibration badge
 
 
 def _stop() -> None:
     ss["calibration_json"] = ""
+    widgets.request_full_run()
     for name in state.AUTO_PARAMS:
         ss[f"auto_{name}"] = True
 
@@ -61,6 +63,7 @@ def upload_box() -> None:
         st.caption(f"Using **{ss['cal_source']}**.")
 
 
+@widgets.page_body
 def body() -> None:
     scenario = widgets.current_scenario()
     if scenario is None:

@@ -33,6 +33,10 @@ def controls(drops: list[dict]) -> None:
     st.toggle("Rigid droplet interface", key="drop_rigid",
               help="Droplets whose interface is immobilised by surfactant behave as rigid "
               "spheres.")
+    st.toggle("Droplets deform and thin the emulsion", key="drop_thinning",
+              help="Below the packing limit, deformed droplets lower the viscosity at the "
+              "process shear rate (Llewellin, Mader & Wilson's form for bubbles, generalised "
+              "to any viscosity ratio; see the README). Off: the zero-shear value.")
     st.selectbox("Yield stress when jammed", list(JAMMED), key="drop_jammed",
                  format_func=JAMMED.get)
     v = state.label(ss["unit_viscosity"])
@@ -42,6 +46,7 @@ def controls(drops: list[dict]) -> None:
                  format_func=BRANCH_NAMES.get)
 
 
+@widgets.page_body
 def body() -> None:
     scenario = widgets.current_scenario()
     if scenario is None:
@@ -77,7 +82,7 @@ def body() -> None:
             (drop["continuous_viscosity_Pa_s"], drop["droplet_viscosity_Pa_s"],
              drop["interfacial_tension_N_per_m"], drop["sauter_diameter_m"]),
             ss["droplet_model"], rate, float(ss["drop_phi_max"]), bool(ss["drop_rigid"]),
-            ss["drop_jammed"], target, ss["drop_branch"])
+            ss["drop_jammed"], target, ss["drop_branch"], bool(ss["drop_thinning"]))
     except predictor.LoadlineError as err:
         with right:
             widgets.show_error(err)
@@ -106,6 +111,11 @@ def body() -> None:
              "In simple shear at the process shear rate; larger droplets break. ∞: simple "
              "shear cannot break these droplets (viscosity ratio too high).",
              f"now D32 {widgets.fmt(from_si(drop['sauter_diameter_m'], s_unit, 'length'), 3)}"),
+            ("Deformation thinning", "–" if row is None or row["regime"] == "jammed"
+             else f"× {row['thinning_factor']:.3g}",
+             "Viscosity with the droplets deformed at the process shear rate over the "
+             "zero-shear value (1: no thinning, e.g. rigid droplets or the toggle off).",
+             None if row is None else f"Ca {row['capillary_number']:.3g}"),
             ("Fraction for the target", "–" if value["target"] is None
              else f"φ {value['target']:.3f}", "Lowest droplet-liquid fraction that reaches "
              "the target viscosity on the chosen branch."),

@@ -49,6 +49,7 @@ def controls() -> None:
                         key="phi_max_frictional", format="%.3f", step=0.01)
 
 
+@widgets.page_body
 def body() -> None:
     scenario = widgets.current_scenario()
     if scenario is None:

@@ -115,6 +115,7 @@ def _in_unit(frame: pd.DataFrame, column: str = "viscosity_Pa_s") -> pd.Series:
                      index=frame.index)
 
 
+@widgets.page_body
 def body() -> None:
     scenario = widgets.current_scenario()
     if scenario is None:

@@ -46,6 +46,7 @@ def _assign() -> None:
     i = names.get(ss["sz_assign"])
     if i is not None and ss.get("sz_dist_json"):
         ss[state.ingredient_key(i, "size_json")] = ss["sz_dist_json"]
+        widgets.request_full_run()      # the sidebar shows the ingredient's sizes
 
 
 def distribution(solids: list[dict]) -> str | None:
@@ -173,6 +174,7 @@ def blend_section(dist_json: str | None, solids: list[dict]) -> None:
     widgets.show_warnings(result["warnings"])
 
 
+@widgets.page_body
 def body() -> None:
     scenario = widgets.current_scenario()
     if scenario is None:

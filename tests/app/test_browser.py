@@ -258,3 +258,27 @@ def test_presentation_layout_and_demo_switch(page):
     expect(page.get_by_test_id("stMetric").filter(has_text="Viscosity now")).to_contain_text(
         "regime: concentrated", timeout=WAIT_MS)
     _shot(page, "droplets-presentation")
+
+
+def test_page_change_reaches_the_saved_file(page):
+    """A page's own widgets rerun only the page (a fragment); the sidebar's Save button must
+    still write the scenario as it is now, not as it was when the sidebar was drawn."""
+    import json
+
+    from playwright.sync_api import expect
+
+    picker = page.get_by_test_id("stSelectbox").filter(has_text="Relation for the solids")
+    expect(picker).to_be_visible(timeout=WAIT_MS)
+    assert json.loads((REPO / "data_demo" / "mineral_coating.loadline.json").read_text())[
+        "relations"]["solids"] != "quemada"
+    picker.click()
+    page.get_by_role("option", name="quemada", exact=True).click()
+    _settled(page)
+    sidebar = page.get_by_test_id("stSidebar")
+    sidebar.get_by_text("Open, save, demos").click()
+    save = sidebar.get_by_role("button", name="Save scenario")
+    expect(save).to_be_enabled(timeout=WAIT_MS)
+    with page.expect_download(timeout=WAIT_MS) as download:
+        save.click()
+    saved = json.loads(pathlib.Path(download.value.path()).read_text())
+    assert saved["relations"]["solids"] == "quemada"

@@ -73,3 +73,23 @@ def test_missing_interfacial_tension_is_named():
     at = page("droplets", scenario="hand_cream", ing0_tension=None).run()
     assert not at.exception
     assert "interfacial tension" in messages(at)
+
+
+def test_deformation_thinning_is_shown_and_can_be_switched_off():
+    at = page("droplets", scenario="hand_cream").run()
+    at.number_input(key="process_shear_rate").set_value(3e4).run()
+    assert not at.exception
+    eta_c, eta_d, gamma, d32 = _inputs(demo("hand_cream"))
+    on, off = (phase_ratio.phase_ratio_sweep(eta_c, eta_d, gamma, d32, 3e4,
+                                             model="phan-thien-pham", deformation_thinning=t)
+               for t in (True, False))
+    pick = (on["branch"] == "direct") & np.isclose(on["phi"], 0.30)
+    factor = float(on[pick]["thinning_factor"].iloc[0])
+    assert factor < 1.0      # Ca is not small here: the droplets thin the cream
+    assert metric(at, "Deformation thinning") == f"× {factor:.3g}"
+    assert metric(at, "Viscosity now") == widgets.fmt(
+        from_si(float(on[pick]["viscosity_Pa_s"].iloc[0]), "mPa*s", "viscosity"))
+    at.toggle(key="drop_thinning").set_value(False).run()
+    assert metric(at, "Deformation thinning") == "× 1"
+    assert metric(at, "Viscosity now") == widgets.fmt(
+        from_si(float(off[pick]["viscosity_Pa_s"].iloc[0]), "mPa*s", "viscosity"))

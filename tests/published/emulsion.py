@@ -27,6 +27,13 @@ _MASON96 = ("T. G. Mason, J. Bibette and D. A. Weitz, Yielding and flow of monod
 _DEBRUIJN = ("R. A. de Bruijn, Deformation and breakup of drops in simple shear flows, "
              "PhD thesis, Eindhoven, 1989: fit of the breakup data of H. P. Grace, "
              "Chem. Eng. Commun. 14, 225-277, 1982")
+_LMW = ("E. W. Llewellin, H. M. Mader and S. D. R. Wilson, The constitutive equation and flow "
+        "dynamics of bubbly magmas, Geophys. Res. Lett. 29(24), 2170, 2002, steady-flow "
+        "viscosity; form recommended by H. M. Mader, E. W. Llewellin and S. P. Mueller, The "
+        "rheology of two-phase magmas: A review and analysis, J. Volcanol. Geotherm. Res. 257, "
+        "135-158, 2013")
+_OLDROYD = ("J. G. Oldroyd, The elastic and viscous properties of emulsions and suspensions, "
+            "Proc. R. Soc. Lond. A 218, 122-132, 1953, dilute relaxation time")
 _TAYLOR34 = ("G. I. Taylor, The formation of emulsions in definable fields of flow, "
              "Proc. R. Soc. A 146, 501-523, 1934")
 
@@ -60,6 +67,23 @@ CASES = [
          "0.109375", _TAYLOR34, "hand calculation Ca (19 + 16)/(16 + 16) (from memory)"),
     Case("emulsion.taylor_deformation", {"capillary_number": 0.1, "viscosity_ratio": INF},
          "0.11875", _TAYLOR34, "rigid-viscosity limit 19/16 Ca (from memory)"),
+    # Shear thinning of bubbly liquids: eta_inf + (eta_0 - eta_inf)/(1 + (6/5 Ca)^2),
+    # eta_0 = 1/(1 - phi), eta_inf = (1 - phi)^(5/3).
+    Case("emulsion.deformation_thinning",
+         {"phi": 0.3, "capillary_number": 1.0, "viscosity_ratio": 0.0}, "0.911169", _LMW,
+         "hand calculation 0.7^(5/3) + (1/0.7 - 0.7^(5/3))/2.44 (from memory; same form in "
+         "two public codes)"),
+    Case("emulsion.deformation_thinning",
+         {"phi": 0.5, "capillary_number": 0.5, "viscosity_ratio": 0.0}, "1.553965", _LMW,
+         "hand calculation 0.5^(5/3) + (2 - 0.5^(5/3))/1.36 (from memory)"),
+    Case("emulsion.deformation_thinning",
+         {"phi": 0.3, "capillary_number": 1e8, "viscosity_ratio": 0.0}, "0.551861", _LMW,
+         "high-Ca limit (1 - phi)^(5/3) = 0.7^(5/3) (from memory)"),
+    Case("emulsion.relaxation_time_oldroyd", {"viscosity_ratio": 0.0}, "1.2",
+         _OLDROYD + "; the constant 6/5 of Llewellin, Mader & Wilson, GRL 2002",
+         "bubble limit 6/5 (from memory)", rel_tol=1e-12),
+    Case("emulsion.relaxation_time_oldroyd", {"viscosity_ratio": 1.0}, "2.1875", _OLDROYD,
+         "hand calculation 35 * 5/(40 * 2) (from memory)"),
     Case("emulsion.critical_capillary_de_bruijn", {"viscosity_ratio": 1.0}, "0.4812",
          _DEBRUIJN, "hand calculation from the fit (coefficients from memory); Grace's "
          "curve is about 0.4-0.5 near lambda = 1 (from memory)"),
