@@ -177,8 +177,9 @@ def loading_sweep(curves: pd.DataFrame, *, y_title: str, series: str = "relation
         base = fig.chart(rule)
         layers.append(base.mark_rule(color=VERMILLION, strokeDash=[8, 4], strokeWidth=2)
                       .encode(x=alt.X("phi:Q", scale=x_scale, axis=None)))
-        layers.append(base.mark_text(color=VERMILLION, align="right", dx=-6, y=12,
-                                     fontWeight="bold")
+        # at the foot of the rule: the curve climbs out of the plot near phi_max at the top
+        layers.append(base.mark_text(color=VERMILLION, align="right", dx=-6,
+                                     y=_height(big) - 8, baseline="bottom", fontWeight="bold")
                       .encode(x=alt.X("phi:Q", scale=x_scale, axis=None), text=alt.Text("text:N")))
     if limit is not None and limit.get("viscosity"):
         lim = pd.DataFrame([limit])
@@ -291,25 +292,36 @@ def flow_curve(curve: pd.DataFrame, *, windows: pd.DataFrame, x_title: str, y_ti
     shown["low_c"] = shown["low"].clip(lower=lo)
     shown["high_c"] = shown["high"].clip(upper=hi)
     shown["chosen"] = shown["name"] == selected
-    row = 34 if big else 27
+    row = 28 if big else 21
     strip_y = alt.Y("name:N", sort=list(shown["name"]), title=None,
                     axis=alt.Axis(labels=False, ticks=False, domain=False, minExtent=AXIS_EXTENT,
                                   maxExtent=AXIS_EXTENT),
                     scale=alt.Scale(paddingInner=0.1))
     colour = alt.Color("chosen:N", legend=None,
                        scale=alt.Scale(domain=[True, False], range=[VERMILLION, SKY]))
+    # Each name beside its bar, on the side with room: right of bars in the lower half of
+    # the (log) axis, left of bars in the upper half; never on top of another row's bar.
+    middle = math.sqrt(lo * hi)
+    shown["right"] = np.sqrt(shown["low_c"] * shown["high_c"]) < middle
+    label_colour = alt.Color("chosen:N", legend=None, scale=alt.Scale(
+        domain=[True, False], range=[VERMILLION, "#333333"]))
+    labels = [fig.chart(shown[shown["right"] == right]).mark_text(
+        align="left" if right else "right", baseline="middle", dx=5 if right else -5
+    ).encode(x=alt.X(f"{'high_c' if right else 'low_c'}:Q", scale=x_scale,
+                                  axis=None), y=strip_y, text=alt.Text("name:N"),
+                          color=label_colour)
+        for right in (True, False) if (shown["right"] == right).any()]
     strip = fig.layer(
-        fig.chart(shown).mark_bar(height=7 if not big else 9, yOffset=5, cornerRadius=2).encode(
+        fig.chart(shown).mark_bar(height=7 if not big else 9, cornerRadius=2).encode(
             x=alt.X("low_c:Q", scale=x_scale, axis=None), x2=alt.X2("high_c:Q"), y=strip_y,
             color=colour, tooltip=[alt.Tooltip("name:N", title="process"),
                                    alt.Tooltip("low:Q", format="~g", title="from"),
                                    alt.Tooltip("high:Q", format="~g", title="to")]),
-        fig.chart(shown).mark_text(align="left", baseline="bottom", dx=2, dy=1).encode(
-            x=alt.X("low_c:Q", scale=x_scale, axis=None), y=strip_y, text=alt.Text("name:N"),
-            color=alt.Color("chosen:N", legend=None, scale=alt.Scale(
-                domain=[True, False], range=[VERMILLION, "#333333"]))),
+        *labels, resolve={"scale": {"color": "independent"}},
         height=row * max(len(shown), 1), width=width,
         title=f"Typical process shear rates [{x_title.split('[')[-1].rstrip(']')}]")
+
+    panel_height = _height(big, 280)
 
     def panel(field: str, title: str, with_regime: bool) -> dict:
         data = curve[(curve[field] > 0) & (curve[field] < float("inf"))]
@@ -332,14 +344,18 @@ def flow_curve(curve: pd.DataFrame, *, windows: pd.DataFrame, x_title: str, y_ti
                               alt.Tooltip(f"{field}:Q", format=".4g", title=title)]))
         if with_regime and "regime" in data and len(data):
             regimes = list(dict.fromkeys(data["regime"]))
-            bands = data.assign(rate_next=data["rate"].shift(-1).fillna(data["rate"].iloc[-1]))
-            layers.append(fig.chart(bands).mark_rect(y=alt.expr("height - 9"),
-                                                     y2=alt.expr("height"), strokeWidth=0.6)
+            # One rectangle per run of equal regimes (no hairline gaps between points).
+            edges = data.assign(rate_next=data["rate"].shift(-1).fillna(data["rate"].iloc[-1]))
+            run = (edges["regime"] != edges["regime"].shift()).cumsum()
+            bands = edges.groupby(run, sort=False).agg(
+                rate=("rate", "first"), rate_next=("rate_next", "last"),
+                regime=("regime", "first"))
+            # No stroke channel on the same field: Vega-Lite merges the two legends, and a
+            # stroke without a legend would hide the colour legend too.
+            layers.append(fig.chart(bands).mark_rect(y=panel_height - 9, y2=panel_height)
                           .encode(x=x_enc, x2=alt.X2("rate_next:Q"),
-                                  color=alt.Color("regime:N", title="Regime", scale=alt.Scale(
-                              domain=regimes, range=[REGIME_COLOURS.get(r, GREY)
-                                                     for r in regimes])),
-                                  stroke=alt.Stroke("regime:N", legend=None, scale=alt.Scale(
+                                  color=alt.Color("regime:N", title="Regime (strip along the "
+                                                  "shear-rate axis)", scale=alt.Scale(
                                       domain=regimes, range=[REGIME_COLOURS.get(r, GREY)
                                                              for r in regimes])),
                                   tooltip=[alt.Tooltip("regime:N", title="regime")]))
@@ -353,7 +369,7 @@ def flow_curve(curve: pd.DataFrame, *, windows: pd.DataFrame, x_title: str, y_ti
             layers.append(fig.chart(pd.DataFrame([point])).mark_point(
                 shape="diamond", filled=True, color=BLACK, size=260 if big else 170).encode(
                 x=x_enc, y=y_enc))
-        return fig.layer(*layers, height=_height(big, 280), width=width)
+        return fig.layer(*layers, height=panel_height, width=width)
 
     panels = [strip, panel("viscosity", y_title, True)]
     if stress_title:
@@ -537,9 +553,12 @@ def size_classes(data: pd.DataFrame, marks: pd.DataFrame, *, x_title: str,
                  alt.Tooltip("basis:N")])
     rules = fig.chart(marks).mark_rule(color=GREY, strokeDash=[4, 3]).encode(
         x=alt.X("diameter:Q", scale=x_scale))
-    text = fig.chart(marks).mark_text(y=8, dx=3, align="left", color=BLACK).encode(
+    height = _height(big, 280)
+    # Labels along the bottom: the curves are high around D10-D90, where the labels sit.
+    text = fig.chart(marks).mark_text(y=height - 6, dx=3, align="left", baseline="bottom",
+                                      color=BLACK).encode(
         x=alt.X("diameter:Q", scale=x_scale), text=alt.Text("label:N"))
-    chart = fig.layer(lines, rules, text, height=_height(big, 280), width="container")
+    chart = fig.layer(lines, rules, text, height=height, width="container")
     return fig.spec(chart, big)
 
 
