@@ -500,16 +500,26 @@ def fit_chart(curve: pd.DataFrame, data: pd.DataFrame, *, model: str, level: str
     return fig.spec(chart, big)
 
 
-def residuals(data: pd.DataFrame, big: bool = False) -> dict:
-    """ln(measured) - ln(fitted) against phi, with the zero line."""
+def residuals(data: pd.DataFrame, big: bool = False, x_max: float | None = None) -> dict:
+    """ln(measured) - ln(fitted) against phi, with the zero line, on a symmetric axis.
+
+    `x_max`: right end of the phi axis, to line up with the fit chart above it.
+    """
     fig = Figure()
-    zero = fig.chart(pd.DataFrame({"y": [0.0]})).mark_rule(color=GREY).encode(y=alt.Y("y:Q"))
+    spread = float(np.nanmax(np.abs(data["residual"]))) if len(data) else 0.0
+    top = float(np.ceil(max(spread, 1e-3) * 1.25 * 1000) / 1000)
+    y = alt.Y("residual:Q", title="ln(measured / fitted) [–]",
+              scale=alt.Scale(domain=[-top, top], nice=False),
+              axis=alt.Axis(values=[-top, -top / 2, 0.0, top / 2, top], format=".3~f"))
+    x_end = x_max if x_max is not None else float(data["phi"].max()) if len(data) else 1.0
+    x = alt.X("phi:Q", title="Volume fraction φ [–]",
+              scale=alt.Scale(domain=[0.0, round(x_end, 3)], nice=False))
+    zero = fig.chart(pd.DataFrame({"residual": [0.0]})).mark_rule(color=GREY).encode(y=y)
     pts = fig.chart(data).mark_point(filled=True, color=VERMILLION, size=80).encode(
-        x=alt.X("phi:Q", title="Volume fraction φ [–]"),
-        y=alt.Y("residual:Q", title="Residual ln(measured / fitted) [–]"),
+        x=x, y=y,
         tooltip=[alt.Tooltip("phi:Q", format=".3f"), alt.Tooltip("residual:Q", format=".3g")])
     chart = fig.layer(zero, pts, height=_height(big, 200), width="container",
-                      title="Residuals")
+                      title="Residuals (points above the line: measured thicker than fitted)")
     return fig.spec(chart, big)
 
 

@@ -29,6 +29,13 @@ def _uploaded() -> None:
         ss["cal_message"] = str(err)
 
 
+COMPARISON_HEADERS = {
+    "model": "Relation", "n_params": "Fitted parameters", "aic": "AIC", "delta_aic": "ΔAIC",
+    "akaike_weight": "Akaike weight", "aicc": "AICc", "bic": "BIC",
+    "rmse_log": "rms error (ln)", "r2_log": "R² (ln)", "params": "Fitted values",
+    "notes": "Notes"}
+
+
 def _use(fit: dict) -> None:
     """Write the fitted relation into the scenario and mark it as calibrated."""
     ss["model"] = fit["model"]
@@ -137,7 +144,8 @@ def body() -> None:
         chart = charts.fit_chart(curve, data, model=fit["model"], level=level,
                                  big=ss["presentation"])
         widgets.chart_block(chart, curve.assign(model=fit["model"]), "calibration", "cal")
-        resid = charts.residuals(data, big=ss["presentation"])
+        resid = charts.residuals(data, big=ss["presentation"],
+                                 x_max=float(curve["phi"].max()) if len(curve) else None)
         widgets.chart_block(resid, data, "calibration-residuals", "resid")
         for note in fit["notes"]:
             messages.append(note)
@@ -146,8 +154,9 @@ def body() -> None:
         st.subheader("Relations compared on the same data", anchor=False)
         comp = pd.DataFrame(fit["comparison"])
         st.dataframe(comp, hide_index=True, width="stretch", column_config={
-            c: st.column_config.NumberColumn(format="%.4g") for c in comp.columns
-            if comp[c].dtype.kind == "f"})
+            c: st.column_config.NumberColumn(COMPARISON_HEADERS.get(c, c), format="%.4g")
+            if comp[c].dtype.kind == "f" else st.column_config.Column(
+                COMPARISON_HEADERS.get(c, c)) for c in comp.columns})
         st.caption("ΔAIC below about 2: the data support both relations about equally.")
     with st.expander("The measurements as read (SI units)"):
         st.dataframe(table, hide_index=True, width="stretch")

@@ -30,10 +30,10 @@ def controls(drops: list[dict]) -> None:
                     step=10.0)
     st.slider("Droplet packing limit φmax [–]", min_value=0.5, max_value=0.9, step=0.01,
               key="drop_phi_max", help="Where the emulsion jams into a soft solid.")
-    st.toggle("Rigid droplet interface", key="drop_rigid",
+    st.toggle("Rigid interface", key="drop_rigid",
               help="Droplets whose interface is immobilised by surfactant behave as rigid "
               "spheres.")
-    st.toggle("Droplets deform and thin the emulsion", key="drop_thinning",
+    st.toggle("Deformation thinning", key="drop_thinning",
               help="Below the packing limit, deformed droplets lower the viscosity at the "
               "process shear rate (Llewellin, Mader & Wilson's form for bubbles, generalised "
               "to any viscosity ratio; see the README). Off: the zero-shear value.")
