@@ -3,8 +3,9 @@
 This is an orchestration module like `formulation.py`: it reads the table, converts units
 at the edge (`predictor.units`), and sequences vectorised calls to the core over all rows of
 a chunk at once (`composition`, `suspension`, the registry's relations, `liquids`,
-`formulation.mixture` once per distinct powder blend). It writes no relation of its own.
-Rows with bad input get a message in their `error` column and never stop the run.
+`shear.newtonian_flow_viscosity`; `formulation.mixture` once per distinct powder blend). It
+writes no relation of its own. Rows with bad input get a message in their `error` column and
+never stop the run; so does a CSV row with more cells than the header.
 
 The candidate table (CSV, or Excel with openpyxl)
 ------------------------------------------------
@@ -50,14 +51,18 @@ like one of ours (``ingredient``, ``window``, ``liquid``) but is not recognised 
 
 Output columns, appended to the input columns: ``status`` (``ok`` / ``error``), ``error``,
 ``phi solids [-]`` (effective, with adsorbed layers), ``phi droplets [-]``, ``phi_max [-]``,
-``headroom phi/phi_max [-]``, ``liquid viscosity [Pa*s]``, ``relative viscosity [-]``, and per
-window ``window j viscosity [Pa*s]``, ``window j max solids [vol%]`` (effective),
-``window j max solids [wt%]``, ``window j verdict`` (``pass`` / ``fail`` / ``error``), then
-``settling`` and ``warnings``. The viscosity unit of the output is selectable.
+``headroom phi/phi_max [-]``, ``liquid viscosity [Pa*s]``, and per window
+``window j viscosity [Pa*s]``, ``window j regime``, ``window j max solids [vol%]``
+(effective) and ``window j max solids [wt%]`` (when the window has a max viscosity),
+``window j verdict`` (``pass`` / ``fail`` / ``error``), then ``settling`` and ``warnings``.
+The viscosity unit of the output is selectable.
 
-The viscosity is the formulation's Newtonian view, as `formulation.predict` gives it (the
-liquid at its temperature times the relative viscosity of solids and droplets), so a batch
-row equals `predict` for the same inputs.
+The viscosity at a window's shear rate is the one `formulation.predict` gives (Brownian
+thinning between the zero- and high-shear plateaus, droplets in the medium), and the highest
+loading the one `formulation.max_loading` gives, so a batch row equals them for the same
+inputs. The batch liquids are Newtonian and have no thickening, so the flow curve has a
+closed form: every row of a chunk is computed at once, with no per-row flow-curve solve, and
+the highest loadings by one bisection vectorised over rows and windows.
 """
 
 from __future__ import annotations
@@ -66,13 +71,14 @@ import io
 import math
 import pathlib
 import re
+import warnings as warnings_module
 from collections.abc import Callable, Iterator
 from dataclasses import dataclass, field
 
 import numpy as np
 import pandas as pd
 
-from . import composition, formulation, sizes, suspension
+from . import composition, formulation, shear, sizes, suspension
 from .errors import InputRangeError, LoadlineError, ScenarioError, UnitError
 from .labdata import decimal_point, decode_text, looks_like_data, read_bytes
 from .registry import get_model
@@ -245,13 +251,24 @@ def _decimal_points(frame: pd.DataFrame) -> pd.DataFrame:
     return frame.apply(lambda col: col.map(decimal_point))
 
 
+#: Cells read beyond the header on each row, to find rows with more cells than the header;
+#: a wider row switches the rest of the file to Python's csv reader (slower, no limit).
+EXTRA_CELLS = 16
+#: Column `read_table` adds to a chunk whose rows it could not align with the header: the
+#: message per row ("" for good rows). The NUL cannot occur in a header of a readable file.
+ROW_ERROR = "\x00row error"
+
+
 def read_table(path, chunk_rows: int = CHUNK_ROWS) -> Iterator[pd.DataFrame]:
     """The candidate table in chunks of text cells (CSV streamed; Excel read whole).
 
     A CSV is UTF-8 (a BOM is allowed; Latin-1 is refused with the line of the first bad
     byte, not guessed), delimited by ``,``, ``;`` or a tab (found from the header line), and
     at most `MAX_TABLE_BYTES`. In a ``;`` or tab file, a decimal comma (``0,25``) reads as a
-    decimal point.
+    decimal point. A row with more cells than the header (counting up to its last non-empty
+    cell; often a text cell holding the delimiter without quotes) is not shifted or dropped:
+    the chunk gets a `ROW_ERROR` column naming the row and both counts, and the screen
+    reports the row as an error. Rows with fewer cells have the missing ones empty.
     """
     path = pathlib.Path(path)
     if not path.is_file():
@@ -277,12 +294,38 @@ def read_table(path, chunk_rows: int = CHUNK_ROWS) -> Iterator[pd.DataFrame]:
         start = handle.read(1 << 16)
     if len(start) == 1 << 16:  # cut at a line end, so a split character is not misreported
         start = start[:start.rfind(b"\n") + 1] or start[:-4]
-    delimiter = _sniff(decode_text(start, path.name, what), path.name)
+    text = decode_text(start, path.name, what)
+    delimiter = _sniff(text, path.name)
+    lines = re.split(r"\r\n|\r|\n", text)
+    header_line = next(i for i, ln in enumerate(lines) if ln.strip())
+    options = dict(dtype=str, keep_default_na=False, skipinitialspace=True,
+                   encoding="utf-8-sig", sep=delimiter)
+    done = 0
     try:
-        reader = pd.read_csv(path, dtype=str, keep_default_na=False, chunksize=chunk_rows,
-                             skipinitialspace=True, encoding="utf-8-sig", sep=delimiter)
-        for chunk in reader:
-            yield chunk if delimiter == "," else _decimal_points(chunk)
+        header = list(pd.read_csv(path, nrows=0, **options).columns)
+        extra = [f"\x00extra {i}" for i in range(1, EXTRA_CELLS + 1)]
+        reader = pd.read_csv(path, header=None, skiprows=header_line + 1, names=header + extra,
+                             chunksize=chunk_rows, **options)
+        try:
+            for chunk in reader:
+                filled = chunk[extra].to_numpy(dtype=object) != ""
+                # cells up to the last non-empty extra one (rows without extras: the header's)
+                counts = np.where(filled.any(axis=1), len(header) + EXTRA_CELLS
+                                  - np.argmax(filled[:, ::-1], axis=1), len(header))
+                chunk = _aligned(chunk.drop(columns=extra), counts, len(header), done,
+                                 delimiter)
+                done += len(chunk)
+                yield chunk
+            return
+        except pd.errors.ParserError:  # a row beyond the extra cells: count with csv
+            pass
+        for block in _csv_rows(path, delimiter, done, chunk_rows):
+            counts = np.array([_cell_count(row) for row in block])
+            block = [(row + [""] * len(header))[:len(header)] for row in block]
+            chunk = _aligned(pd.DataFrame(block, columns=header, dtype=object), counts,
+                             len(header), done, delimiter)
+            done += len(chunk)
+            yield chunk
     except pd.errors.EmptyDataError:
         raise ScenarioError(f"{path.name} is empty; expected a header row and "
                             "candidate rows.") from None
@@ -291,6 +334,48 @@ def read_table(path, chunk_rows: int = CHUNK_ROWS) -> Iterator[pd.DataFrame]:
                             "(far into the file); save the table as UTF-8.") from None
     except pd.errors.ParserError as err:
         raise ScenarioError(f"{path.name} is not a readable CSV table ({err}).") from None
+
+
+def _cell_count(row: list[str]) -> int:
+    """Cells of a row up to its last non-empty one."""
+    for i in range(len(row), 0, -1):
+        if row[i - 1].strip():
+            return i
+    return 0
+
+
+def _aligned(chunk: pd.DataFrame, counts: np.ndarray, width: int, done: int,
+             delimiter: str) -> pd.DataFrame:
+    """`chunk` (header columns only), with `ROW_ERROR` where a row had more cells."""
+    if delimiter != ",":
+        chunk = _decimal_points(chunk)
+    wide = counts > width
+    if not wide.any():
+        return chunk
+    shown = {",": "comma", ";": "semicolon", "\t": "tab"}[delimiter]
+    messages = np.full(len(chunk), "", dtype=object)
+    for i in np.flatnonzero(wide):
+        # row number as a spreadsheet shows it (the header is row 1)
+        messages[i] = (f"row {done + i + 2} has {counts[i]} cells, the header has {width}; "
+                       f"a text cell holding a {shown} needs quotes. The row is not read.")
+    chunk = chunk.copy()
+    chunk[ROW_ERROR] = messages
+    return chunk
+
+
+def _csv_rows(path: pathlib.Path, delimiter: str, skip: int, chunk_rows: int):
+    """Blocks of rows (lists of cells) after the header and `skip` rows, by Python's csv."""
+    import csv
+    import itertools
+
+    with path.open(newline="", encoding="utf-8-sig") as handle:
+        rows = (row for row in csv.reader(handle, delimiter=delimiter, skipinitialspace=True)
+                if row)
+        next(rows, None)
+        for _ in itertools.islice(rows, skip):
+            pass
+        while block := list(itertools.islice(rows, chunk_rows)):
+            yield block
 
 
 def count_rows(path) -> int | None:
@@ -398,8 +483,11 @@ class _Rows:
         return pd.isna(self.errors)
 
 
-def _read_cells(chunk: pd.DataFrame, layout: Layout) -> _Rows:
+def _read_cells(chunk: pd.DataFrame, layout: Layout, row_errors=None) -> _Rows:
     rows = _Rows(len(chunk), np.full(len(chunk), None, dtype=object))
+    if row_errors is not None:   # from read_table: rows whose cells could not be aligned
+        row_errors = np.asarray(row_errors, dtype=object)
+        rows.flag(row_errors != "", row_errors)
     for col in layout.columns:
         raw = chunk[col.header].astype(str).str.strip()
         key = (col.field, col.index)
@@ -455,11 +543,11 @@ class _Context:
     base_dir: pathlib.Path
     size_cache: dict = field(default_factory=dict)
     packing_cache: dict = field(default_factory=dict)
-    case_cache: dict = field(default_factory=dict)
 
 
 def _distribution(ctx: _Context, table: str, d50: float, spread: float):
-    key = (table, d50, spread)
+    # NaN as None: NaN != NaN, so a NaN in the key would miss the cache (and re-read files)
+    key = (table, None if math.isnan(d50) else d50, None if math.isnan(spread) else spread)
     if key not in ctx.size_cache:
         try:
             if table:
@@ -507,9 +595,9 @@ class _Chunk:
     names: np.ndarray            # (n, k) object
 
 
-def _resolve(chunk: pd.DataFrame, ctx: _Context) -> _Chunk:
+def _resolve(chunk: pd.DataFrame, ctx: _Context, row_errors=None) -> _Chunk:
     layout = ctx.layout
-    rows = _read_cells(chunk, layout)
+    rows = _read_cells(chunk, layout, row_errors)
     n, ks = rows.n, layout.ingredients
     liquid = _text(rows, "liquid", default="water")
     given_eta = _num(rows, "liquid viscosity")
@@ -649,10 +737,12 @@ def candidate_formulation(c: _Chunk, i: int, ctx: _Context) -> formulation.Formu
                                    droplet_model=str(c.droplet_relation[i]))
 
 
-def _guarded(func: Callable[[np.ndarray], object], index: np.ndarray, rows: _Rows):
+def _guarded(func: Callable[[np.ndarray], object], index: np.ndarray, rows: _Rows,
+             on_error: Callable[[int, LoadlineError], None] | None = None):
     """Call `func(index)`; on a LoadlineError split the rows until the bad ones are found.
 
-    Returns {position: result} for the parts that succeeded; bad rows get the message.
+    Returns [(positions, result), ...] for the parts that succeeded; a bad position gets the
+    message as its row's error, or is passed to `on_error(position, error)` when given.
     """
     results = {}
     stack = [index]
@@ -663,11 +753,13 @@ def _guarded(func: Callable[[np.ndarray], object], index: np.ndarray, rows: _Row
         try:
             results[part[0]] = (part, func(part))
         except LoadlineError as err:
-            if part.size == 1:
-                _flag_row(rows, int(part[0]), str(err))
-            else:
+            if part.size > 1:
                 half = part.size // 2
                 stack.extend([part[:half], part[half:]])
+            elif on_error is not None:
+                on_error(int(part[0]), err)
+            else:
+                _flag_row(rows, int(part[0]), str(err))
     return list(results.values())
 
 
@@ -749,9 +841,12 @@ def _groups(frame: pd.DataFrame) -> list[tuple[tuple, np.ndarray]]:
     return [(key(values[order[a]]), order[a:b]) for a, b in zip(starts, ends, strict=True)]
 
 
-def _sauter(c: _Chunk, ctx: _Context) -> np.ndarray:
-    """Sauter diameter per row and ingredient from the (cached) size distributions."""
-    out = np.full(c.present.shape, np.nan)
+def _sizes(c: _Chunk, ctx: _Context) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Sauter diameter and smallest and largest class diameter per row and ingredient, from
+    the (cached) size distributions; NaN where an ingredient has no size."""
+    shape = c.present.shape
+    sauter, smallest, largest = np.full(shape, np.nan), np.full(shape, np.nan), np.full(shape,
+                                                                                       np.nan)
     for j in range(c.present.shape[1]):
         has_size = c.present[:, j] & c.rows.ok & ((c.table[:, j] != "") | ~np.isnan(c.d50[:, j]))
         if not has_size.any():
@@ -766,15 +861,85 @@ def _sauter(c: _Chunk, ctx: _Context) -> np.ndarray:
                 for i in rows_u:
                     _flag_row(c.rows, int(i), f"ingredient {ctx.layout.ingredients[j]}: {dist}")
             else:
-                out[rows_u, j] = dist.sauter_diameter_m
+                sauter[rows_u, j] = dist.sauter_diameter_m
+                smallest[rows_u, j] = float(dist.diameters_m.min())
+                largest[rows_u, j] = float(dist.diameters_m.max())
+    return sauter, smallest, largest
+
+
+def _texts(mask, make: Callable[..., str], *columns) -> np.ndarray:
+    """`make(*values)` for each row where `mask`, called once per distinct tuple of values."""
+    out = np.full(np.shape(mask), "", dtype=object)
+    where = np.flatnonzero(mask)
+    if where.size:
+        frame = pd.DataFrame({i: np.asarray(col)[where] for i, col in enumerate(columns)})
+        for key, pos in _groups(frame):
+            out[where[pos]] = make(*key)
     return out
 
 
+# Size classes allowed by formulation.Formulation (which writes these limits inline). [m]
+_SIZE_CLASS_RANGE = (1e-9, 1e-2)
+
+
+def _check_formulation(c: _Chunk, sauter, smallest, largest) -> None:
+    """Flag the rows `formulation.Formulation` would refuse, with its message.
+
+    The same limits (`formulation._INGREDIENT_RANGES` and `_LIQUID_RANGES`) checked in the
+    same order, so that a row's first error is the one `predict` raises for its formulation.
+    """
+    rows = c.rows
+    position = np.cumsum(c.present, axis=1) - 1    # index in Formulation.ingredients
+    values = {"density_kg_per_m3": c.density, "loading": c.loading,
+              "diameter_m": np.where(np.isnan(sauter), 1e-6, sauter),
+              "aspect_ratio": c.aspect, "layer_thickness_m": c.layer,
+              "phi_max": c.phi_max_given, "droplet_viscosity_Pa_s": c.droplet_viscosity}
+    optional = ("phi_max", "droplet_viscosity_Pa_s")    # NaN means "not given" (None)
+
+    def flag(mask, field_name, value, low, high, index=None):
+        bad = mask & rows.ok & ~((value >= low) & (value <= high))    # NaN fails too
+        if bad.any():
+            rows.flag(bad, _texts(bad, lambda i, v: str(InputRangeError(
+                field_name.format(i=i), v, f"a number from {low:g} to {high:g}")),
+                index if index is not None else np.zeros(rows.n, int), value))
+
+    for j in range(c.present.shape[1]):
+        on = c.present[:, j]
+        for name, (low, high) in formulation._INGREDIENT_RANGES.items():
+            if name in values:
+                value = values[name][:, j]
+                given = on & ~np.isnan(value) if name in optional else on
+                flag(given, f"ingredients[{{i}}].{name}", value, low, high, position[:, j])
+        for what, value in (("smallest", smallest[:, j]), ("largest", largest[:, j])):
+            flag(on & ~np.isnan(value), f"ingredients[{{i}}].size ({what} class)", value,
+                 *_SIZE_CLASS_RANGE, position[:, j])
+    liquid = {"temperature_K": c.temperature_K, "density_kg_per_m3": c.liquid_density,
+              "glycerol_mass_fraction": c.glycerol}
+    for name, (low, high) in formulation._LIQUID_RANGES.items():
+        if name in liquid:
+            flag(np.ones(rows.n, bool), f"liquid.{name}", liquid[name], low, high)
+
+
+def _check_params(rows: _Rows, mask, spec, values: dict) -> None:
+    """Flag rows where `spec.check_params` would refuse one of `values`, with its message."""
+    for p in spec.params:
+        if p.name not in values:
+            continue
+        value = np.asarray(values[p.name], dtype=float)
+        low, high = p.bounds
+        bad = mask & rows.ok & ~((value >= low) & (value <= high))
+        if bad.any():
+            rows.flag(bad, _texts(bad, lambda v, p=p, low=low, high=high: str(InputRangeError(
+                p.name, v, f"{low:g} to {high:g} [{p.unit}] for {spec.name}")), value))
+
+
 def _packing(c: _Chunk, ctx: _Context, phi_eff: np.ndarray) -> tuple:
-    """phi_max and intrinsic viscosity per row: `formulation.mixture` once per distinct blend."""
+    """phi_max, intrinsic viscosity and the packing notes per row: `formulation.mixture` once
+    per distinct blend (its validity warnings are kept as the notes)."""
     n = c.rows.n
     phi_max = np.full(n, np.nan)
     intrinsic = np.full(n, np.nan)
+    notes = np.full(n, "", dtype=object)
     ok = c.rows.ok
     solid_eff = np.where(c.present & c.is_solid, np.nan_to_num(phi_eff), 0.0)
     total = solid_eff.sum(axis=1, keepdims=True)
@@ -789,7 +954,7 @@ def _packing(c: _Chunk, ctx: _Context, phi_eff: np.ndarray) -> tuple:
         keys[f"w{j}"] = np.round(shares[:, j], 12)
     frame = pd.DataFrame(keys)[ok]
     if frame.empty:
-        return phi_max, intrinsic
+        return phi_max, intrinsic, notes
     where = np.flatnonzero(ok)
     for key, pos in _groups(frame):
         rows_u = where[pos]
@@ -797,8 +962,11 @@ def _packing(c: _Chunk, ctx: _Context, phi_eff: np.ndarray) -> tuple:
             result = ctx.packing_cache[key]
         else:
             try:
-                mix = formulation.mixture(candidate_formulation(c, int(rows_u[0]), ctx))
-                result = (mix.phi_max, mix.intrinsic_viscosity)
+                with warnings_module.catch_warnings(record=True) as caught:
+                    warnings_module.simplefilter("always")
+                    mix = formulation.mixture(candidate_formulation(c, int(rows_u[0]), ctx))
+                text = "; ".join(dict.fromkeys(str(w.message) for w in caught))
+                result = (mix.phi_max, mix.intrinsic_viscosity, text)
             except LoadlineError as err:
                 result = err
             if len(ctx.packing_cache) < 100_000:
@@ -807,112 +975,320 @@ def _packing(c: _Chunk, ctx: _Context, phi_eff: np.ndarray) -> tuple:
             for i in rows_u:
                 _flag_row(c.rows, int(i), str(result))
         else:
-            phi_max[rows_u], intrinsic[rows_u] = result
-    return phi_max, intrinsic
+            phi_max[rows_u], intrinsic[rows_u], notes[rows_u] = result
+    return phi_max, intrinsic, notes
 
 
-MAX_CASE_CACHE = 200_000
+def _by_relation(names: np.ndarray, kind: str, call: Callable) -> np.ndarray:
+    """`call(spec, selection)` for each relation named in `names`, assembled over the rows."""
+    out = np.empty(len(names))
+    for name in pd.unique(names):
+        sel = names == name
+        out[sel] = call(get_model(name, kind=kind), sel)
+    return out
 
 
-def _case_keys(c: _Chunk, rates: np.ndarray) -> pd.DataFrame:
-    """Every input of `formulation.predict` for a row, plus its window shear rates."""
-    def clean(a):
-        a = np.asarray(a)
-        return np.where(np.isnan(a), -1.0, a) if a.dtype.kind == "f" else a
+class _Flow:
+    """Row arrays of one chunk for the flow answers, and the viscosity at any solids loading.
 
-    cols = {"liquid": c.liquid, "T": clean(c.temperature_K), "rho": clean(c.liquid_density),
-            "gly": clean(c.glycerol), "eta": clean(c.liquid_viscosity), "rel": c.relation,
-            "drel": c.droplet_relation}
-    for j in range(c.present.shape[1]):
-        on = c.present[:, j]
-        for name, arr in (("kind", c.is_solid), ("mass", c.is_mass), ("load", c.loading),
-                          ("dens", c.density), ("d50", c.d50), ("spr", c.spread),
-                          ("asp", c.aspect), ("lay", c.layer), ("pm", c.phi_max_given),
-                          ("etad", c.droplet_viscosity)):
-            values = clean(arr[:, j].astype(float))
-            cols[f"{name}{j}"] = np.where(on, values, -2.0)
-        cols[f"tab{j}"] = np.where(on, c.table[:, j], "")
-    for w in range(rates.shape[1]):
-        cols[f"rate{w}"] = clean(rates[:, w])
-    return pd.DataFrame(cols)
-
-
-def _flow_curve_cases(c: _Chunk, ctx: _Context, rates: np.ndarray, limits: np.ndarray):
-    """Viscosity and regime at each row's window shear rates, from `formulation.predict`.
-
-    `predict` takes one formulation (its flow curve is solved in stress space per
-    formulation), so it is called once per distinct case (all inputs, rates and limits
-    equal) and the answer shared by the rows of that case; answers are kept across chunks.
-    The highest loading under each window's max viscosity is `formulation.max_loading` at
-    the window's shear rate, with the solids' mass fraction from
-    `formulation.solid_mass_fraction`. Rows whose case cannot be predicted get the error;
-    a failed max-loading solve leaves NaN and a note. Returns arrays over rows and windows:
-    viscosity [Pa*s], regime, max effective solids phi [-], max solids mass fraction [-],
-    and the notes per row.
+    Mirrors `formulation.flow_curve_of` for a Newtonian liquid without thickening: the
+    droplets set the medium (`formulation.droplet_factor`, with the solids' share at the
+    loading), the relation at phi_max and at `formulation.ZERO_SHEAR_RATIO` phi_max gives
+    the two plateaus, the Sauter radius of all solids the Brownian stress scale (left out
+    above `shear.BROWNIAN_RADIUS_LIMIT_m`), and `shear.newtonian_flow_viscosity` the
+    viscosity. Methods take row indices `k` (repeats allowed) and arrays over them.
     """
-    import warnings as warnings_module
 
+    def __init__(self, c: _Chunk, st: _State, sauter):
+        self.relation, self.droplet_relation = c.relation, c.droplet_relation
+        self.eta_l, self.phi_max, self.intrinsic = st.eta_l, st.phi_max, st.intrinsic
+        self.phi_solids, self.phi_eff = st.phi_solids, st.phi_solids_eff
+        self.phi_droplets = st.phi_droplets
+        solid = c.present & c.is_solid
+        drop = c.present & ~c.is_solid
+        phi = np.nan_to_num(st.phi)
+        with np.errstate(invalid="ignore", divide="ignore"):
+            half = np.where(solid & np.isfinite(sauter), 0.5 * sauter, 1.0)
+            self.swelling = np.where(solid, (1.0 + np.nan_to_num(c.layer) / half) ** 3, 1.0)
+            self.mean_swelling = (np.where(solid, self.swelling, 0.0).sum(axis=1)
+                                  / np.maximum(solid.sum(axis=1), 1))
+            volume = np.where(solid, phi, 0.0)
+            total = volume.sum(axis=1)
+            radius = total / np.where(solid, volume / half, 0.0).sum(axis=1)
+            self.radius = np.where(total > 0, radius, np.nan)      # formulation._solid_radius_m
+            self.stress_scale = (shear.CRITICAL_REDUCED_STRESS * shear.BOLTZMANN_J_PER_K
+                                 * c.temperature_K / self.radius**3)
+            eta_d = np.where(np.isnan(c.droplet_viscosity), self.eta_l[:, None],
+                             c.droplet_viscosity)
+            dropped = np.where(drop, phi, 0.0)
+            self.ratio = (np.where(drop, phi * eta_d, 0.0).sum(axis=1) / dropped.sum(axis=1)
+                          / self.eta_l)
+        self.has_droplets = drop.any(axis=1) & (self.phi_droplets > 0)
+        self.phi = phi
+        has_phi_max = np.zeros(c.rows.n, bool)
+        for name in pd.unique(c.relation[c.rows.ok]):
+            spec = get_model(name, kind="suspension")
+            has_phi_max[c.relation == name] = "phi_max" in spec.param_names()
+        self.brownian = has_phi_max & np.isfinite(self.radius)
+
+    def relation_at(self, k, phi, phi_max):
+        """Relative viscosity of the solids' relation at phi and a packing limit."""
+        def call(spec, sel):
+            params = spec.defaults()
+            known = {"phi_max": phi_max[sel], "intrinsic_viscosity": self.intrinsic[k][sel]}
+            params.update({n: v for n, v in known.items() if n in params})
+            return spec.func(phi[sel], **params)
+
+        return _by_relation(self.relation[k], "suspension", call)
+
+    def droplet_share(self, k, bare):
+        """Droplets' volume fraction in liquid + droplets, as `formulation.droplet_factor`."""
+        return np.minimum(self.phi_droplets[k] / np.maximum(1.0 - bare, 1e-12), 1.0)
+
+    def emulsion_params(self, spec, sel, k):
+        params = spec.defaults()
+        if "viscosity_ratio" in params:
+            params["viscosity_ratio"] = self.ratio[k][sel]
+        return params
+
+    def medium(self, k, bare):
+        """Relative viscosity of the droplets in the liquid (1 without droplets)."""
+        out = np.ones(len(k))
+        on = self.has_droplets[k]
+        if on.any():
+            kk, share = k[on], self.droplet_share(k[on], bare[on])
+            out[on] = _by_relation(self.droplet_relation[kk], "emulsion", lambda spec, sel: (
+                spec.func(share[sel], **self.emulsion_params(spec, sel, kk))))
+        return out
+
+    def plateaus(self, k, phi):
+        """High-shear and zero-shear relative viscosity of the solids (inf: no flow, and no
+        Brownian term, respectively), and where the radius leaves the Brownian term out."""
+        g_hs = np.full(len(k), np.inf)
+        live = phi < 1.0
+        g_hs[live] = self.relation_at(k[live], phi[live], self.phi_max[k][live])
+        coarse = self.brownian[k] & (self.radius[k] > shear.BROWNIAN_RADIUS_LIMIT_m)
+        brown = live & self.brownian[k] & ~coarse
+        g0 = np.full(len(k), np.inf)
+        g0[brown] = self.relation_at(k[brown], phi[brown],
+                                     formulation.ZERO_SHEAR_RATIO * self.phi_max[k][brown])
+        return g_hs, g0, coarse
+
+    def arguments(self, k, phi, bare, rate):
+        """Arguments of `shear.newtonian_flow_viscosity` at an effective solids fraction."""
+        medium = self.medium(k, bare)
+        g_hs, g0, _ = self.plateaus(k, phi)
+        jammed = ~np.isfinite(medium) | (phi >= 1.0)
+        brown = np.isfinite(g0)
+        return (rate, self.eta_l[k] * np.where(jammed, 1.0, medium),
+                np.where(jammed, np.inf, g_hs), g0, np.where(brown, self.stress_scale[k], 1.0))
+
+    def bare(self, k, phi):
+        """Bare solids fraction when the solids are scaled to effective fraction `phi`."""
+        eff = self.phi_eff[k]
+        return np.where(eff > 0, self.phi_solids[k] * phi / np.where(eff > 0, eff, 1.0),
+                        phi / self.mean_swelling[k])
+
+
+def _flow_notes(f: _Flow, k: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """The notes `shear.flow_curve` and `formulation.droplet_factor` give for rows `k` at
+    their own loading (same wording), as (flow notes, droplet notes)."""
+    phi, bare = f.phi_eff[k], f.phi_solids[k]
+    medium = f.medium(k, bare)
+    dispersed = (phi >= 1.0) | ~np.isfinite(medium)
+    g_hs, g0, coarse = f.plateaus(k, phi)
+    live = ~dispersed
+    pm, scale = f.phi_max[k], f.stress_scale[k] / shear.CRITICAL_REDUCED_STRESS
+    parts = []
+    for name in pd.unique(f.relation[k]):
+        spec = get_model(name, kind="suspension")
+        on = live & (f.relation[k] == name)
+        check = ("phi_max" in spec.param_names())
+        x = phi / pm if spec.phi_range_relative else phi
+        low, high = spec.phi_range
+        parts.append(_texts(on & ((x < low) | (x > high)), lambda p, m, spec=spec, check=check: (
+            spec.validity_message(p, {"phi_max": m} if check else {}) or ""), phi, pm))
+    parts.append(_texts(live & coarse, lambda a, s: (
+        f"Brownian shear thinning is negligible for particles of radius {a * 1e6:.3g} um "
+        f"(stress scale k_B T/a^3 = {s:.2g} Pa) and is left out."), f.radius[k], scale))
+    zero = live & f.brownian[k] & ~coarse & ~np.isfinite(g0)
+    parts.append(_texts(zero, lambda p, m, s: (
+        f"phi = {p:.3g} is at or above the zero-shear packing limit {m:.3g}: Krieger's "
+        "interpolation has no zero-shear plateau there (a Brownian glass with a yield "
+        f"stress of order k_B T/a^3 = {s:.3g} Pa); the Brownian term is left out."),
+        phi, formulation.ZERO_SHEAR_RATIO * pm, scale))
+    parts.append(_texts(live & ~np.isfinite(g_hs), lambda p, m: (
+        f"phi = {p:.3g} is at or above the packing limit {m:.3g}: no flow is predicted at "
+        "any shear rate."), phi, pm))
+    parts.append(_texts(dispersed, lambda p, d: (
+        f"phi = {p:.3g} of solids with droplets at {d:.3g}: the dispersed phases are "
+        "jammed; no flow is predicted."), phi, f.phi_droplets[k]))
+    drops = np.full(len(k), "", dtype=object)
+    on = f.has_droplets[k]
+    share = f.droplet_share(k, bare)
+    for name in pd.unique(f.droplet_relation[k[on]]):
+        spec = get_model(name, kind="emulsion")
+        sel = on & (f.droplet_relation[k] == name)
+        params = spec.defaults()
+        x = share / params.get("phi_max", 1.0) if spec.phi_range_relative else share
+        low, high = spec.phi_range
+        drops = _join([drops, _texts(sel & ((x < low) | (x > high)), lambda s, r, spec=spec: (
+            spec.validity_message(s, {**spec.defaults(), "viscosity_ratio": r}) or ""),
+            share, f.ratio[k])])
+    return _join(parts), drops
+
+
+def _join(parts: list[np.ndarray]) -> np.ndarray:
+    """Per-row texts joined with "; ", empty ones left out."""
+    out = parts[0].copy()
+    for part in parts[1:]:
+        both = (out != "") & (part != "")
+        out = np.where(both, out + "; " + part, np.where(out == "", part, out))
+    return out
+
+
+def _max_loading(f: _Flow, k, rate, limit) -> tuple[np.ndarray, np.ndarray]:
+    """`formulation.max_loading` for many (row, window) pairs at once: a vectorised bisection
+    in the effective solids fraction from 0 to phi_max, to 1e-9, solids scaled along their
+    shares and droplets fixed; 0 where the liquid (with its droplets) is already too thick.
+
+    Returns the fractions and, per pair, the error that stopped its solve ("" if none; the
+    fraction is then NaN), as `max_loading` would raise it.
+    """
+    errors = np.full(len(k), "", dtype=object)
+
+    def too_thick(sel, phi):
+        kk = k[sel]
+        args = f.arguments(kk, phi, f.bare(kk, phi), rate[sel])
+        bad = ~((args[2] > 0) & (args[3] > 0))     # a relation at 0 (Frankel-Acrivos at phi 0)
+        for i in np.flatnonzero(bad):
+            try:
+                shear.newtonian_flow_viscosity(*(a[i] for a in args))
+            except LoadlineError as err:
+                errors[sel[i]] = errors[sel[i]] or str(err)
+        eta = np.full(len(sel), np.nan)
+        eta[~bad] = shear.newtonian_flow_viscosity(*(a[~bad] for a in args))
+        return ~(eta < limit[sel])      # nan or inf count as too thick
+
+    low = np.zeros(len(k))
+    high = f.phi_max[k].astype(float)
+    active = ~too_thick(np.arange(len(k)), low) & (high - low > 1e-9)
+    active &= errors == ""
+    while active.any():
+        sel = np.flatnonzero(active)
+        mid = 0.5 * (low[sel] + high[sel])
+        thick = too_thick(sel, mid)
+        high[sel] = np.where(thick, mid, high[sel])
+        low[sel] = np.where(thick, low[sel], mid)
+        active[sel] = (high[sel] - low[sel] > 1e-9) & (errors[sel] == "")
+    return np.where(errors == "", low, np.nan), errors
+
+
+def _solid_mass_fraction(c: _Chunk, f: _Flow, k, phi_eff) -> np.ndarray:
+    """`formulation.solid_mass_fraction` of rows `k` with their solids at `phi_eff`."""
+    solid = (c.present & c.is_solid)[k]
+    phi = f.phi[k]
+    swelling = f.swelling[k]
+    shares = np.where(solid, phi * swelling, 0.0)
+    total = shares.sum(axis=1, keepdims=True)
+    even = solid / np.maximum(solid.sum(axis=1, keepdims=True), 1)
+    shares = np.where(total > 0, shares / np.where(total > 0, total, 1.0), even)
+    bare = phi_eff[:, None] * shares / swelling
+    drops = np.where((c.present & ~c.is_solid)[k], phi, 0.0)
+    phi_all = np.clip(bare + drops, 0.0, None)
+    phi_all = phi_all / np.maximum(phi_all.sum(axis=1, keepdims=True), 1.0)
+    w = composition.mass_fractions(phi_all, c.density[k], c.liquid_density[k])
+    return np.where(solid, w, 0.0).sum(axis=1)
+
+
+def _flow_answers(c: _Chunk, ctx: _Context, st: _State, sauter, packing_notes, rates, limits):
+    """Viscosity and regime at each row's window shear rates, the highest loadings, notes.
+
+    The batch liquids are Newtonian and have no thickening, so `formulation.predict` of a
+    row is `shear.flow_curve` with a closed form, `shear.newtonian_flow_viscosity`: every
+    row of the chunk is computed at once (`_Flow`), with the checks and notes `predict`
+    gives (rows it would refuse get its error). The highest loading under each window's
+    max viscosity is `formulation.max_loading` by a bisection vectorised over rows and
+    windows (`_max_loading`), its mass fraction `formulation.solid_mass_fraction`; a
+    failed solve leaves NaN and a note. Returns arrays over rows and windows: viscosity
+    [Pa*s], regime, max effective solids phi [-], max solids mass fraction [-], and the
+    notes per row.
+    """
     n, width = rates.shape
     eta = np.full((n, width), np.nan)
     regime = np.full((n, width), "", dtype=object)
     max_phi = np.full((n, width), np.nan)
     max_mass = np.full((n, width), np.nan)
     notes = np.full(n, "", dtype=object)
-    ok = c.rows.ok
-    if width == 0 or not ok.any():
+    good = np.isfinite(rates) & (rates > 0)
+    asked = c.rows.ok & good.any(axis=1)      # the rows `predict` is called for
+    if not asked.any():
         return eta, regime, max_phi, max_mass, notes
-    keys = _case_keys(c, np.hstack([rates, limits]))[ok]
-    where = np.flatnonzero(ok)
-    for key, pos in _groups(keys):
-        rows_u = where[pos]
-        result = ctx.case_cache.get(key)
-        if result is None:
-            try:
-                result = _one_case(c, ctx, int(rows_u[0]), rates, limits, warnings_module)
-            except LoadlineError as err:
-                result = err
-            if len(ctx.case_cache) < MAX_CASE_CACHE:
-                ctx.case_cache[key] = result
-        if isinstance(result, LoadlineError):
-            for i in rows_u:
-                _flag_row(c.rows, int(i), str(result))
-            continue
-        eta[rows_u], regime[rows_u], max_phi[rows_u], max_mass[rows_u] = result[:4]
-        notes[rows_u] = result[4]
+    f = _Flow(c, st, sauter)
+    rows = c.rows
+    # The checks `predict` makes beyond `mixture`, in its order: a newtonian liquid's law,
+    # the solids' relation, the droplets' relation, the liquid law of flow_curve.
+    newtonian = get_model("newtonian", kind="liquid")
+    _check_params(rows, asked & (c.liquid == "newtonian"), newtonian,
+                  {"viscosity_Pa_s": st.eta_l})
+    for name in pd.unique(c.relation[asked]):
+        _check_params(rows, asked & (c.relation == name), get_model(name, kind="suspension"),
+                      {"phi_max": st.phi_max, "intrinsic_viscosity": st.intrinsic})
+    for name in pd.unique(c.droplet_relation[asked & f.has_droplets]):
+        _check_params(rows, asked & f.has_droplets & (c.droplet_relation == name),
+                      get_model(name, kind="emulsion"), {"viscosity_ratio": f.ratio})
+    _check_params(rows, asked & (c.liquid != "newtonian"), newtonian,
+                  {"viscosity_Pa_s": st.eta_l})
+
+    def call(part):
+        values = np.full((len(part), width), np.nan)
+        kinds = np.full((len(part), width), "", dtype=object)
+        for w in range(width):
+            on = good[part, w]
+            if on.any():
+                k = part[on]
+                args = f.arguments(k, f.phi_eff[k], f.phi_solids[k], rates[k, w])
+                values[on, w] = shear.newtonian_flow_viscosity(*args)
+                kinds[on, w] = shear.newtonian_flow_regime(*args)
+        return (values, kinds, *_flow_notes(f, part))
+
+    flow_notes = np.full(n, "", dtype=object)
+    drop_notes = np.full(n, "", dtype=object)
+    for part, (values, kinds, texts, drops) in _guarded(call, np.flatnonzero(asked & rows.ok),
+                                                        rows):
+        eta[part], regime[part], flow_notes[part], drop_notes[part] = values, kinds, texts, drops
+
+    # Highest loading under each window's max viscosity, for every (row, window) at once.
+    solid = (c.present & c.is_solid).any(axis=1)
+    wanted = (asked & rows.ok & solid)[:, None] & good & np.isfinite(limits) & (limits > 0)
+    pair_row, pair_window = np.nonzero(wanted)
+
+    def solve(sel):
+        k = pair_row[sel]
+        phi, errors = _max_loading(f, k, rates[k, pair_window[sel]], limits[k, pair_window[sel]])
+        mass = np.full(len(k), np.nan)
+        done = np.isfinite(phi)
+        mass[done] = _solid_mass_fraction(c, f, k[done], phi[done])
+        return phi, mass, errors
+
+    pair_errors = np.full(len(pair_row), "", dtype=object)
+
+    def failed(p, err):      # an error the solve did not foresee: isolated to its pair
+        pair_errors[p] = str(err)
+
+    for sel, (phi, mass, errors) in _guarded(solve, np.arange(len(pair_row)), rows,
+                                             on_error=failed):
+        max_phi[pair_row[sel], pair_window[sel]] = phi
+        max_mass[pair_row[sel], pair_window[sel]] = mass
+        pair_errors[sel] = np.where(errors == "", pair_errors[sel], errors)
+    window_notes = np.full(n, "", dtype=object)
+    for p in np.flatnonzero(pair_errors != ""):   # as formulation.max_loading raising
+        i, text = pair_row[p], (f"window {ctx.layout.windows[pair_window[p]]}: highest "
+                                f"loading not computed ({pair_errors[p]})")
+        window_notes[i] = f"{window_notes[i]}; {text}" if window_notes[i] else text
+    notes[asked] = _join([flow_notes, window_notes, np.where(asked, packing_notes, ""),
+                          drop_notes])[asked]
     return eta, regime, max_phi, max_mass, notes
-
-
-def _one_case(c: _Chunk, ctx: _Context, first: int, rates, limits, warnings_module):
-    """Flow-curve answers of row `first` (see `_flow_curve_cases`)."""
-    width = rates.shape[1]
-    good = np.isfinite(rates[first]) & (rates[first] > 0)
-    form = candidate_formulation(c, first, ctx)
-    values = np.full(width, np.nan)
-    kinds = np.full(width, "", dtype=object)
-    phis = np.full(width, np.nan)
-    masses = np.full(width, np.nan)
-    messages = []
-    with warnings_module.catch_warnings(record=True) as caught:
-        warnings_module.simplefilter("always")
-        if good.any():
-            curve = formulation.predict(form, rates[first][good])
-            values[good] = curve["viscosity_Pa_s"].to_numpy(dtype=float)
-            if "regime" in curve:
-                kinds[good] = curve["regime"].to_numpy(dtype=object)
-            messages += [str(m) for m in curve.attrs.get("warnings", ())]
-        has_solid = any(i.kind == formulation.SOLID for i in form.ingredients)
-        for w in np.flatnonzero(good & np.isfinite(limits[first]) & (limits[first] > 0)):
-            if not has_solid:
-                continue
-            try:
-                phis[w] = formulation.max_loading(form, limits[first, w], rates[first, w])
-                masses[w] = float(np.asarray(formulation.solid_mass_fraction(form, phis[w]))
-                                  .ravel()[0])
-            except LoadlineError as err:
-                messages.append(f"window {ctx.layout.windows[w]}: highest loading not "
-                                f"computed ({err})")
-    messages += [str(w.message) for w in caught]
-    return values, kinds, phis, masses, "; ".join(dict.fromkeys(messages))
 
 
 def duration_text(seconds: float) -> str:
@@ -992,26 +1368,22 @@ def _settling(c: _Chunk, st: _State, ctx: _Context) -> np.ndarray:
     return verdict
 
 
-@dataclass(frozen=True)
-class Window:
-    index: int
-    name: str
-
-
-def _predict_chunk(chunk: pd.DataFrame, ctx: _Context, viscosity_unit: str) -> pd.DataFrame:
-    c = _resolve(chunk, ctx)
+def _predict_chunk(chunk: pd.DataFrame, ctx: _Context, viscosity_unit: str,
+                   row_errors: np.ndarray | None = None) -> pd.DataFrame:
+    c = _resolve(chunk, ctx, row_errors)
     rows = c.rows
     n = rows.n
     eta_l = _liquid_viscosity(c)
     phi = _volume_fractions(c)
-    sauter = _sauter(c, ctx)
+    sauter, smallest, largest = _sizes(c, ctx)
+    _check_formulation(c, sauter, smallest, largest)
     phi_eff = phi.copy()
     solid = c.present & c.is_solid
     use = solid & rows.ok[:, None] & (np.nan_to_num(c.layer) > 0) & np.isfinite(sauter)
     if use.any():
         phi_eff[use] = suspension.effective_volume_fraction(phi[use], c.layer[use],
                                                             0.5 * sauter[use])
-    phi_max, intrinsic = _packing(c, ctx, phi_eff)
+    phi_max, intrinsic, packing_notes = _packing(c, ctx, phi_eff)
     st = _State(eta_l, phi, phi_eff,
                 np.where(solid, np.nan_to_num(phi), 0.0).sum(axis=1),
                 np.where(solid, np.nan_to_num(phi_eff), 0.0).sum(axis=1),
@@ -1024,8 +1396,8 @@ def _predict_chunk(chunk: pd.DataFrame, ctx: _Context, viscosity_unit: str) -> p
         if windows else np.zeros((n, 0))
     limits = np.column_stack([_num(rows, "window max viscosity", j) for j in windows]) \
         if windows else np.zeros((n, 0))
-    curve_eta, curve_regime, max_phi, max_mass, curve_notes = _flow_curve_cases(
-        c, ctx, rates, limits)
+    curve_eta, curve_regime, max_phi, max_mass, curve_notes = _flow_answers(
+        c, ctx, st, sauter, packing_notes, rates, limits)
 
     ok = rows.ok
     out = {}
@@ -1097,9 +1469,15 @@ def _predict_chunk(chunk: pd.DataFrame, ctx: _Context, viscosity_unit: str) -> p
 
 def _predict_chunk_safe(chunk: pd.DataFrame, ctx: _Context, viscosity_unit: str) -> pd.DataFrame:
     """`_predict_chunk`, and if an unexpected error escapes it, the chunk row by row, so that
-    one row that trips a defect loses only itself (its `error` says so) and never the run."""
+    one row that trips a defect loses only itself (its `error` says so) and never the run.
+
+    A `ROW_ERROR` column (rows `read_table` could not align) becomes those rows' error."""
+    row_errors = None
+    if ROW_ERROR in chunk.columns:
+        row_errors = chunk[ROW_ERROR].to_numpy(dtype=object)
+        chunk = chunk.drop(columns=ROW_ERROR)
     try:
-        return _predict_chunk(chunk, ctx, viscosity_unit)
+        return _predict_chunk(chunk, ctx, viscosity_unit, row_errors)
     except Exception:  # a defect, not bad input: isolate it to the rows that trip it
         if len(chunk) == 1:
             raise
@@ -1107,7 +1485,8 @@ def _predict_chunk_safe(chunk: pd.DataFrame, ctx: _Context, viscosity_unit: str)
     for i in range(len(chunk)):
         row = chunk.iloc[i:i + 1].reset_index(drop=True)
         try:
-            parts.append(_predict_chunk(row, ctx, viscosity_unit))
+            parts.append(_predict_chunk(row, ctx, viscosity_unit,
+                                        None if row_errors is None else row_errors[i:i + 1]))
         except Exception as err:  # noqa: BLE001 - reported in the row, run continues
             failed = row.copy()
             failed["status"] = "error"
@@ -1210,7 +1589,7 @@ def screen_file(path, out_path=None, viscosity_unit: str = "Pa*s",
     try:
         for chunk in read_table(path, chunk_rows):
             if ctx is None:
-                layout = parse_header(chunk.columns)
+                layout = parse_header([h for h in chunk.columns if h != ROW_ERROR])
                 ctx = _Context(layout, path.parent)
                 summary.windows = layout.windows
                 summary.unrecognised = layout.unrecognised

@@ -10,6 +10,8 @@ Pure numpy, SI units. The relations:
 - `flow_curve`: one suspension (or filled non-Newtonian liquid) over a range of shear rates,
   solved self-consistently for the stress at each rate, in stress space, so that an
   S-shaped curve (discontinuous thickening) and shear jamming are found and reported;
+- `newtonian_flow_viscosity` and `newtonian_flow_regime`: the same flow curve in closed form
+  for a Newtonian liquid without thickening, vectorised over many suspensions at once;
 - `PROCESS_SHEAR_RATES`: typical shear rates of processes (common practice, no source).
 
 How the pieces are combined in `flow_curve` (our own combination of published relations,
@@ -848,3 +850,207 @@ def _onset_markers(model, markers, grid, sig_jam):
                             (1 + ONSET_CHANGE) * float(g_aux[i_min]), True)
         if np.isfinite(s):
             markers["thickening_onset_1_per_s"] = rate_at(s)
+
+
+# --- Newtonian liquid without thickening: the flow curve in closed form ---------------------
+
+
+def _newtonian_inputs(shear_rate_1_per_s, medium_viscosity_Pa_s, high_shear_relative_viscosity,
+                      zero_shear_relative_viscosity, stress_scale_Pa):
+    """Checked, broadcast inputs of the closed form, and where the Brownian term applies."""
+    rate = positive(shear_rate_1_per_s, "shear_rate_1_per_s")
+    mu = positive(medium_viscosity_Pa_s, "medium_viscosity_Pa_s")
+    plateaus = {"high_shear_relative_viscosity": high_shear_relative_viscosity,
+                "zero_shear_relative_viscosity": zero_shear_relative_viscosity}
+    g = {}
+    for name, value in plateaus.items():
+        if value is None:
+            continue
+        try:
+            arr = np.asarray(value, dtype=float)
+        except (TypeError, ValueError):
+            raise InputRangeError(name, value, "a number or an array of numbers") from None
+        bad = np.isnan(arr) | (arr <= 0.0)
+        if np.any(bad):
+            raise InputRangeError(name, arr[bad].flat[0], "a value > 0 (inf allowed)")
+        g[name] = arr
+    g_hs = g["high_shear_relative_viscosity"]
+    g0 = g.get("zero_shear_relative_viscosity", np.inf)
+    if stress_scale_Pa is None:
+        scale, g0 = np.asarray(1.0), np.inf
+    else:
+        scale = positive(stress_scale_Pa, "stress_scale_Pa")
+    rate, mu, g_hs, g0, scale = np.broadcast_arrays(rate, mu, g_hs, g0, scale)
+    jammed = np.isinf(g_hs)
+    brownian = np.isfinite(g0) & ~jammed
+    g_hs = np.where(jammed, 1.0, g_hs)
+    g0 = np.where(brownian, g0, g_hs)
+    return rate, mu, g_hs, g0, np.where(brownian, scale, 1.0), brownian, jammed
+
+
+def _newtonian_stress(rate, mu, g_hs, g0, scale, brownian):
+    """Positive root of sigma**2 + sigma (s_c - mu rate g_hs) - mu rate g_0 s_c = 0."""
+    a = mu * rate
+    b = scale - a * g_hs
+    root = np.hypot(b, 2.0 * np.sqrt(a * g0 * scale))    # sqrt(b**2 + 4c) without overflow
+    # Cancellation-free: 2c/(b + root) where b > 0, (root - b)/2 otherwise.
+    sigma = np.where(b > 0, 2.0 * a * g0 * scale / np.where(b > 0, b + root, 1.0),
+                     0.5 * (root - b))
+    return np.where(brownian, sigma, a * g_hs)
+
+
+@guarded
+def newtonian_flow_viscosity(shear_rate_1_per_s, medium_viscosity_Pa_s,
+                             high_shear_relative_viscosity, zero_shear_relative_viscosity=None,
+                             stress_scale_Pa=None):
+    r"""Viscosity of a Brownian suspension in a Newtonian liquid, in closed form.
+
+    The flow curve of `flow_curve` for a Newtonian liquid without frictional thickening,
+    where Krieger's stress interpolation [1]_ between the two plateaus makes the stress at a
+    shear rate the root of a quadratic. Vectorised: every argument broadcasts, so each
+    element may be a different suspension (one value per row of a table).
+
+    Parameters
+    ----------
+    shear_rate_1_per_s : float or array_like
+        Shear rate, > 0. [1/s]
+    medium_viscosity_Pa_s : float or array_like
+        Viscosity of the medium the particles see: the liquid's viscosity times the
+        constant `medium_factor` of `flow_curve` (droplets). [Pa*s]
+    high_shear_relative_viscosity : float or array_like
+        g_inf, the particles' relative viscosity at high stress (the relation at the
+        high-shear packing limit); ``inf`` (jammed) gives ``inf``. [-]
+    zero_shear_relative_viscosity : float or array_like, optional
+        g_0, the relative viscosity at low stress (the relation at the zero-shear packing
+        limit). None, or ``inf`` for an element, leaves the Brownian term out there, as
+        `flow_curve` does at and above the zero-shear packing limit. [-]
+    stress_scale_Pa : float or array_like, optional
+        sigma_c, the stress at which the interpolation is midway between the plateaus:
+        `CRITICAL_REDUCED_STRESS` k_B T / a**3. None leaves the Brownian term out. [Pa]
+
+    Returns
+    -------
+    viscosity : float or numpy.ndarray
+        Viscosity of the suspension at the shear rate. [Pa*s]
+
+    Raises
+    ------
+    InputRangeError
+        A rate, viscosity or stress scale that is not positive and finite; a relative
+        viscosity that is NaN or not positive.
+
+    See Also
+    --------
+    flow_curve : the general solve (any liquid law, thickening, S-shaped curves).
+    newtonian_flow_regime : the regime label at the same points.
+    krieger_shear_thinning : the interpolation in terms of the reduced stress.
+
+    Notes
+    -----
+    With a Newtonian medium of viscosity mu, the stress at a rate solves
+    sigma = mu gammadot g(sigma), with Krieger's interpolation
+
+    .. math:: g(\sigma) = g_\infty + \frac{g_0 - g_\infty}{1 + \sigma/\sigma_c}
+
+    Multiplying out gives
+
+    .. math:: \sigma^2 + \sigma\,(\sigma_c - \mu\dot\gamma g_\infty)
+              - \mu\dot\gamma g_0 \sigma_c = 0,
+
+    whose one positive root is taken in the cancellation-free form
+    2c / (b + sqrt(b**2 + 4c)) where b > 0 (c = mu gammadot g_0 sigma_c); the viscosity is
+    sigma / gammadot. Without the Brownian term, sigma = mu gammadot g_inf. This is exactly
+    what `flow_curve` solves numerically for a Newtonian liquid, no thickening and the same
+    plateaus; the rate tends to zero at mu g_0 and to infinity at mu g_inf, the plateaus of
+    Krieger & Dougherty's relation at the two packing limits [2]_.
+
+    References
+    ----------
+    .. [1] I. M. Krieger, "Rheology of monodisperse latices," Adv. Colloid Interface Sci.,
+       vol. 3, no. 2, pp. 111-136, 1972.
+    .. [2] I. M. Krieger and T. J. Dougherty, "A mechanism for non-Newtonian flow in
+       suspensions of rigid spheres," Trans. Soc. Rheol., vol. 3, pp. 137-152, 1959.
+
+    Examples
+    --------
+    Illustrative call: plateaus 20 and 4 in water, midway stress 0.04 Pa; the viscosity
+    falls from about 0.02 towards 0.004 Pa*s as the rate rises.
+
+    >>> newtonian_flow_viscosity([1e-3, 1.0, 1e5], 1e-3, 4.0, 20.0, 0.04).tolist()
+    [0.019992, 0.0155261, 0.0040016]
+    """
+    rate, mu, g_hs, g0, scale, brownian, jammed = _newtonian_inputs(
+        shear_rate_1_per_s, medium_viscosity_Pa_s, high_shear_relative_viscosity,
+        zero_shear_relative_viscosity, stress_scale_Pa)
+    sigma = _newtonian_stress(rate, mu, g_hs, g0, scale, brownian)
+    eta = np.where(jammed, np.inf, np.where(brownian, sigma / rate, mu * g_hs))
+    return scalar_or_array(eta, shear_rate_1_per_s, medium_viscosity_Pa_s,
+                           high_shear_relative_viscosity, zero_shear_relative_viscosity,
+                           stress_scale_Pa)
+
+
+@guarded
+def newtonian_flow_regime(shear_rate_1_per_s, medium_viscosity_Pa_s,
+                          high_shear_relative_viscosity, zero_shear_relative_viscosity=None,
+                          stress_scale_Pa=None):
+    r"""Regime label of `newtonian_flow_viscosity` at each point, from its exact local slope.
+
+    The labels of `flow_curve` (see `REGIMES`), from the slope d ln eta / d ln gammadot of
+    Krieger's interpolation [1]_ in a Newtonian liquid: below -`PLATEAU_SLOPE` "thinning",
+    above +`PLATEAU_SLOPE` "thickening", else "plateau"; "jammed" where the high-shear
+    relative viscosity is ``inf``.
+
+    Parameters
+    ----------
+    shear_rate_1_per_s, medium_viscosity_Pa_s, high_shear_relative_viscosity : array_like
+        As in `newtonian_flow_viscosity`. [1/s], [Pa*s], [-]
+    zero_shear_relative_viscosity, stress_scale_Pa : array_like, optional
+        As in `newtonian_flow_viscosity`. [-], [Pa]
+
+    Returns
+    -------
+    regime : str or numpy.ndarray of str
+        One label per point.
+
+    See Also
+    --------
+    newtonian_flow_viscosity : the viscosity at the same points.
+
+    Notes
+    -----
+    Differentiating sigma = mu gammadot g(sigma) gives the exact local slope
+
+    .. math:: \frac{d\ln\eta}{d\ln\dot\gamma} = \frac{s}{1 - s}, \qquad
+              s = \frac{d\ln g}{d\ln\sigma}
+                = -\frac{u}{1 + u}\,\frac{(g_0 - g_\infty)/(1 + u)}{g(\sigma)},
+              \quad u = \sigma/\sigma_c.
+
+    `flow_curve` labels by the secant slope of the stress-grid segment holding each point,
+    so the two labels may differ for slopes within a few thousandths of +-`PLATEAU_SLOPE`.
+
+    References
+    ----------
+    .. [1] I. M. Krieger, "Rheology of monodisperse latices," Adv. Colloid Interface Sci.,
+       vol. 3, no. 2, pp. 111-136, 1972.
+
+    Examples
+    --------
+    Illustrative call: the plateaus at the ends of the curve, thinning in between.
+
+    >>> newtonian_flow_regime([1e-5, 1.0, 1e7], 1e-3, 4.0, 20.0, 0.04).tolist()
+    ['plateau', 'thinning', 'plateau']
+    """
+    rate, mu, g_hs, g0, scale, brownian, jammed = _newtonian_inputs(
+        shear_rate_1_per_s, medium_viscosity_Pa_s, high_shear_relative_viscosity,
+        zero_shear_relative_viscosity, stress_scale_Pa)
+    sigma = _newtonian_stress(rate, mu, g_hs, g0, scale, brownian)
+    u = sigma / scale
+    g = g_hs + (g0 - g_hs) / (1.0 + u)
+    s = -(u / (1.0 + u)) * ((g0 - g_hs) / (1.0 + u)) / g
+    slope = np.where(brownian, s / (1.0 - s), 0.0)
+    regime = np.where(slope < -PLATEAU_SLOPE, "thinning",
+                      np.where(slope > PLATEAU_SLOPE, "thickening", "plateau"))
+    regime = np.where(jammed, "jammed", regime)
+    inputs = (shear_rate_1_per_s, medium_viscosity_Pa_s, high_shear_relative_viscosity,
+              zero_shear_relative_viscosity, stress_scale_Pa)
+    return str(regime) if all(np.ndim(x) == 0 for x in inputs) else regime

@@ -1,11 +1,14 @@
-"""Batch screening (`predictor.batch`): rows against the single-formulation API, bad rows,
+"""Batch screening (`predictor.batch`): rows against the single-formulation API (also when
+every row is a different formulation), bad rows, rows with more cells than the header,
 escaping, chunking, Excel input."""
 
 from __future__ import annotations
 
+import contextlib
 import csv
 import io
 import pathlib
+import warnings
 
 import numpy as np
 import pandas as pd
@@ -13,7 +16,7 @@ import pytest
 
 from predictor import batch, sizes
 from predictor import formulation as fm
-from predictor.errors import InputRangeError, UnitError
+from predictor.errors import InputRangeError, UnitError, ValidityWarning
 
 DEMO = pathlib.Path(__file__).resolve().parents[1] / "data_demo"
 
@@ -203,3 +206,194 @@ def test_units_in_headers_are_converted():
         "window 1 shear rate [1/min]": ["600"]})
     row = batch.screen(table, viscosity_unit="mPa*s").iloc[0]
     assert row["window 1 viscosity [mPa*s]"] == pytest.approx(400.0, rel=1e-9)
+
+
+# -- every row a different formulation: the vectorised flow path against predict -------------
+
+
+def _distinct_candidates(n: int, seed: int) -> pd.DataFrame:
+    """n invented candidates, every one a different formulation: liquids, temperatures,
+    sizes (Brownian and not), layers, relations, droplets and windows all vary by row."""
+    rng = np.random.default_rng(seed)
+    liquid = rng.choice(["water", "glycerol-water", "newtonian"], n)
+    second = rng.choice(["solid", "droplet", ""], n, p=[0.4, 0.4, 0.2])
+
+    def cells(values, digits=6):
+        return np.round(values, digits).astype(str)
+
+    table = pd.DataFrame({
+        "candidate": [f"invented {i}" for i in range(n)],
+        "liquid": liquid,
+        "liquid viscosity [mPa*s]": np.where(liquid == "newtonian",
+                                             cells(10 ** rng.uniform(0, 3, n)), ""),
+        "temperature [degC]": cells(rng.uniform(5, 60, n), 4),
+        "liquid density [kg/m3]": np.where(liquid == "water", "",
+                                           cells(rng.uniform(990, 1250, n), 3)),
+        "glycerol [wt%]": np.where(liquid == "glycerol-water", cells(rng.uniform(0, 80, n)), ""),
+        "relation": rng.choice(["krieger-dougherty", "quemada", "maron-pierce"], n),
+        "droplet relation": rng.choice(["phan-thien-pham", "pal"], n),
+        "ingredient 1": "filler",
+        "ingredient 1 loading [vol%]": cells(rng.uniform(5, 50, n), 5),
+        "ingredient 1 density [kg/m3]": cells(rng.uniform(1500, 4000, n), 2),
+        "ingredient 1 d50 [um]": cells(10 ** rng.uniform(-1, 1.3, n)),
+        "ingredient 1 spread [-]": np.where(rng.random(n) < 0.5, "",
+                                            cells(rng.uniform(1.1, 1.8, n), 4)),
+        "ingredient 1 layer [nm]": np.where(rng.random(n) < 0.5, "",
+                                            cells(rng.uniform(0, 20, n), 3)),
+        "ingredient 2": np.where(second == "", "", "second"),
+        "ingredient 2 kind": np.where(second == "", "solid", second),
+        "ingredient 2 loading [wt%]": np.where(second == "", "", cells(rng.uniform(1, 20, n))),
+        "ingredient 2 density [kg/m3]": cells(rng.uniform(850, 4000, n), 2),
+        "ingredient 2 d50 [um]": cells(10 ** rng.uniform(-1, 1, n)),
+        "ingredient 2 droplet viscosity [Pa*s]": np.where(rng.random(n) < 0.5, "",
+                                                          cells(10 ** rng.uniform(-3, 1, n))),
+        "window 1 shear rate [1/s]": cells(10 ** rng.uniform(-3, 3, n)),
+        "window 1 max viscosity [Pa*s]": cells(10 ** rng.uniform(-2, 1.5, n)),
+        "window 2 shear rate [1/s]": cells(10 ** rng.uniform(0, 5, n)),
+        "window 2 max viscosity [Pa*s]": cells(10 ** rng.uniform(-2.5, 1, n)),
+    })
+    return table
+
+
+@contextlib.contextmanager
+def _quiet():
+    """Validity warnings are expected for invented rows; keep them out of the test output."""
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", ValidityWarning)
+        yield
+
+
+def _formulations(table: pd.DataFrame, base_dir=".") -> list:
+    """`batch.candidate_formulation` of every row, from the batch's own reading of the table."""
+    ctx = batch._Context(batch.parse_header(table.columns), pathlib.Path(base_dir))
+    resolved = batch._resolve(table.astype(str), ctx)
+    return [batch.candidate_formulation(resolved, i, ctx) for i in range(len(table))]
+
+
+def test_every_row_distinct_equals_predict_and_max_loading():
+    # Outside check: each row against formulation.predict (the flow-curve solve) and
+    # formulation.max_loading for the same inputs; no two rows share a formulation, so no
+    # grouping can hide a difference.
+    table = _distinct_candidates(30, seed=7)
+    with _quiet():
+        result = batch.screen(table)
+    assert (result["status"] == "ok").all(), result.loc[result["status"] != "ok", "error"]
+    regimes = set()
+    for i, form in enumerate(_formulations(table)):
+        row = result.iloc[i]
+        rates = [float(row[f"window {j} shear rate [1/s]"]) for j in (1, 2)]
+        with _quiet():
+            curve = fm.predict(form, rates)
+        for j in (1, 2):
+            eta = curve["viscosity_Pa_s"].iloc[j - 1]
+            assert row[f"window {j} viscosity [Pa*s]"] == pytest.approx(eta, rel=1e-9)
+            # The labels may differ only where flow_curve's grid-secant slope and the exact
+            # slope straddle +-PLATEAU_SLOPE (see test_shear); none of these rows is there.
+            assert row[f"window {j} regime"] == curve["regime"].iloc[j - 1]
+            regimes.add(row[f"window {j} regime"])
+            limit = float(row[f"window {j} max viscosity [Pa*s]"])
+            with _quiet():
+                phi = fm.max_loading(form, limit, rates[j - 1])
+            assert row[f"window {j} max solids [vol%]"] == pytest.approx(100 * phi, abs=1e-7)
+            mass = fm.solid_mass_fraction(form, phi)[0]
+            assert row[f"window {j} max solids [wt%]"] == pytest.approx(100 * mass, abs=1e-6)
+        for note in curve.attrs["warnings"]:      # the notes predict gives, word for word
+            assert note in row["warnings"]
+    assert {"plateau", "thinning"} <= regimes   # both branches of the closed form were used
+
+
+def test_mixed_good_and_bad_rows_report_each_bad_row_and_keep_the_good_ones():
+    # The checks predict makes, made for every row at once: each bad row gets the message
+    # predict would raise for it (field, value, allowed range), and the good rows -- also
+    # those sharing a powder blend with a bad row -- equal predict.
+    base = {"liquid": "newtonian", "liquid viscosity [mPa*s]": "100",
+            "liquid density [kg/m3]": "1000", "temperature [degC]": "25",
+            "ingredient 1": "beads", "ingredient 1 loading [vol%]": "30",
+            "ingredient 1 density [g/cm3]": "2.5", "ingredient 1 d50 [um]": "0.4",
+            "ingredient 1 phi_max [-]": "", "ingredient 2": "", "ingredient 2 kind": "droplet",
+            "ingredient 2 loading [vol%]": "", "ingredient 2 density [kg/m3]": "900",
+            "ingredient 2 droplet viscosity [Pa*s]": "",
+            "window 1 shear rate [1/s]": "10", "window 1 max viscosity [Pa*s]": "2"}
+    rows = {
+        "cold": {"temperature [degC]": "-130"},                    # below Formulation's 150 K
+        "good 1": {},
+        "thick liquid": {"liquid viscosity [mPa*s]": "2e9"},       # 2e6 Pa*s
+        "low phi_max": {"ingredient 1 phi_max [-]": "0.1"},        # below the relation's 0.2
+        "tiny beads": {"ingredient 1 d50 [um]": "0.0005"},         # 0.5 nm
+        "stiff drops": {"liquid viscosity [mPa*s]": "0.001", "ingredient 2": "oil",
+                        "ingredient 2 loading [vol%]": "10",
+                        "ingredient 2 droplet viscosity [Pa*s]": "1e7"},   # ratio 1e13
+        "good 2": {"ingredient 2": "oil", "ingredient 2 loading [vol%]": "10"},
+    }
+    table = pd.DataFrame([{"candidate": name, **base, **change} for name, change in
+                          rows.items()])
+    with _quiet():
+        result = batch.screen(table).set_index("candidate")
+    expected = {
+        "cold": ["liquid.temperature_K = 143.15", "150 to 700"],
+        "thick liquid": ["viscosity_Pa_s = 2e+06", "1e-06 to 1e+06 [Pa*s] for newtonian"],
+        "low phi_max": ["phi_max = 0.1", "0.2 to 1 [-] for krieger-dougherty"],
+        "tiny beads": ["ingredients[0].diameter_m = 5e-10", "1e-09 to 0.01"],
+        "stiff drops": ["viscosity_ratio = 1e+13", "for phan-thien-pham"],
+    }
+    for name, words in expected.items():
+        assert result.loc[name, "status"] == "error"
+        for word in words:
+            assert word in result.loc[name, "error"], (name, result.loc[name, "error"])
+    good = table[table["candidate"].str.startswith("good")]
+    for (_, row), form in zip(good.iterrows(), _formulations(good), strict=True):
+        got = result.loc[row["candidate"]]
+        assert got["status"] == "ok", got["error"]
+        with _quiet():
+            eta = fm.predict(form, [10.0])["viscosity_Pa_s"].iloc[0]
+            phi = fm.max_loading(form, 2.0, 10.0)
+        assert got["window 1 viscosity [Pa*s]"] == pytest.approx(eta, rel=1e-9)
+        assert got["window 1 max solids [vol%]"] == pytest.approx(100 * phi, abs=1e-7)
+    # predict itself refuses these rows with the same messages
+    with pytest.raises(InputRangeError, match=r"liquid\.temperature_K = 143\.15"):
+        _formulations(table[table["candidate"] == "cold"])
+    (low,) = _formulations(table[table["candidate"] == "low phi_max"])
+    with pytest.raises(InputRangeError, match=r"phi_max = 0\.1 is not allowed"):
+        fm.predict(low, [10.0])
+
+
+# -- rows with more cells than the header ------------------------------------------------------
+
+CORPUS = pathlib.Path(__file__).resolve().parent / "corpus"
+
+
+def test_row_with_more_cells_than_the_header_is_an_error_of_that_row(tmp_path):
+    # tests/corpus/cand_extra_cells.csv (invented): rows A and D hold an unquoted comma in
+    # their note, so they have 7 and 8 cells under a 6-column header; row C ends in empty
+    # cells (not counted); row E has one cell fewer (its shear rate is empty). Before, pandas
+    # shifted row A into the index silently and row D stopped the whole run.
+    path = tmp_path / "cand_extra_cells.csv"
+    path.write_bytes((CORPUS / path.name).read_bytes())
+    summary, frame = batch.screen_file(path, keep=-1)
+    assert summary.rows == 5 and summary.errors == 2
+    assert list(frame["candidate"]) == ["A", "B", "C", "D", "E"]
+    assert list(frame["status"]) == ["error", "ok", "ok", "error", "ok"]
+    assert frame["error"].iloc[0].startswith("row 2 has 7 cells, the header has 6")
+    assert frame["error"].iloc[3].startswith("row 5 has 8 cells, the header has 6")
+    # 30 wt% of 2500 kg/m3 in water of 997 kg/m3 (hand calculation, as in test_corpus)
+    phi = 0.00012 / (0.00012 + 0.70 / 997.0)
+    np.testing.assert_allclose(frame["phi solids [-]"].iloc[[1, 2, 4]], phi, rtol=1e-9)
+    assert frame["window 1 verdict"].iloc[4] == "error: shear rate missing or <= 0"
+    assert batch.ROW_ERROR not in frame.columns
+
+
+def test_row_far_wider_than_the_header_is_counted_and_the_run_goes_on(tmp_path):
+    # Wider than the extra cells the fast reader keeps: the rest of the file is read with
+    # Python's csv module, row numbers and cell counts still exact, across chunks.
+    header = ("candidate,note,ingredient 1 loading [wt%],ingredient 1 density [kg/m3],"
+              "ingredient 1 d50 [um],window 1 shear rate [1/s]\n")
+    good = "G,invented,30,2500,5,10\n"
+    wide = "W,invented" + ",x" * (batch.EXTRA_CELLS + 20) + "\n"
+    path = tmp_path / "wide.csv"
+    path.write_text(header + good * 3 + wide + good * 2 + '"Q,uoted",invented,30,2500,5,10\n')
+    summary, frame = batch.screen_file(path, keep=-1, chunk_rows=2)
+    assert summary.rows == 7 and summary.errors == 1
+    assert list(frame["status"]) == ["ok"] * 3 + ["error"] + ["ok"] * 3
+    assert frame["error"].iloc[3].startswith(
+        f"row 5 has {2 + batch.EXTRA_CELLS + 20} cells, the header has 6")
+    assert frame["candidate"].iloc[6] == "Q,uoted"

@@ -132,3 +132,45 @@ def test_flow_curve_summary_is_plain_data():
 def test_bad_shear_rates_raise(rates):
     with pytest.raises(fm.InputRangeError, match="shear_rate_1_per_s"):
         fm.predict(paint(), rates)
+
+
+def _with_droplets(f, relation="phan-thien-pham"):
+    oil = fm.Ingredient("oil", density_kg_per_m3=900.0, loading=0.1, basis="volume",
+                        kind="droplet", droplet_viscosity_Pa_s=0.2)
+    return dataclasses.replace(f, ingredients=f.ingredients + (oil,), droplet_model=relation)
+
+
+@pytest.mark.parametrize("form", [
+    paint(diameter_m=0.3e-6),                                     # Brownian thinning
+    paint(diameter_m=10e-6, model="quemada"),                     # Brownian term left out
+    _with_droplets(paint(diameter_m=0.2e-6, model="maron-pierce")),
+    _with_droplets(paint(diameter_m=0.5e-6), relation="pal"),
+    paint(diameter_m=0.3e-6, model="mooney"),                     # no phi_max: no Brownian term
+    paint(diameter_m=0.1e-6, liquid=fm.Liquid(name="syrup", preset="glycerol-water",
+                                              glycerol_mass_fraction=0.6, temperature_K=290.0,
+                                              density_kg_per_m3=1150.0)),
+], ids=["brownian", "coarse", "droplets", "pal", "mooney", "glycerol"])
+def test_max_loading_closed_form_equals_the_flow_curve_bisection(form, mocker, monkeypatch):
+    # Outside check of the Newtonian shortcut in max_loading: the same bisection on the full
+    # flow-curve solve (shortcut switched off) must give the same loading to its tolerance.
+    cases = [(0.5, 10.0), (2.0, 0.01), (0.3, 1e4), (0.04, 1.0)]   # the last: liquid too thick
+    spy = mocker.spy(shear, "flow_curve")
+    fast = [fm.max_loading(form, limit, rate) for limit, rate in cases]
+    assert spy.call_count == 0                # the closed form, no flow-curve solve
+    monkeypatch.setattr(fm, "_newtonian_viscosity", lambda formulation, mix: None)
+    slow = [fm.max_loading(form, limit, rate) for limit, rate in cases]
+    assert spy.call_count > 0
+    np.testing.assert_allclose(fast, slow, rtol=0, atol=1e-9)
+    assert all(0.0 <= x < fm.mixture(form).phi_max for x in fast)
+
+
+def test_max_loading_keeps_the_flow_curve_for_other_liquids(mocker):
+    liquid = fm.Liquid(name="gel", preset="", law="carreau-yasuda",
+                       params={"zero_shear_viscosity_Pa_s": 0.5, "time_constant_s": 0.1},
+                       density_kg_per_m3=1000.0)
+    spy = mocker.spy(shear, "flow_curve")
+    fm.max_loading(paint(liquid=liquid), 5.0, 10.0)
+    assert spy.call_count > 20                # one solve per bisection step
+    spy.reset_mock()
+    fm.max_loading(paint(diameter_m=0.3e-6, thickening_onset_stress_Pa=20.0), 5.0, 10.0)
+    assert spy.call_count > 20
