@@ -361,12 +361,14 @@ class _Context:
         """
         if phi_eff >= self.upper:
             return np.inf
-        scaled = fm.with_solids_scaled(self.formulation, max(phi_eff, 0.0))
+        # The mixture scaled in place, as `fm.max_loading` does: the same flow curve as
+        # `fm.predict(fm.with_solids_scaled(...))` without resolving the mixture again.
+        scaled = fm._at_loading(self.mix, max(phi_eff, 0.0))
         with warnings.catch_warnings():
             if quiet:
                 warnings.simplefilter("ignore", ValidityWarning)
-            frame = fm.predict(scaled, rate)
-        return float(np.asarray(frame["viscosity_Pa_s"], dtype=float)[0])
+            curve = fm.flow_curve_of(self.formulation, np.array([float(rate)]), scaled)
+        return float(curve.viscosity_Pa_s[0])
 
 
 def _solve_loading(ctx: _Context, limit: float, rate: float) -> tuple[float, str]:

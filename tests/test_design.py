@@ -256,3 +256,27 @@ def test_best_blend_is_delegated(mocker):
     got = design.best_blend([SizeDistribution.single(20e-6), SizeDistribution.single(2e-6)],
                             phi_total=0.55, n_points=11)
     assert spy.call_count == 1 and got is spy.spy_return
+
+
+@pytest.mark.parametrize("name", ["mineral_coating", "ceramic_slip"])
+@pytest.mark.parametrize("phi", [0.0, 0.1, 0.35, 0.55])
+@pytest.mark.parametrize("rate", [0.01, 100.0])
+def test_trial_viscosity_equals_predict_of_the_rescaled_formulation(name, phi, rate):
+    # The solvers scale the mixture in place; that must be the very flow curve of the
+    # formulation rewritten at the trial loading (our own consistency, no outside source).
+    import pathlib
+    import warnings
+
+    from predictor import formulation as fm
+    from predictor import scenario
+    from predictor.errors import ValidityWarning
+
+    form = scenario.read_scenario(pathlib.Path(__file__).parents[1] / "data_demo"
+                                  / f"{name}.loadline.json")
+    ctx = design._Context(form)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", ValidityWarning)
+        want = fm.predict(fm.with_solids_scaled(ctx.formulation, phi) if phi > 0 else
+                          fm.with_solids_scaled(ctx.formulation, 1e-12), rate)
+    got = ctx.viscosity(phi if phi > 0 else 1e-12, rate)
+    assert got == pytest.approx(float(want["viscosity_Pa_s"].iloc[0]), rel=1e-9)
