@@ -33,7 +33,7 @@ def controls(drops: list[dict]) -> None:
     st.toggle("Rigid interface", key="drop_rigid",
               help="Droplets whose interface is immobilised by surfactant behave as rigid "
               "spheres.")
-    st.toggle("Deformation thinning", key="drop_thinning",
+    st.toggle("Thinning", key="drop_thinning",
               help="Below the packing limit, deformed droplets lower the viscosity at the "
               "process shear rate (Llewellin, Mader & Wilson's form for bubbles, generalised "
               "to any viscosity ratio; see the README). Off: the zero-shear value.")
