@@ -1093,7 +1093,7 @@ def deformation_thinning(phi, capillary_number, viscosity_ratio=1.0, model="phan
     if message:
         _warn(message)
     eta_0 = np.asarray(spec.func(phi, viscosity_ratio=lam, **params), dtype=float)
-    eta = _thinned(eta_0, phi, ca, lam)
+    eta = eta_0 * _thinning_factor(phi, ca, lam)
     with warnings.catch_warnings():
         warnings.simplefilter("ignore", ValidityWarning)    # lambda < 1e-4 is only an edge
         ca_crit = critical_capillary_de_bruijn(lam)
@@ -1108,18 +1108,19 @@ def deformation_thinning(phi, capillary_number, viscosity_ratio=1.0, model="phan
     return scalar_or_array(eta, phi, ca, lam)
 
 
-def _thinned(eta_0, phi, ca, lam):
-    """The thinning blend of `deformation_thinning`, given the zero-shear value eta_0."""
+def _thinning_factor(phi, ca, lam):
+    """eta_r(Ca) / eta_r(0) of `deformation_thinning`: the same for any zero-shear relation,
+    1 exactly at Ca = 0 and for rigid spheres."""
     rigid = np.isinf(lam)
-    eta_inf = eta_0 * np.exp(_thinning_exponent(lam) * np.log1p(-phi))
+    floor = np.exp(_thinning_exponent(lam) * np.log1p(-phi))       # eta_inf / eta_0
     with np.errstate(over="ignore", invalid="ignore"):
         # Overflow of (hat-lambda Ca)^2 means weight 0, the high-Ca limit; 0 * inf (a huge
         # lambda at Ca = 0) is replaced by 0 just below.
         x = _relaxation_factor(np.where(rigid, 0.0, lam)) * ca
         weight = 1.0 / (1.0 + np.where(ca > 0.0, x, 0.0) ** 2)
-        blend = eta_inf + (eta_0 - eta_inf) * weight
+        blend = floor + (1.0 - floor) * weight
     weight = np.where(rigid, 1.0, weight)
-    return np.where(weight >= 1.0, eta_0, np.where(weight <= 0.0, eta_inf, blend))
+    return np.where(weight >= 1.0, 1.0, np.where(weight <= 0.0, floor, blend))
 
 
 # --------------------------------------------------------------------------------------------

@@ -540,10 +540,8 @@ def max_loading(formulation: Formulation, viscosity_limit_Pa_s: float,
 
     The solids are scaled along their shares (droplets stay); the viscosity at the shear
     rate comes from the full flow curve (`flow_curve_of`), so thinning, thickening and a
-    non-Newtonian liquid count; for a Newtonian liquid without thickening the same
-    viscosity comes in closed form (`shear.newtonian_flow_viscosity`). Solved by bisection
-    to 1e-9 in phi on the rising curve; returns 0 when the liquid alone (with its droplets)
-    already exceeds the limit.
+    non-Newtonian liquid count. Solved by bisection to 1e-9 in phi on the rising curve;
+    returns 0 when the liquid alone (with its droplets) already exceeds the limit.
 
     Parameters
     ----------
@@ -570,15 +568,11 @@ def max_loading(formulation: Formulation, viscosity_limit_Pa_s: float,
                               "at least one solid ingredient to scale (for droplets, use the "
                               "phase-ratio questions in predictor.phase_ratio)")
     rates = np.array([rate])
-    closed = _newtonian_viscosity(formulation, mix)
 
     def too_thick(x):
         with warnings.catch_warnings():
             warnings.simplefilter("ignore", ValidityWarning)
-            if closed is not None:
-                eta = closed(_at_loading(mix, x), rate)
-            else:
-                eta = flow_curve_of(formulation, rates, _at_loading(mix, x)).viscosity_Pa_s[0]
+            eta = flow_curve_of(formulation, rates, _at_loading(mix, x)).viscosity_Pa_s[0]
         return not eta < limit       # nan or inf count as too thick
 
     low, high = 0.0, mix.phi_max
@@ -588,45 +582,6 @@ def max_loading(formulation: Formulation, viscosity_limit_Pa_s: float,
         mid = 0.5 * (low + high)
         low, high = (low, mid) if too_thick(mid) else (mid, high)
     return low
-
-
-def _newtonian_viscosity(formulation: Formulation, mix: Mixture):
-    """`flow_curve_of`'s viscosity at one rate in closed form, as a function (mix, rate), for
-    a Newtonian liquid without thickening (`shear.newtonian_flow_viscosity`); None otherwise.
-
-    The same choices as `flow_curve_of`: the relation at phi_max and at `ZERO_SHEAR_RATIO`
-    phi_max for the two plateaus, the droplets' medium factor at the mixture's solids, the
-    Sauter radius of all solids for the Brownian term (left out above
-    `shear.BROWNIAN_RADIUS_LIMIT_m` and at or above the zero-shear packing limit).
-    """
-    law, params = liquid_law_of(formulation.liquid)
-    if law != "newtonian" or formulation.thickening_onset_stress_Pa is not None:
-        return None
-    eta_l = float(liquids.liquid_law(law, **params).params["viscosity_Pa_s"])
-    spec = get_model(formulation.model, kind="suspension")
-    rel = spec.check_params(_relation_params(spec, mix, formulation.model_params))
-    has_phi_max = "phi_max" in rel
-    phi_max = float(rel.pop("phi_max", mix.phi_max))
-    radius = _solid_radius_m(formulation, mix)
-    brownian = (has_phi_max and radius is not None
-                and radius <= shear.BROWNIAN_RADIUS_LIMIT_m)
-    scale = (shear.CRITICAL_REDUCED_STRESS * shear.BOLTZMANN_J_PER_K
-             * formulation.liquid.temperature_K / radius**3) if brownian else None
-
-    def relation(phi, limit):
-        return float(spec.func(phi, **({"phi_max": limit} if has_phi_max else {}), **rel))
-
-    def viscosity(at: Mixture, rate: float) -> float:
-        phi = at.phi_solids_effective
-        medium = droplet_factor(formulation, at)
-        if phi >= 1.0 or not np.isfinite(medium):
-            return np.inf
-        g_hs = relation(phi, phi_max)
-        g0 = relation(phi, ZERO_SHEAR_RATIO * phi_max) if brownian else np.inf
-        return shear.newtonian_flow_viscosity(rate, eta_l * medium, g_hs, g0,
-                                              scale if brownian else None)
-
-    return viscosity
 
 
 def with_solids_scaled(formulation: Formulation, phi_solids_effective: float) -> Formulation:

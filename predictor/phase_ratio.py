@@ -107,16 +107,11 @@ def _branch(x, eta_cont, eta_drop, c):
         warnings.warn(message, ValidityWarning, stacklevel=4)
     eta_r_zero = c["spec"].func(x_fluid, viscosity_ratio=lam, **c["params"])
     ca = emulsion.capillary_number(eta_cont, c["rate"], 0.5 * c["d32"], c["gamma"])
-    if c["thinning"]:
-        with warnings.catch_warnings():
-            # The relation's range is reported just above; breakup is the droplets_break column.
-            warnings.simplefilter("ignore", ValidityWarning)
-            eta_r_fluid = emulsion.deformation_thinning(
-                x_fluid, ca, lam, model=c["spec"].name, model_params=c["params"])
-        with np.errstate(invalid="ignore"):       # inf / inf near a divergence: no factor
-            thinning = np.where(np.isfinite(eta_r_zero), eta_r_fluid / eta_r_zero, 1.0)
-    else:
-        eta_r_fluid, thinning = eta_r_zero, np.ones_like(x)
+    # `emulsion.deformation_thinning` on the zero-shear values already at hand (its factor
+    # does not depend on the relation); breakup is the droplets_break column.
+    thinning = (emulsion._thinning_factor(x_fluid, ca, np.asarray(lam, dtype=float))
+                if c["thinning"] else np.ones_like(x))
+    eta_r_fluid = eta_r_zero * thinning
     jammed = ~fluid
     stress = np.zeros_like(x)
     yield_stress = np.zeros_like(x)
