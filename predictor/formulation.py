@@ -272,19 +272,39 @@ def relative_viscosity_at(formulation: Formulation, phi_solids_effective,
 
 def droplet_factor(formulation: Formulation, mix: Mixture) -> float:
     """Relative viscosity of the droplets in the liquid (1 without droplets)."""
-    drops = [(k, i) for k, i in enumerate(formulation.ingredients) if i.kind == DROPLET]
-    if not drops or mix.phi_droplets <= 0.0:
-        return 1.0
-    phi_d = mix.phi_droplets / max(1.0 - mix.phi_solids, 1e-12)
-    volume = np.array([mix.phi[k] for k, _ in drops])
-    eta_d = np.array([i.droplet_viscosity_Pa_s if i.droplet_viscosity_Pa_s is not None
-                      else mix.liquid_viscosity_Pa_s for _, i in drops])
-    ratio = float(volume @ eta_d / volume.sum()) / mix.liquid_viscosity_Pa_s
+    model, params = droplet_relation(formulation, mix)
+    return float(droplet_medium(model, params, mix.phi_droplets, mix.phi_solids))
+
+
+def droplet_relation(formulation: Formulation, mix: Mixture) -> tuple[str, dict]:
+    """Emulsion relation of the droplets and its parameters (viscosity ratio, overrides)."""
     spec = get_model(formulation.droplet_model, kind="emulsion")
-    params = {"viscosity_ratio": ratio} if "viscosity_ratio" in spec.param_names() else {}
-    params.update({k: v for k, v in formulation.model_params.items() if k in spec.param_names()})
-    # Through the dispatcher, so that droplets past a relation's range are reported.
-    return float(relative_viscosity(min(phi_d, 1.0), model=spec.name, **params))
+    drops = [(k, i) for k, i in enumerate(formulation.ingredients) if i.kind == DROPLET]
+    params = {}
+    if drops and mix.phi_droplets > 0.0 and "viscosity_ratio" in spec.param_names():
+        volume = np.array([mix.phi[k] for k, _ in drops])
+        eta_d = np.array([i.droplet_viscosity_Pa_s if i.droplet_viscosity_Pa_s is not None
+                          else mix.liquid_viscosity_Pa_s for _, i in drops])
+        params["viscosity_ratio"] = float(volume @ eta_d / volume.sum()) / \
+            mix.liquid_viscosity_Pa_s
+    params.update({k: v for k, v in formulation.model_params.items()
+                   if k in spec.param_names()})
+    return spec.name, params
+
+
+def droplet_medium(model: str, params: dict, phi_droplets, phi_solids):
+    """Relative viscosity of droplets in the liquid, vectorised over rows (1 without).
+
+    The droplets' fraction is counted in the liquid + droplets: phi_d / (1 - phi_solids).
+    Through the dispatcher, so that droplets past a relation's range are reported.
+    """
+    phi_d = np.asarray(phi_droplets, dtype=float)
+    has = phi_d > 0.0
+    if not np.any(has):
+        return np.ones(np.shape(phi_d)) if np.ndim(phi_d) else 1.0
+    share = np.minimum(phi_d / np.maximum(1.0 - np.asarray(phi_solids, float), 1e-12), 1.0)
+    value = relative_viscosity(np.where(has, share, 0.0), model=model, **params)
+    return np.where(has, value, 1.0)
 
 
 #: Zero-shear over high-shear packing limit of Brownian hard spheres, 0.63/0.71 (de Kruif et
@@ -330,33 +350,39 @@ def _solid_radius_m(formulation: Formulation, mix: Mixture) -> float | None:
 
 def flow_curve_of(formulation: Formulation, shear_rate_1_per_s=None,
                   mix: Mixture | None = None):
-    """The `shear.FlowCurve` of a formulation (see `predict` for the choices made)."""
+    """The `shear.FlowCurve` of a formulation: one row of the engine, with its markers.
+
+    The row's inputs are `engine.row_inputs` (see `predict` for the choices made) and the
+    solve is `shear.flow_curve`, the one-row case of `shear.flow_curves` that
+    `engine.evaluate` runs over many rows.
+    """
+    from . import engine
+
     rates = _rates(shear_rate_1_per_s)
-    mix = mix or mixture(formulation)
-    law, params = liquid_law_of(formulation.liquid)
-    spec = get_model(formulation.model, kind="suspension")
-    rel = spec.check_params(_relation_params(spec, mix, formulation.model_params))
-    phi_max = float(rel.pop("phi_max", mix.phi_max))
-    phi = mix.phi_solids_effective
-    medium = droplet_factor(formulation, mix)
+    row = engine.row_inputs(formulation, mix)
+    phi = row["phi"]
+    medium = float(droplet_medium(row["droplet_model"], row["droplet_params"],
+                                  row["phi_droplets"], row["phi_solids"]))
+    law, params = row["liquid_law"], row["liquid_params"]
     if phi >= 1.0 or not np.isfinite(medium):
         inf = np.full_like(rates, np.inf)
         eta_l = np.asarray(liquids.liquid_viscosity(rates, law, **params)) * np.ones_like(rates)
         return shear.FlowCurve(rates, inf, inf, inf, eta_l, np.full(rates.shape, "jammed"),
                                {"shear_jamming_1_per_s": 0.0},
                                (f"phi = {phi:.3g} of solids with droplets at "
-                                f"{mix.phi_droplets:.3g}: the dispersed phases are jammed; "
+                                f"{row['phi_droplets']:.3g}: the dispersed phases are jammed; "
                                 "no flow is predicted.",))
-    onset = formulation.thickening_onset_stress_Pa
-    frictional = formulation.phi_max_frictional
-    if onset is not None and frictional is None:
-        frictional = FRICTIONAL_RATIO * phi_max
+
+    def given(name):
+        return None if np.isnan(row[name]) else float(row[name])
+
     return shear.flow_curve(
         rates, phi, liquid_law_name=law, liquid_params=params, medium_factor=medium,
-        relation=spec.name, relation_params=rel, phi_max_zero_shear=ZERO_SHEAR_RATIO * phi_max,
-        phi_max_high_shear=phi_max, phi_max_frictional=frictional, onset_stress_Pa=onset,
-        radius_m=_solid_radius_m(formulation, mix),
-        temperature_K=formulation.liquid.temperature_K)
+        relation=row["relation"], relation_params=row["relation_params"],
+        phi_max_zero_shear=ZERO_SHEAR_RATIO * row["phi_max"],
+        phi_max_high_shear=row["phi_max"], phi_max_frictional=given("phi_max_frictional"),
+        onset_stress_Pa=given("onset_stress_Pa"), radius_m=given("radius_m"),
+        temperature_K=row["temperature_K"], yield_stress_Pa=row["yield_stress_Pa"])
 
 
 def _rates(shear_rate_1_per_s):

@@ -1060,8 +1060,10 @@ class LiquidLaw:
                                    np.broadcast_to(tau, shape).astype(float), arrays)
 
     @property
-    def yield_stress_Pa(self) -> float:
-        return float(self.params.get("yield_stress_Pa", 0.0))
+    def yield_stress_Pa(self):
+        """The law's yield stress: a float, or an array when the parameters are arrays."""
+        value = np.asarray(self.params.get("yield_stress_Pa", 0.0), dtype=float)
+        return float(value) if value.ndim == 0 else value
 
 
 @guarded

@@ -400,13 +400,57 @@ class FlowCurve:
     warnings: tuple[str, ...] = ()
 
 
+class _Liquid:
+    """A liquid law plus an additive yield stress (e.g. from flocculated solids) [Pa].
+
+    The extra yield stress adds to the law's stress at every rate, as in a
+    Herschel-Bulkley law; the inverse subtracts it first. Parameters may be arrays (rows).
+    """
+
+    def __init__(self, law, extra_yield_stress_Pa=0.0):
+        self.law, self.name = law, law.name
+        self.extra = np.asarray(extra_yield_stress_Pa, dtype=float)
+        self.params = law.params
+        self.yield_stress_Pa = np.asarray(law.params.get("yield_stress_Pa", 0.0),
+                                          dtype=float) + self.extra
+
+    def viscosity(self, shear_rate_1_per_s):
+        rate = np.asarray(shear_rate_1_per_s, dtype=float)
+        eta = np.asarray(self.law.viscosity(rate), dtype=float)
+        if not np.any(self.extra > 0):
+            return eta
+        with np.errstate(divide="ignore", invalid="ignore"):
+            extra = np.where(rate > 0, self.extra / np.where(rate > 0, rate, 1.0), np.inf)
+        return eta + np.where(self.extra > 0, extra, 0.0)
+
+    def stress(self, shear_rate_1_per_s):
+        return self.law.stress(shear_rate_1_per_s) + self.extra
+
+    def shear_rate(self, shear_stress_Pa):
+        tau = np.asarray(shear_stress_Pa, dtype=float)
+        if not np.any(self.extra > 0):
+            return self.law.shear_rate(tau)
+        with np.errstate(invalid="ignore"):
+            return self.law.shear_rate(np.maximum(tau - self.extra, 0.0))
+
+
+def _arr(value):
+    return np.asarray(np.nan if value is None else value, dtype=float)
+
+
 class _Model:
-    """The stress-dependent relative viscosity g(sigma) and the liquid, for one suspension."""
+    """The stress-dependent relative viscosity g(sigma) and the liquid of suspensions.
+
+    Every quantity is a float (one suspension) or an array of shape (n, 1) (n rows, which
+    broadcast against stresses of shape (n, K)); ``None`` or ``nan`` switches a mechanism
+    off (no Brownian radius, no onset stress).
+    """
 
     def __init__(self, phi, law, medium_factor, relation, relation_params, phi_max_zero_shear,
                  phi_max_high_shear, phi_max_frictional, onset_stress_Pa, radius_m,
-                 temperature_K, critical_reduced_stress):
-        self.phi, self.law, self.medium = phi, law, medium_factor
+                 temperature_K, critical_reduced_stress, yield_stress_Pa=0.0):
+        self.phi, self.medium = _arr(phi), _arr(medium_factor)
+        self.law = law if isinstance(law, _Liquid) else _Liquid(law, yield_stress_Pa)
         self.spec = get_model(relation, kind="suspension")
         self.has_phi_max = "phi_max" in self.spec.param_names()
         params = {k: v for k, v in (relation_params or {}).items() if k != "phi_max"}
@@ -414,17 +458,47 @@ class _Model:
             params["phi_max"] = phi_max_high_shear
         self.params = self.spec.check_params(params)
         self.params.pop("phi_max", None)
-        self.phi_hs = phi_max_high_shear
-        self.thickening = onset_stress_Pa is not None and self.has_phi_max
-        self.phi_mu = phi_max_frictional if self.thickening else phi_max_high_shear
-        self.star = onset_stress_Pa
-        self.brownian = (radius_m is not None and phi_max_zero_shear is not None
-                         and self.has_phi_max)
-        self.stress_scale = (critical_reduced_stress * BOLTZMANN_J_PER_K * temperature_K
-                             / radius_m**3) if radius_m is not None else np.nan
-        self.g_hs = self.relation(phi_max_high_shear)
-        self.g0 = self.relation(phi_max_zero_shear) if self.brownian else np.nan
+        self.phi_hs = _arr(phi_max_high_shear)
+        star = _arr(onset_stress_Pa)
+        self.thickening = np.isfinite(star) & self.has_phi_max
+        self.star = np.where(self.thickening, star, np.nan)
+        self.phi_mu = np.where(self.thickening, _arr(phi_max_frictional), self.phi_hs)
+        self.radius = _arr(radius_m)
+        phi0 = _arr(phi_max_zero_shear)
+        self.brownian = np.isfinite(self.radius) & np.isfinite(phi0) & self.has_phi_max
+        safe_radius = np.where(np.isfinite(self.radius), self.radius, 1.0)
+        self.stress_scale = np.where(np.isfinite(self.radius), critical_reduced_stress
+                                     * BOLTZMANN_J_PER_K * _arr(temperature_K)
+                                     / safe_radius**3, np.nan)
+        self.g_hs = self.relation(self.phi_hs)
+        self.g0 = np.where(self.brownian,
+                           self.relation(np.where(self.brownian, phi0, self.phi_hs)), np.nan)
         self.g_mu = self.relation(self.phi_mu)
+
+    _ARRAYS = ("phi", "medium", "phi_hs", "thickening", "star", "phi_mu", "radius",
+               "brownian", "stress_scale", "g_hs", "g0", "g_mu")
+
+    def _mapped(self, func):
+        """A copy with `func` applied to every per-row array (parameters included)."""
+        sub = object.__new__(_Model)
+        sub.__dict__.update(self.__dict__)
+        shape = np.shape(self.phi)
+        for name in self._ARRAYS:
+            setattr(sub, name, func(np.broadcast_to(getattr(self, name), shape)))
+        sub.params = {k: func(np.broadcast_to(v, shape)) for k, v in self.params.items()}
+        law = self.law.law
+        sub.law = _Liquid(type(law)(law.name, {k: func(np.broadcast_to(v, shape))
+                                               for k, v in law.params.items()}),
+                          func(np.broadcast_to(self.law.extra, shape)))
+        return sub
+
+    def take(self, rows):
+        """The model of a subset of rows (boolean mask or indices over the first axis)."""
+        return self._mapped(lambda v: v[rows])
+
+    def rows(self):
+        """A one-suspension model as one row (arrays of shape (1, 1))."""
+        return self._mapped(lambda v: np.reshape(v, (1, 1)))
 
     def relation(self, phi_max):
         """Relative viscosity of the particles at one packing limit (array or float)."""
@@ -435,42 +509,52 @@ class _Model:
     def g(self, sigma):
         """Particle relative viscosity at stress sigma (our combination, see flow_curve)."""
         sigma = np.asarray(sigma, dtype=float)
-        if self.thickening:
-            f = -np.expm1(-sigma / self.star)
+        if np.any(self.thickening):
+            with np.errstate(over="ignore", invalid="ignore"):
+                f = np.where(self.thickening,
+                             -np.expm1(-sigma / np.where(self.thickening, self.star, 1.0)), 0.0)
             g = self.relation(f * self.phi_mu + (1.0 - f) * self.phi_hs)
         else:
-            g = np.broadcast_to(self.g_hs, sigma.shape)
-        if self.brownian:
-            w = 1.0 / (1.0 + sigma / self.stress_scale)
-            with np.errstate(invalid="ignore"):
-                g = np.where(w > 0, g + (self.g0 - g) * w, g)
+            g = np.broadcast_to(self.g_hs, np.broadcast(sigma, self.phi).shape)
+        if np.any(self.brownian):
+            with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+                w = 1.0 / (1.0 + sigma / np.where(self.brownian, self.stress_scale, 1.0))
+                g = np.where(self.brownian & (w > 0), g + (self.g0 - g) * w, g)
         return g
 
     def stress(self, rate, g):
         """Macroscopic stress at a rate for particle relative viscosity g (Chateau et al.)."""
         one = 1.0 - self.phi
+        finite = np.isfinite(g)
+        gg = np.where(finite, g, 1.0)
         with np.errstate(invalid="ignore", over="ignore"):
-            s = np.sqrt(one * g) * self.medium * self.law.stress(rate * np.sqrt(g / one))
-        return np.where(np.isfinite(g), s, np.inf)
+            s = np.sqrt(one * gg) * self.medium * self.law.stress(rate * np.sqrt(gg / one))
+        return np.where(finite, s, np.inf)
 
     def rate(self, sigma, g):
         """Macroscopic rate carrying stress sigma for particle relative viscosity g."""
         one = 1.0 - self.phi
         finite = np.isfinite(g)
         gg = np.where(finite, g, 1.0)
-        local = self.law.shear_rate(sigma / (self.medium * np.sqrt(one * gg)))
+        with np.errstate(over="ignore", invalid="ignore"):
+            local = self.law.shear_rate(sigma / (self.medium * np.sqrt(one * gg)))
         return np.where(finite, local * np.sqrt(one / gg), 0.0)
+
+    def plateaus(self):
+        """Lowest and highest particle relative viscosity over all stresses."""
+        vals = [self.g_hs, np.where(self.brownian, self.g0, self.g_hs),
+                np.where(self.thickening, self.g_mu, self.g_hs)]
+        return np.minimum.reduce(vals), np.maximum.reduce(vals)
 
     def jamming_stress(self):
         """Stress above which phi_J(sigma) <= phi (inf if never)."""
-        if not self.thickening or self.phi < self.phi_mu:
-            return np.inf
-        if self.phi >= self.phi_hs:
-            return 0.0
-        f = (self.phi_hs - self.phi) / (self.phi_hs - self.phi_mu)
-        if f >= 1.0:        # phi == phi_mu: jams only as sigma -> inf; e**-60 is as good
-            return 60.0 * self.star
-        return float(-self.star * np.log1p(-f))
+        on = self.thickening & (self.phi >= self.phi_mu)
+        with np.errstate(divide="ignore", invalid="ignore"):
+            f = (self.phi_hs - self.phi) / (self.phi_hs - self.phi_mu)
+            # phi == phi_mu jams only as sigma -> inf; e**-60 is as good
+            sig = np.where(f >= 1.0, 60.0 * self.star,
+                           -self.star * np.log1p(-np.clip(f, 0.0, 1.0 - 1e-16)))
+        return np.where(on, np.where(self.phi >= self.phi_hs, 0.0, sig), np.inf)
 
 
 def _first_crossing(model, sig_grid, values, target, rising):
@@ -495,17 +579,21 @@ def _refine(model, rates, lo, hi):
     Works on x = ln(sigma) with f(x) = x - ln S(rate, g(e**x)), negative at lo and
     non-negative at hi; vectorised regula falsi with the Illinois modification, then a
     last bisection step where the residual cannot be evaluated (jammed branches).
+    Every array broadcasts: rows of a model (n, 1) against brackets (n, M).
     """
     def f(x):
-        with np.errstate(divide="ignore"):
+        with np.errstate(divide="ignore", over="ignore"):
             return x - np.log(model.stress(rates, model.g(np.exp(x))))
 
+    lo, hi = np.broadcast_arrays(lo, hi)
+    lo, hi = lo.astype(float), hi.astype(float)
     f_lo, f_hi = f(lo), f(hi)
     side = np.zeros(lo.shape, int)
-    for _ in range(40):
+    for _ in range(60):
         ok = np.isfinite(f_lo) & np.isfinite(f_hi) & (f_hi != f_lo)
-        x = np.where(ok, (lo * f_hi - hi * f_lo) / np.where(ok, f_hi - f_lo, 1.0),
-                     0.5 * (lo + hi))
+        with np.errstate(invalid="ignore", over="ignore"):
+            x = np.where(ok, (lo * f_hi - hi * f_lo) / np.where(ok, f_hi - f_lo, 1.0),
+                         0.5 * (lo + hi))
         x = np.clip(x, np.minimum(lo, hi), np.maximum(lo, hi))
         fx = f(x)
         neg = fx < 0
@@ -515,9 +603,174 @@ def _refine(model, rates, lo, hi):
         lo, f_lo = np.where(neg, x, lo), np.where(neg, fx, f_lo)
         hi, f_hi = np.where(neg, hi, x), np.where(neg, f_hi, fx)
         side = np.where(neg, -1, 1)
-        if np.all(hi - lo < 1e-13) or np.all(np.abs(fx[np.isfinite(fx)]) < 1e-14):
+        if np.all((hi - lo < 1e-13) | (np.abs(fx) < 1e-14)):
             break
     return np.where(np.abs(f_lo) < np.abs(f_hi), lo, hi)
+
+
+def _grid_bounds(model, rates, sig_jam):
+    """Lowest and highest stress of the grid of each row (the stress-space search range)."""
+    g_lo, g_hi = model.plateaus()
+    sig_lo = model.stress(rates.min(), g_lo) / 4.0
+    with np.errstate(over="ignore"):
+        sig_hi = np.where(np.isfinite(g_hi), model.stress(rates.max(), g_hi) * 4.0, np.inf)
+    sig_hi = np.minimum(sig_hi, sig_jam)
+    sig_hi = np.where(np.isfinite(sig_hi), sig_hi, sig_lo * 1e12)   # guard; see the checks
+    sig_lo = np.maximum(sig_lo, 1e-300)
+    sig_lo = np.where(np.isfinite(sig_jam) & (sig_lo >= sig_jam), sig_jam * 1e-6, sig_lo)
+    for scale in (model.stress_scale, model.star):   # show the features near the range too
+        use = np.isfinite(scale) & (scale > 0)
+        sig_lo = np.where(use, np.minimum(sig_lo, np.maximum(np.where(use, scale, 1.0) * 1e-3,
+                                                             sig_lo * 1e-3)), sig_lo)
+    return sig_lo, sig_hi
+
+
+def _grid(model, rates, sig_jam, points_per_decade):
+    """Stress grid of each row (n, G): log-spaced, dense just below the jamming stress."""
+    sig_lo, sig_hi = _grid_bounds(model, rates, sig_jam)
+    decades = np.maximum(np.log10(sig_hi / sig_lo), 1.0)
+    n = int(np.clip(points_per_decade * float(np.max(decades)), 200, 20000))
+    jam = np.isfinite(sig_jam)
+    t = np.where(jam, np.arange(n) / n, np.linspace(0.0, 1.0, n))
+    top = np.where(jam, sig_jam, sig_hi)
+    grid = np.exp(np.log(sig_lo) + t * (np.log(top) - np.log(sig_lo)))
+    near = np.where(jam, np.where(jam, sig_jam, 1.0) * (1.0 - np.logspace(-1, -13, 200)),
+                    sig_hi)
+    near = np.where(near > sig_lo * 0.999, near, sig_lo)
+    return np.sort(np.concatenate([grid, near], axis=-1), axis=-1)
+
+
+@dataclass
+class _Solved:
+    """What `_solve` finds for rows (n, M) of a model, with row markers (n,)."""
+
+    sigma: np.ndarray
+    regime: np.ndarray
+    apparent_yield_stress_Pa: np.ndarray
+    dst_low_1_per_s: np.ndarray
+    dst_high_1_per_s: np.ndarray
+    shear_jamming_1_per_s: np.ndarray
+    fall_stress_Pa: np.ndarray
+
+
+def _solve(model, rates, points_per_decade=60.0):
+    """Stress at every rate of every row (model arrays (n, 1), rates (M,)), and regimes.
+
+    Rows without frictional thickening have a stress-rate curve that rises monotonically
+    (g is bounded by its plateaus, the stress rises with g), so the root lies between the
+    stresses at the two plateaus and is refined there directly. Rows with thickening may
+    turn back (S-shaped curve, shear jamming): their rate is computed on a stress grid,
+    each requested rate is bracketed on the rising envelope, then refined.
+    """
+    n, m = model.phi.shape[0], rates.size
+    sigma = np.full((n, m), np.inf)
+    dst = np.zeros((n, m), bool)
+    nan = np.full(n, np.nan)
+    low, high, jam_rate, fall = nan.copy(), nan.copy(), nan.copy(), nan.copy()
+    sig_jam = model.jamming_stress()
+    dead = ((~np.isfinite(model.g_hs) & ~model.thickening) | (sig_jam == 0.0)).ravel()
+    jam_rate[dead] = 0.0
+    mono = ~dead & ~model.thickening.ravel()
+    if mono.any():
+        sub = model.take(mono)
+        g_lo, g_hi = sub.plateaus()
+        lo, hi = np.log(sub.stress(rates, g_lo)), np.log(sub.stress(rates, g_hi))
+        sigma[mono] = np.exp(_refine(sub, rates, lo, hi))
+    thick = np.flatnonzero(~dead & model.thickening.ravel())
+    for part in np.array_split(thick, max(1, thick.size // 2000)):
+        if part.size:
+            _solve_on_grid(model.take(part), rates, sig_jam[part], points_per_decade,
+                           part, sigma, dst, low, high, jam_rate, fall)
+    ys = _apparent_yield_stress(model, sig_jam)
+    regime = _regimes(model, rates, sigma, ys[:, None])
+    regime[dst] = "discontinuous-thickening"
+    regime[~np.isfinite(sigma)] = "jammed"
+    return _Solved(sigma, regime, ys, low, high, jam_rate, fall)
+
+
+def _solve_on_grid(model, rates, sig_jam, points_per_decade, rows, sigma, dst, low, high,
+                   jam_rate, fall):
+    """`_solve` for rows that may thicken: bracket on the grid's rising envelope."""
+    grid = _grid(model, rates, sig_jam, points_per_decade)
+    rate_grid = model.rate(grid, model.g(grid))
+    envelope = np.maximum.accumulate(rate_grid, axis=1)
+    size = grid.shape[1]
+    k = (envelope[:, :, None] < rates[None, None, :]).sum(axis=1)      # (n, M)
+    reach = k < size
+    kk = np.clip(k, 1, size - 1)
+    lo = np.log(np.take_along_axis(grid, kk - 1, axis=1))
+    hi = np.log(np.take_along_axis(grid, kk, axis=1))
+    sigma[rows] = np.where(reach, np.exp(_refine(model, rates, lo, hi)), np.inf)
+    # S-shape: the first fall of the rate along the grid; it recovers (discontinuous
+    # thickening) or never does (shear jamming).
+    falls = (rate_grid[:, 1:] < rate_grid[:, :-1] * (1 - 1e-9)) & (rate_grid[:, :-1] > 0)
+    has = falls.any(axis=1)
+    first = np.argmax(falls, axis=1)
+    r = np.arange(grid.shape[0])
+    top = envelope[r, first]
+    recovers = has & (envelope[:, -1] > top * (1 + 1e-9))
+    above = envelope > top[:, None]
+    until = np.where(above.any(axis=1), np.argmax(above, axis=1), size)
+    j = np.arange(size)
+    window = (j >= first[:, None]) & (j < until[:, None])
+    bottom = np.where(window, rate_grid, np.inf).min(axis=1)
+    low[rows] = np.where(recovers, bottom, np.nan)
+    high[rows] = np.where(recovers, top, np.nan)
+    jam_rate[rows] = np.where(has & ~recovers, top, np.where(reach.all(axis=1), np.nan,
+                                                            envelope[:, -1]))
+    fall[rows] = np.where(has, grid[r, first], np.nan)
+    dst[rows] = recovers[:, None] & (rates >= bottom[:, None]) & (rates <= top[:, None])
+
+
+def _apparent_yield_stress(model, sig_jam):
+    """Stress where the rate leaves zero: sigma = sqrt((1 - phi) g(sigma)) m tau_y (rows)."""
+    n = model.phi.shape[0]
+    ty = np.broadcast_to(model.law.yield_stress_Pa * model.medium, (n, 1))
+    out = np.zeros(n)
+    rows = np.flatnonzero(ty.ravel() > 0)
+    if rows.size == 0:
+        return out
+    sub = model.take(rows)
+    t = ty[rows]
+    g_lo, g_hi = sub.plateaus()
+    one = 1.0 - sub.phi
+    lo = np.log(np.sqrt(one * g_lo) * t)
+    with np.errstate(over="ignore", invalid="ignore"):
+        hi = np.where(np.isfinite(g_hi), np.log(np.sqrt(one * np.where(
+            np.isfinite(g_hi), g_hi, 1.0)) * t), np.log(sig_jam[rows] * (1 - 1e-12)))
+    for _ in range(64):
+        mid = 0.5 * (lo + hi)
+        s = np.exp(mid)
+        below = s - np.sqrt(one * sub.g(s)) * t < 0
+        lo, hi = np.where(below, mid, lo), np.where(below, hi, mid)
+    out[rows] = np.exp(0.5 * (lo + hi)).ravel()
+    return out
+
+
+def _regimes(model, rates, sigma, ys):
+    """Regime labels from the exact local slope d ln eta / d ln gammadot at each point.
+
+    Differentiating ln sigma = F(ln rate, ln sigma), F = ln S(rate, g(sigma)), gives
+    d ln sigma / d ln rate = F_r / (1 - F_x); both partial derivatives are taken by
+    central differences of the model functions (no further solve).
+    """
+    h = 1e-6
+    finite = np.isfinite(sigma)
+    s = np.where(finite, sigma, 1.0)
+    with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
+        g = model.g(s)
+        f_r = (np.log(model.stress(rates * np.exp(h), g))
+               - np.log(model.stress(rates * np.exp(-h), g))) / (2 * h)
+        up = np.log(model.stress(rates, model.g(s * np.exp(h))))
+        down = np.log(model.stress(rates, model.g(s * np.exp(-h))))
+        mid = np.log(model.stress(rates, g))
+        f_x = np.where(np.isfinite(up), (up - down) / (2 * h), (mid - down) / h)
+        slope = f_r / (1.0 - f_x) - 1.0
+    slope = np.where(np.isfinite(slope), slope, np.where(f_x >= 1.0, 1.0, -1.0))
+    regime = np.where(slope < -PLATEAU_SLOPE, "thinning",
+                      np.where(slope > PLATEAU_SLOPE, "thickening", "plateau")).astype(object)
+    regime[(ys > 0) & (sigma < 2.0 * ys)] = "yield"
+    return regime
 
 
 @guarded
@@ -525,7 +778,8 @@ def flow_curve(shear_rate_1_per_s, phi, *, liquid_law_name="newtonian", liquid_p
                medium_factor=1.0, relation="krieger-dougherty", relation_params=None,
                phi_max_zero_shear=None, phi_max_high_shear=0.64, phi_max_frictional=None,
                onset_stress_Pa=None, radius_m=None, temperature_K=298.15,
-               critical_reduced_stress=CRITICAL_REDUCED_STRESS, points_per_decade=60):
+               critical_reduced_stress=CRITICAL_REDUCED_STRESS, points_per_decade=60,
+               yield_stress_Pa=0.0):
     r"""Flow curve of one suspension: viscosity, stress and regime at each shear rate.
 
     Solves, at every shear rate, for the stress sigma that the suspension carries, when its
@@ -570,6 +824,9 @@ def flow_curve(shear_rate_1_per_s, phi, *, liquid_law_name="newtonian", liquid_p
         Midpoint of Krieger's interpolation, in units of k_B T/a**3. [-]
     points_per_decade : int, optional
         Density of the stress grid (accuracy is set by the refinement, not by this).
+    yield_stress_Pa : float, optional
+        Yield stress added to the liquid law's own (e.g. from flocculated solids), as in a
+        Herschel-Bulkley law: the liquid's stress is tau_y + tau_law(gammadot). [Pa]
 
     Returns
     -------
@@ -637,7 +894,7 @@ def flow_curve(shear_rate_1_per_s, phi, *, liquid_law_name="newtonian", liquid_p
                "phi_max_frictional": phi_max_frictional, "onset_stress_Pa": onset_stress_Pa,
                "radius_m": radius_m, "temperature_K": temperature_K,
                "critical_reduced_stress": critical_reduced_stress,
-               "points_per_decade": points_per_decade}
+               "points_per_decade": points_per_decade, "yield_stress_Pa": yield_stress_Pa}
     for name, value in scalars.items():
         if value is not None and np.ndim(value) != 0:
             raise InputRangeError(name, f"an array of shape {np.shape(value)}", "a single number")
@@ -660,7 +917,8 @@ def flow_curve(shear_rate_1_per_s, phi, *, liquid_law_name="newtonian", liquid_p
         radius_m = float(positive(radius_m, "radius_m"))
     temperature_K = float(positive(temperature_K, "temperature_K"))
     medium_factor = float(positive(medium_factor, "medium_factor"))
-    law = liquid_law(liquid_law_name, **(liquid_params or {}))
+    law = _Liquid(liquid_law(liquid_law_name, **(liquid_params or {})),
+                  float(in_range(yield_stress_Pa, "yield_stress_Pa", 0.0, 1e7)))
     messages: list[str] = []
 
     def warn(text):
@@ -677,20 +935,20 @@ def flow_curve(shear_rate_1_per_s, phi, *, liquid_law_name="newtonian", liquid_p
     if model.brownian and radius_m > BROWNIAN_RADIUS_LIMIT_m:
         messages.append(f"Brownian shear thinning is negligible for particles of radius "
                         f"{radius_m * 1e6:.3g} um (stress scale k_B T/a^3 = "
-                        f"{model.stress_scale / critical_reduced_stress:.2g} Pa) and is left "
-                        "out.")
-        model.brownian = False
+                        f"{float(model.stress_scale) / critical_reduced_stress:.2g} Pa) and "
+                        "is left out.")
+        model.brownian = np.asarray(False)
     if model.brownian and not np.isfinite(model.g0):
         warn(f"phi = {phi:.3g} is at or above the zero-shear packing limit "
              f"{phi_max_zero_shear:.3g}: Krieger's interpolation has no zero-shear plateau "
              "there (a Brownian glass with a yield stress of order k_B T/a^3 = "
-             f"{model.stress_scale / critical_reduced_stress:.3g} Pa); the Brownian term is "
-             "left out.")
-        model.brownian = False
+             f"{float(model.stress_scale) / critical_reduced_stress:.3g} Pa); the Brownian "
+             "term is left out.")
+        model.brownian = np.asarray(False)
 
     eta_l = np.asarray(law.viscosity(rates), dtype=float) * np.ones_like(rates)
     markers = _plateau_markers(model, law, critical_reduced_stress)
-    sig_jam = model.jamming_stress()
+    sig_jam = float(model.jamming_stress())
     if not np.isfinite(model.g_hs) and not model.thickening or sig_jam == 0.0:
         warn(f"phi = {phi:.3g} is at or above the packing limit {phi_hs:.3g}: no flow "
              "is predicted at any shear rate.")
@@ -699,90 +957,35 @@ def flow_curve(shear_rate_1_per_s, phi, *, liquid_law_name="newtonian", liquid_p
         return FlowCurve(rates, inf, inf, inf, eta_l, np.full(rates.shape, "jammed"),
                          markers, tuple(messages))
 
-    # Stress grid wide enough to hold every requested rate (g is bounded by its plateaus).
-    g_vals = [float(model.g_hs)] + ([float(model.g0)] if model.brownian else []) + \
-        ([float(model.g_mu)] if model.thickening else [])
-    g_lo, g_hi = min(g_vals), max(g_vals)
-    sig_lo = float(model.stress(rates.min(), g_lo)) / 4.0
-    sig_hi = float(model.stress(rates.max(), g_hi)) * 4.0 if np.isfinite(g_hi) else np.inf
-    sig_hi = min(sig_hi, sig_jam)
-    if not np.isfinite(sig_hi):     # g unbounded without a jamming stress: cannot happen
-        sig_hi = sig_lo * 1e12       # with the checks above; kept as a guard
-    sig_lo = max(sig_lo, 1e-300)
-    if np.isfinite(sig_jam) and sig_lo >= sig_jam:
-        sig_lo = sig_jam * 1e-6
-    for scale in (model.stress_scale, model.star):   # show the features near the range too
-        if scale is not None and np.isfinite(scale) and scale > 0:
-            sig_lo = min(sig_lo, max(scale * 1e-3, sig_lo * 1e-3))
-    decades = max(np.log10(sig_hi / sig_lo), 1.0) if np.isfinite(sig_hi) else 1.0
-    n = int(np.clip(points_per_decade * decades, 200, 20000))
-    if np.isfinite(sig_jam):
-        grid = np.logspace(np.log10(sig_lo), np.log10(sig_jam), n, endpoint=False)
-        grid = np.union1d(grid, sig_jam * (1.0 - np.logspace(-1, -13, 200)))
-        grid = grid[grid > sig_lo * 0.999]
-    else:
-        grid = np.logspace(np.log10(sig_lo), np.log10(sig_hi), n)
-    g_grid = model.g(grid)
-    rate_grid = model.rate(grid, g_grid)
-    envelope = np.maximum.accumulate(rate_grid)
-
-    # Bracket every requested rate on the rising envelope, then refine by bisection.
-    k = np.searchsorted(envelope, rates, side="left")
-    reach = k < grid.size
-    kk = np.clip(k, 1, grid.size - 1)
-    sigma = np.full(rates.shape, np.inf)
-    sigma[reach] = np.exp(_refine(model, rates[reach], np.log(grid[kk - 1][reach]),
-                                  np.log(grid[kk][reach])))
-    viscosity = np.where(reach, sigma / rates, np.inf)
-
-    # Markers that need the grid: yield stress, S-shape, jamming, onsets.
-    flowing = np.flatnonzero(rate_grid > 0)
-    if law.yield_stress_Pa > 0 and flowing.size:
-        markers["apparent_yield_stress_Pa"] = _yield_stress(model, grid, flowing[0])
-    else:
-        markers["apparent_yield_stress_Pa"] = 0.0
-    falls = np.flatnonzero((rate_grid[1:] < rate_grid[:-1] * (1 - 1e-9)) & (rate_grid[:-1] > 0))
-    dst = np.zeros(rates.shape, bool)
-    if falls.size:
-        top = envelope[falls[0]]
-        recovers = envelope[-1] > top * (1 + 1e-9)
-        if recovers:
-            bottom = float(rate_grid[falls[0]:np.flatnonzero(envelope > top)[0]].min())
-            markers["dst_low_1_per_s"], markers["dst_high_1_per_s"] = bottom, float(top)
-            dst = (rates >= bottom) & (rates <= top)
-            messages.append(f"Discontinuous shear thickening between {bottom:.3g} and "
-                            f"{top:.3g} 1/s: the stress jumps from "
-                            f"{grid[falls[0]]:.3g} Pa to a higher branch.")
-        else:
-            markers["shear_jamming_1_per_s"] = float(top)
-            messages.append(f"Shear jamming: above {top:.3g} 1/s (stress "
-                            f"{grid[falls[0]]:.3g} Pa) the suspension cannot flow steadily "
-                            f"(phi = {phi:.3g} >= frictional packing limit "
-                            f"{model.phi_mu:.3g}).")
-    if np.any(~reach) and "shear_jamming_1_per_s" not in markers:
-        markers["shear_jamming_1_per_s"] = float(envelope[-1])
-    _onset_markers(model, markers, grid, sig_jam)
-
-    # Regime labels from the local slope of the grid segment of each point.
-    with np.errstate(divide="ignore", invalid="ignore"):
-        seg = np.log(grid[kk] / grid[kk - 1]) / np.log(rate_grid[kk] / rate_grid[kk - 1]) - 1
-    slope = np.where(np.isfinite(seg), seg, -1.0)
-    regime = np.where(slope < -PLATEAU_SLOPE, "thinning",
-                      np.where(slope > PLATEAU_SLOPE, "thickening", "plateau")).astype(object)
-    ys = markers["apparent_yield_stress_Pa"]
-    regime[(ys > 0) & (sigma < 2.0 * ys)] = "yield"
-    regime[dst] = "discontinuous-thickening"
-    regime[~reach] = "jammed"
+    solved = _solve(model.rows(), rates, points_per_decade)
+    sigma = solved.sigma[0]
+    viscosity = sigma / rates
+    markers["apparent_yield_stress_Pa"] = float(solved.apparent_yield_stress_Pa[0])
+    low, high = float(solved.dst_low_1_per_s[0]), float(solved.dst_high_1_per_s[0])
+    jam_rate, fall = float(solved.shear_jamming_1_per_s[0]), float(solved.fall_stress_Pa[0])
+    if np.isfinite(high):
+        markers["dst_low_1_per_s"], markers["dst_high_1_per_s"] = low, high
+        messages.append(f"Discontinuous shear thickening between {low:.3g} and "
+                        f"{high:.3g} 1/s: the stress jumps from {fall:.3g} Pa to a higher "
+                        "branch.")
+    if np.isfinite(jam_rate):
+        markers["shear_jamming_1_per_s"] = jam_rate
+        messages.append(f"Shear jamming: above {jam_rate:.3g} 1/s (stress "
+                        f"{fall:.3g} Pa) the suspension cannot flow steadily "
+                        f"(phi = {phi:.3g} >= frictional packing limit "
+                        f"{float(model.phi_mu):.3g}).")
+    sig_lo, sig_hi = (float(x) for x in _grid_bounds(model, rates, sig_jam))
+    _onset_markers(model, markers, sig_lo, sig_hi, sig_jam)
     relative = viscosity / eta_l
-    return FlowCurve(rates, sigma, viscosity, relative, eta_l, regime.astype(str), markers,
-                     tuple(messages))
+    return FlowCurve(rates, sigma, viscosity, relative, eta_l, solved.regime[0].astype(str),
+                     markers, tuple(messages))
 
 
 def _plateau_markers(model, law, critical_reduced_stress):
     eta_rest = float(np.asarray(law.viscosity(0.0)))
-    newtonian = law.name == "newtonian"
-    g0 = float(model.g0) * model.medium if model.brownian else np.nan
-    g_hs = float(model.g_hs) * model.medium
+    newtonian = law.name == "newtonian" and not np.any(law.extra > 0)
+    g0 = float(model.g0) * float(model.medium) if model.brownian else np.nan
+    g_hs = float(model.g_hs) * float(model.medium)
     return {
         "zero_shear_relative_viscosity": g0,
         "high_shear_relative_viscosity": g_hs,
@@ -794,34 +997,16 @@ def _plateau_markers(model, law, critical_reduced_stress):
         "dst_high_1_per_s": np.nan,
         "shear_jamming_1_per_s": np.nan,
         "apparent_yield_stress_Pa": 0.0,
-        "brownian_stress_Pa": (model.stress_scale / critical_reduced_stress
+        "brownian_stress_Pa": (float(model.stress_scale) / critical_reduced_stress
                                if model.brownian else np.nan),
     }
 
 
-def _yield_stress(model, grid, first_flowing):
-    """Stress where the rate leaves zero: sigma = sqrt((1 - phi) g(sigma)) m tau_y."""
-    ty = model.law.yield_stress_Pa * model.medium
-
-    def excess(s):
-        return s - np.sqrt((1.0 - model.phi) * model.g(s)) * ty
-
-    lo = np.log(grid[first_flowing - 1]) if first_flowing > 0 else np.log(grid[0]) - 30
-    hi = np.log(grid[first_flowing])
-    for _ in range(60):
-        mid = 0.5 * (lo + hi)
-        if excess(np.exp(mid)) < 0:
-            lo = mid
-        else:
-            hi = mid
-    return float(np.exp(0.5 * (lo + hi)))
-
-
-def _onset_markers(model, markers, grid, sig_jam):
+def _onset_markers(model, markers, sig_lo, sig_hi, sig_jam):
     """Thinning and thickening onsets: g 10 % below g_0, 10 % above its minimum."""
-    top = sig_jam * (1 - 1e-12) if np.isfinite(sig_jam) else grid[-1]
-    scales = [s for s in (model.stress_scale, model.star) if s is not None and np.isfinite(s)]
-    low = min([grid[0]] + [s * 1e-4 for s in scales])
+    top = sig_jam * (1 - 1e-12) if np.isfinite(sig_jam) else sig_hi
+    scales = [float(s) for s in (model.stress_scale, model.star) if np.isfinite(s)]
+    low = min([sig_lo] + [s * 1e-4 for s in scales])
     high = max([top] + [s * 1e4 for s in scales if s * 1e4 < sig_jam])
     aux = np.logspace(np.log10(low), np.log10(high), 2000)
     g_aux = model.g(aux)
@@ -850,6 +1035,115 @@ def _onset_markers(model, markers, grid, sig_jam):
                             (1 + ONSET_CHANGE) * float(g_aux[i_min]), True)
         if np.isfinite(s):
             markers["thickening_onset_1_per_s"] = rate_at(s)
+
+
+@dataclass(frozen=True)
+class FlowCurves:
+    """Flow curves of n suspensions at the same M shear rates (arrays (n, M) and (n,))."""
+
+    shear_rate_1_per_s: np.ndarray
+    shear_stress_Pa: np.ndarray
+    viscosity_Pa_s: np.ndarray
+    liquid_viscosity_Pa_s: np.ndarray
+    regime: np.ndarray
+    apparent_yield_stress_Pa: np.ndarray
+    dst_low_1_per_s: np.ndarray
+    dst_high_1_per_s: np.ndarray
+    shear_jamming_1_per_s: np.ndarray
+
+
+@guarded
+def flow_curves(shear_rate_1_per_s, phi, *, liquid_law_name="newtonian", liquid_params=None,
+                medium_factor=1.0, relation="krieger-dougherty", relation_params=None,
+                phi_max_zero_shear=np.nan, phi_max_high_shear=0.64, phi_max_frictional=np.nan,
+                onset_stress_Pa=np.nan, radius_m=np.nan, temperature_K=298.15,
+                yield_stress_Pa=0.0, critical_reduced_stress=CRITICAL_REDUCED_STRESS,
+                points_per_decade=60):
+    r"""`flow_curve` of n suspensions at once: one row per suspension, the same shear rates.
+
+    The same model and the same solve as `flow_curve` (which is this function for one row
+    plus its markers and messages), vectorised over rows: every per-suspension argument is
+    a float or an array of shape (n,). ``nan`` switches a mechanism off in a row (no
+    zero-shear limit or radius: no Brownian thinning; no onset stress: no thickening).
+    Rows share one liquid law and one relation (group rows by them). The Brownian term is
+    left out where the radius exceeds `BROWNIAN_RADIUS_LIMIT_m` or phi reaches the
+    zero-shear limit, as in `flow_curve`; no warnings are raised here.
+
+    Parameters
+    ----------
+    shear_rate_1_per_s : float or array_like
+        Shear rates (M,), > 0. [1/s]
+    phi : float or array_like
+        Effective volume fraction of the particles, per row, in [0, 1). [-]
+    liquid_law_name : str, optional
+        Registry name of the liquid law shared by the rows.
+    liquid_params : dict, optional
+        The law's parameters, floats or arrays (n,). SI.
+    medium_factor : float or array_like, optional
+        Relative viscosity of the medium over the bare liquid (droplets). [-]
+    relation : str, optional
+        Registry name of the suspension relation shared by the rows.
+    relation_params : dict, optional
+        The relation's other parameters, floats or arrays (n,).
+    phi_max_zero_shear, phi_max_high_shear, phi_max_frictional : float or array_like
+        Packing limits as in `flow_curve`; ``nan``: not given. [-]
+    onset_stress_Pa : float or array_like, optional
+        Onset stress of frictional thickening; ``nan``: none. [Pa]
+    radius_m : float or array_like, optional
+        Brownian radius; ``nan``: none. [m]
+    temperature_K : float or array_like, optional
+        Temperature. [K]
+    yield_stress_Pa : float or array_like, optional
+        Yield stress added to the liquid law's own (see `flow_curve`). [Pa]
+    critical_reduced_stress : float, optional
+        As in `flow_curve`. [-]
+    points_per_decade : int, optional
+        As in `flow_curve`.
+
+    Returns
+    -------
+    FlowCurves
+        shear_stress_Pa, viscosity_Pa_s (``inf`` where jammed), liquid_viscosity_Pa_s and
+        regime, each (n, M); apparent_yield_stress_Pa, dst_low_1_per_s, dst_high_1_per_s,
+        shear_jamming_1_per_s, each (n,).
+
+    Examples
+    --------
+    Two suspensions in a Newtonian liquid, Krieger-Dougherty at 0.3 and 0.5 with phi_max
+    0.64, no Brownian or frictional physics: 0.01 (1 - phi/0.64)**-1.6 Pa*s at every rate:
+
+    >>> fc = flow_curves([1.0, 10.0], [0.3, 0.5], liquid_params={"viscosity_Pa_s": 0.01})
+    >>> np.round(fc.viscosity_Pa_s, 4).tolist()
+    [[0.0275, 0.0275], [0.1138, 0.1138]]
+    """
+    rates = np.atleast_1d(as_array(shear_rate_1_per_s, "shear_rate_1_per_s")).astype(float)
+    if rates.ndim != 1 or np.any(rates <= 0):
+        raise InputRangeError("shear_rate_1_per_s", rates.ravel()[0] if rates.size else rates,
+                              "a one-dimensional array of rates > 0")
+    phi = np.atleast_1d(in_range(phi, "phi", 0.0, 1.0, high_open=True)).astype(float)
+    n = phi.size
+
+    def column(value):
+        return np.broadcast_to(np.asarray(value, dtype=float), (n,)).reshape(n, 1)
+
+    params = {k: column(v) for k, v in (liquid_params or {}).items()}
+    law = _Liquid(liquid_law(liquid_law_name, **params),
+                  column(in_range(yield_stress_Pa, "yield_stress_Pa", 0.0, 1e7)))
+    model = _Model(column(phi), law, column(positive(medium_factor, "medium_factor")),
+                   relation, {k: column(v) for k, v in (relation_params or {}).items()},
+                   column(phi_max_zero_shear), column(phi_max_high_shear),
+                   column(phi_max_frictional), column(onset_stress_Pa), column(radius_m),
+                   column(positive(temperature_K, "temperature_K")),
+                   float(positive(critical_reduced_stress, "critical_reduced_stress")))
+    model.brownian = model.brownian & (model.radius <= BROWNIAN_RADIUS_LIMIT_m) \
+        & np.isfinite(model.g0)
+    solved = _solve(model, rates, float(points_per_decade))
+    with np.errstate(invalid="ignore"):
+        eta_l = np.broadcast_to(np.asarray(law.viscosity(rates), dtype=float), (n, rates.size))
+    return FlowCurves(rates, solved.sigma, solved.sigma / rates, eta_l,
+                      solved.regime.astype(str), solved.apparent_yield_stress_Pa,
+                      solved.dst_low_1_per_s, solved.dst_high_1_per_s,
+                      solved.shear_jamming_1_per_s)
 
 
 # --- Newtonian liquid without thickening: the flow curve in closed form ---------------------

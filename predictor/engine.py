@@ -1,0 +1,395 @@
+"""The one formulation engine: N formulations x M shear rates in one vectorised solve.
+
+Every question asked of many formulations (a batch screen, a loading sweep, the highest
+loading under a limit, a design map, uncertainty bands, blends) and of one (`predict`)
+runs through this module: a `FormulationSet` holds the resolved inputs of N formulations
+as arrays (struct of arrays, one element per row), and `evaluate` solves the flow curve of
+every row at M shear rates at once with `shear.flow_curves`, the same model and solve as
+`shear.flow_curve`. `predict` is N = 1.
+
+How a formulation becomes a row is `formulation.mixture` (volume fractions, packing limit,
+intrinsic viscosity) and the choices documented in `formulation.predict`; nothing is
+computed twice in two ways.
+
+>>> from predictor import engine
+>>> from predictor.formulation import Formulation, Ingredient
+>>> f = Formulation(ingredients=(Ingredient("silica", 2200.0, 0.3, diameter_m=5e-6),))
+>>> fs = engine.vary(f, loadings={0: [0.2, 0.4]}, basis="mass")
+>>> res = engine.evaluate(fs, shear_rate_1_per_s=[100.0, 1000.0])
+>>> res.viscosity_Pa_s.shape, res.regime.shape, res.phi.shape
+((2, 2), (2, 2), (2,))
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import warnings
+from collections.abc import Iterable, Mapping, Sequence
+from dataclasses import dataclass
+
+import numpy as np
+
+from . import formulation as fm
+from . import liquids, shear
+from .errors import InputRangeError, ValidityWarning
+from .registry import get_model
+
+#: Bisection tolerance of `max_loading` on the effective solid volume fraction. [-]
+LOADING_TOLERANCE = 1e-9
+
+
+@dataclass(frozen=True)
+class FormulationSet:
+    """N formulations as arrays, one element per row (build with `stack` or `vary`).
+
+    Text fields (`liquid_law`, `relation`, `droplet_model`) are arrays of str; parameter
+    dicts map a parameter name to an array (N,), ``nan`` in rows where it does not apply.
+    ``nan`` in `onset_stress_Pa`, `phi_max_frictional` or `radius_m` switches thickening or
+    Brownian thinning off in that row. `yield_stress_Pa` is added to the liquid law's own
+    yield stress (e.g. from flocculated solids); 0 by default.
+    """
+
+    phi: np.ndarray                   # effective solid volume fraction (with layers) [-]
+    phi_solids: np.ndarray            # bare solid volume fraction [-]
+    swelling: np.ndarray              # effective over bare solid volume [-]
+    phi_droplets: np.ndarray          # droplet volume fraction [-]
+    phi_max: np.ndarray               # high-shear packing limit of the solids [-]
+    phi_max_frictional: np.ndarray    # frictional packing limit, nan: no thickening [-]
+    onset_stress_Pa: np.ndarray       # onset of frictional thickening, nan: none [Pa]
+    radius_m: np.ndarray              # Brownian (Sauter) radius of the solids, nan: none [m]
+    temperature_K: np.ndarray
+    yield_stress_Pa: np.ndarray       # added to the liquid law's yield stress [Pa]
+    has_solids: np.ndarray            # bool: some solid ingredient to scale
+    liquid_law: np.ndarray
+    liquid_params: dict
+    relation: np.ndarray
+    relation_params: dict
+    droplet_model: np.ndarray
+    droplet_params: dict
+
+    def __len__(self) -> int:
+        return int(self.phi.size)
+
+    def take(self, rows) -> FormulationSet:
+        """The set of the selected rows (boolean mask or indices)."""
+        changes = {}
+        for f in dataclasses.fields(self):
+            value = getattr(self, f.name)
+            changes[f.name] = ({k: v[rows] for k, v in value.items()}
+                               if isinstance(value, dict) else value[rows])
+        return FormulationSet(**changes)
+
+    def at_loading(self, phi) -> FormulationSet:
+        """The set with each row's solids scaled, along their shares, to effective `phi`.
+
+        Droplets keep their volume fraction; the packing limit is unchanged (the shares
+        are), as in `formulation.max_loading`.
+        """
+        phi = np.broadcast_to(np.asarray(phi, dtype=float), self.phi.shape).copy()
+        return dataclasses.replace(self, phi=phi, phi_solids=phi / self.swelling)
+
+
+@dataclass(frozen=True)
+class Result:
+    """`evaluate`'s answer: arrays (N, M) over rows and rates, and (N,) per row."""
+
+    shear_rate_1_per_s: np.ndarray    # (M,)
+    viscosity_Pa_s: np.ndarray        # (N, M), inf where jammed
+    shear_stress_Pa: np.ndarray       # (N, M)
+    relative_viscosity: np.ndarray    # (N, M), over the liquid at the same rate
+    liquid_viscosity_Pa_s: np.ndarray  # (N, M)
+    regime: np.ndarray                # (N, M) str, one of shear.REGIMES
+    phi: np.ndarray                   # (N,) effective solids volume fraction
+    phi_max: np.ndarray               # (N,) packing limit of each row
+    apparent_yield_stress_Pa: np.ndarray  # (N,)
+    dst_low_1_per_s: np.ndarray       # (N,) discontinuous thickening range, nan if none
+    dst_high_1_per_s: np.ndarray
+    shear_jamming_1_per_s: np.ndarray  # (N,) rate above which the row jams, nan if none
+
+    @property
+    def headroom(self) -> np.ndarray:
+        """phi / phi_max of each row (1 = jammed)."""
+        return np.where(self.phi_max > 0, self.phi / np.where(self.phi_max > 0,
+                                                              self.phi_max, 1.0), 0.0)
+
+
+def row_inputs(formulation: fm.Formulation, mix: fm.Mixture | None = None) -> dict:
+    """The resolved inputs of one formulation, one row of a `FormulationSet`.
+
+    `mix` (default `formulation.mixture`) may be a mixture scaled in place. See
+    `formulation.predict` for the choices made.
+    """
+    mix = mix or fm.mixture(formulation)
+    law, params = fm.liquid_law_of(formulation.liquid)
+    spec = get_model(formulation.model, kind="suspension")
+    rel = spec.check_params(fm._relation_params(spec, mix, formulation.model_params))
+    phi_max = float(rel.pop("phi_max", mix.phi_max))
+    droplet_model, droplet_params = fm.droplet_relation(formulation, mix)
+    onset = formulation.thickening_onset_stress_Pa
+    frictional = formulation.phi_max_frictional
+    if onset is not None and frictional is None:
+        frictional = fm.FRICTIONAL_RATIO * phi_max
+    radius = fm._solid_radius_m(formulation, mix)
+    if mix.phi_solids_effective > 0:
+        swelling = mix.phi_solids_effective / mix.phi_solids
+    else:
+        swelling = float(np.mean(mix.swelling[mix.is_solid])) if mix.is_solid.any() else 1.0
+    return {
+        "phi": mix.phi_solids_effective, "phi_solids": mix.phi_solids, "swelling": swelling,
+        "phi_droplets": mix.phi_droplets, "phi_max": phi_max,
+        "phi_max_frictional": np.nan if onset is None else float(frictional),
+        "onset_stress_Pa": np.nan if onset is None else float(onset),
+        "radius_m": np.nan if radius is None else radius,
+        "temperature_K": formulation.liquid.temperature_K, "yield_stress_Pa": 0.0,
+        "has_solids": bool(mix.is_solid.any()),
+        "liquid_law": law, "liquid_params": params, "relation": spec.name,
+        "relation_params": rel, "droplet_model": droplet_model,
+        "droplet_params": droplet_params,
+    }
+
+
+def stack(formulations: Iterable[fm.Formulation]) -> FormulationSet:
+    """A `FormulationSet` of the given formulations, one row each, in order.
+
+    Raises
+    ------
+    InputRangeError
+        An empty list, or a formulation whose inputs are out of range (names the field).
+    """
+    rows = [row_inputs(f) for f in formulations]
+    if not rows:
+        raise InputRangeError("formulations", "an empty list", "at least one formulation")
+    return from_rows(rows)
+
+
+def from_rows(rows: Sequence[Mapping]) -> FormulationSet:
+    """A `FormulationSet` from row dicts with the fields of `FormulationSet`.
+
+    Scalars broadcast; parameter dicts are merged by name (``nan`` where a row lacks one).
+    """
+    out = {}
+    for f in dataclasses.fields(FormulationSet):
+        values = [r[f.name] for r in rows]
+        if f.name.endswith("_params"):
+            names = sorted({k for v in values for k in v})
+            out[f.name] = {k: np.array([float(v.get(k, np.nan)) for v in values])
+                           for k in names}
+        elif f.name in ("liquid_law", "relation", "droplet_model"):
+            out[f.name] = np.array(values, dtype=object)
+        elif f.name == "has_solids":
+            out[f.name] = np.array(values, dtype=bool)
+        else:
+            out[f.name] = np.array(values, dtype=float)
+    return FormulationSet(**out)
+
+
+def vary(formulation: fm.Formulation, loadings: Mapping[int, object],
+         basis: str = "mass") -> FormulationSet:
+    """N variants of one formulation: ingredient k's loading set per row, the rest held.
+
+    Parameters
+    ----------
+    formulation : Formulation
+        The scenario; every field not varied is taken from it.
+    loadings : dict of int to array_like
+        Ingredient index (0-based) -> loadings (N,) as fractions (0-1) on `basis`. All
+        arrays broadcast to one length N.
+    basis : {"mass", "volume"}
+        Basis of the given loadings.
+
+    Returns
+    -------
+    FormulationSet
+        N rows; packing limits, volume fractions and radii resolved per row.
+
+    Raises
+    ------
+    InputRangeError
+        An unknown ingredient index, a bad basis, or loadings outside 0-1 (names the row).
+    """
+    if basis not in ("mass", "volume"):
+        raise InputRangeError("basis", basis, "'mass' or 'volume'")
+    ings = formulation.ingredients
+    arrays = {}
+    for k, values in loadings.items():
+        if isinstance(k, bool) or not isinstance(k, int | np.integer) or not 0 <= k < len(ings):
+            raise InputRangeError("loadings", k, f"an ingredient index from 0 to {len(ings) - 1}")
+        arrays[int(k)] = np.atleast_1d(np.asarray(values, dtype=float))
+    if not arrays:
+        return stack([formulation])
+    try:
+        columns = np.broadcast_arrays(*arrays.values())
+    except ValueError:
+        raise InputRangeError("loadings", {k: v.shape for k, v in arrays.items()},
+                              "arrays of one length") from None
+    table = dict(zip(arrays, columns, strict=True))
+    n = columns[0].size
+    rows = []
+    for i in range(n):
+        new = list(ings)
+        for k, col in table.items():
+            new[k] = dataclasses.replace(ings[k], loading=float(col[i]), basis=basis)
+        try:
+            rows.append(row_inputs(dataclasses.replace(formulation, ingredients=tuple(new))))
+        except InputRangeError as err:
+            raise InputRangeError(f"row {i}: {err.field}", err.value, err.allowed) from None
+    return from_rows(rows)
+
+
+def _rates(shear_rate_1_per_s) -> np.ndarray:
+    rates = np.atleast_1d(np.asarray(shear_rate_1_per_s, dtype=float)).ravel()
+    bad = ~(np.isfinite(rates) & (rates > 0))
+    if rates.size == 0 or np.any(bad):
+        raise InputRangeError("shear_rate_1_per_s", rates[bad][0] if bad.any() else "none",
+                              "positive, finite shear rates")
+    return rates
+
+
+def _groups(*labels: np.ndarray):
+    """Row indices of each distinct combination of the label arrays."""
+    keys = np.array(["\x00".join(map(str, t)) for t in zip(*labels, strict=True)])
+    for key in np.unique(keys):
+        yield np.flatnonzero(keys == key)
+
+
+def _params(params: dict, rows: np.ndarray, spec) -> dict:
+    """The parameters of `spec` for rows, from the merged parameter dict."""
+    return {k: params[k][rows] for k in spec.param_names() if k in params}
+
+
+def medium_factor(fs: FormulationSet) -> np.ndarray:
+    """Relative viscosity of each row's droplets in the liquid (1 without droplets)."""
+    out = np.ones(len(fs))
+    has = fs.phi_droplets > 0
+    for rows in _groups(fs.droplet_model[has]):
+        sel = np.flatnonzero(has)[rows]
+        spec = get_model(fs.droplet_model[sel[0]], kind="emulsion")
+        out[sel] = fm.droplet_medium(spec.name, _params(fs.droplet_params, sel, spec),
+                                     fs.phi_droplets[sel], fs.phi_solids[sel])
+    return out
+
+
+def evaluate(fs: FormulationSet, shear_rate_1_per_s) -> Result:
+    """Flow curves of every row of `fs` at the shear rates (M,), shared by all rows.
+
+    Rows are grouped by liquid law and relation; each group is one call of
+    `shear.flow_curves` (the solve of `shear.flow_curve`, vectorised over rows). A row whose
+    solids are at or above the packing limit, or whose dispersed phases are jammed, gets
+    ``inf`` viscosity and the regime "jammed" at every rate.
+
+    Parameters
+    ----------
+    fs : FormulationSet
+    shear_rate_1_per_s : float or array_like
+        Shear rates (M,), > 0. [1/s]
+
+    Returns
+    -------
+    Result
+    """
+    rates = _rates(shear_rate_1_per_s)
+    n, m = len(fs), rates.size
+    medium = medium_factor(fs)
+    full = np.full((n, m), np.inf)
+    out = {"sigma": full.copy(), "eta": full.copy(), "eta_l": np.full((n, m), np.nan),
+           "regime": np.full((n, m), "jammed", dtype=object), "ys": np.zeros(n),
+           "low": np.full(n, np.nan), "high": np.full(n, np.nan), "jam": np.zeros(n)}
+    alive = (fs.phi < 1.0) & np.isfinite(medium)
+    idx = np.flatnonzero(alive)
+    for rows in _groups(fs.liquid_law[alive], fs.relation[alive]):
+        sel = idx[rows]
+        law = get_model(fs.liquid_law[sel[0]], kind="liquid")
+        rel = get_model(fs.relation[sel[0]], kind="suspension")
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore", ValidityWarning)
+            fc = shear.flow_curves(
+                rates, fs.phi[sel], liquid_law_name=law.name,
+                liquid_params=_params(fs.liquid_params, sel, law),
+                medium_factor=medium[sel], relation=rel.name,
+                relation_params=_params(fs.relation_params, sel, rel),
+                phi_max_zero_shear=fm.ZERO_SHEAR_RATIO * fs.phi_max[sel],
+                phi_max_high_shear=fs.phi_max[sel],
+                phi_max_frictional=fs.phi_max_frictional[sel],
+                onset_stress_Pa=fs.onset_stress_Pa[sel], radius_m=fs.radius_m[sel],
+                temperature_K=fs.temperature_K[sel], yield_stress_Pa=fs.yield_stress_Pa[sel])
+        out["sigma"][sel], out["eta"][sel] = fc.shear_stress_Pa, fc.viscosity_Pa_s
+        out["eta_l"][sel], out["regime"][sel] = fc.liquid_viscosity_Pa_s, fc.regime
+        out["ys"][sel], out["low"][sel] = fc.apparent_yield_stress_Pa, fc.dst_low_1_per_s
+        out["high"][sel], out["jam"][sel] = fc.dst_high_1_per_s, fc.shear_jamming_1_per_s
+    dead = np.flatnonzero(~alive)
+    for rows in _groups(fs.liquid_law[dead]):     # the liquid's own curve beside a jam
+        sel = dead[rows]
+        spec = get_model(fs.liquid_law[sel[0]], kind="liquid")
+        params = {k: v[:, None] for k, v in _params(fs.liquid_params, sel, spec).items()}
+        out["eta_l"][sel] = liquids.liquid_law(spec.name, **params).viscosity(rates)
+    with np.errstate(invalid="ignore"):
+        relative = out["eta"] / out["eta_l"]
+    return Result(rates, out["eta"], out["sigma"], relative, out["eta_l"],
+                  out["regime"].astype(str), fs.phi.copy(), fs.phi_max.copy(), out["ys"],
+                  out["low"], out["high"], out["jam"])
+
+
+def max_loading(fs: FormulationSet, viscosity_limit_Pa_s, shear_rate_1_per_s=1.0,
+                tolerance: float = LOADING_TOLERANCE):
+    """Highest effective solid fraction of each row whose viscosity stays under a limit.
+
+    The one solver of the question "how much can I load": each row's solids are scaled
+    along their shares (droplets stay, `FormulationSet.at_loading`), and the viscosity at
+    the shear rate comes from `evaluate`, so thinning, thickening and non-Newtonian
+    liquids count. A bisection vectorised over rows narrows [0, phi_max] to `tolerance`.
+
+    Parameters
+    ----------
+    fs : FormulationSet
+    viscosity_limit_Pa_s : float or array_like
+        Highest acceptable viscosity, per row or shared. [Pa*s]
+    shear_rate_1_per_s : float or array_like
+        Shear rate at which the limit applies, per row or shared. [1/s]
+    tolerance : float
+        Width of the final bracket in phi. [-]
+
+    Returns
+    -------
+    phi : numpy.ndarray
+        (N,) effective solid volume fraction; 0 where the liquid alone exceeds the limit.
+    limited_by : numpy.ndarray
+        (N,) str: "viscosity" (the limit is reached), "liquid" (the liquid with its
+        droplets already exceeds it) or "packing" (the limit is not reached below phi_max).
+
+    Raises
+    ------
+    InputRangeError
+        A limit or shear rate not positive and finite; a row without solid to scale.
+    """
+    n = len(fs)
+    limit = np.broadcast_to(np.asarray(viscosity_limit_Pa_s, dtype=float), (n,))
+    if not np.all(np.isfinite(limit) & (limit > 0)):
+        raise InputRangeError("viscosity_limit_Pa_s", limit[~(np.isfinite(limit) & (limit > 0))]
+                              [0], "a positive, finite viscosity")
+    rate = np.broadcast_to(np.asarray(shear_rate_1_per_s, dtype=float), (n,))
+    if not np.all(np.isfinite(rate) & (rate > 0)):
+        raise InputRangeError("shear_rate_1_per_s", rate[~(np.isfinite(rate) & (rate > 0))][0],
+                              "a positive, finite shear rate")
+    if not np.all(fs.has_solids):
+        raise InputRangeError("ingredients", "no solid",
+                              "at least one solid ingredient to scale (for droplets, use the "
+                              "phase-ratio questions in predictor.phase_ratio)")
+    rates, which = np.unique(rate, return_inverse=True)
+
+    def too_thick(phi):
+        res = evaluate(fs.at_loading(phi), rates)
+        eta = res.viscosity_Pa_s[np.arange(n), which]
+        return ~(eta < limit)           # nan or inf count as too thick
+
+    low, high = np.zeros(n), fs.phi_max.astype(float).copy()
+    thick0 = too_thick(low)
+    top = too_thick(high * (1.0 - 1e-9))
+    for _ in range(200):
+        if not np.any(high - low > tolerance):
+            break
+        mid = 0.5 * (low + high)
+        over = too_thick(mid)
+        low, high = np.where(over, low, mid), np.where(over, mid, high)
+    phi = np.where(thick0, 0.0, low)
+    reason = np.where(thick0, "liquid", np.where(top, "viscosity", "packing")).astype(str)
+    return phi, reason

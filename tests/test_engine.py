@@ -1,0 +1,123 @@
+"""The one engine: N formulations x M shear rates, checked row by row against `predict`.
+
+Each row of `engine.evaluate` must equal `formulation.predict` of the same formulation
+(relative 1e-9 where the solve converges), over sets that mix every liquid law, frictional
+thickening, Brownian thinning and droplets. The single-formulation values are themselves
+checked against published closed forms in tests/test_shear.py (Chateau, Ovarlez & Trung,
+J. Rheol. 52, 2008, Herschel-Bulkley liquid; Wyart & Cates, PRL 112, 2014, S-shape).
+"""
+
+from __future__ import annotations
+
+import dataclasses
+import warnings
+
+import numpy as np
+import pytest
+
+from predictor import engine
+from predictor import formulation as fm
+from predictor.errors import InputRangeError, ValidityWarning
+
+RATES = np.logspace(-2, 4, 9)
+
+LIQUIDS = [
+    fm.Liquid(),                                             # water preset
+    fm.Liquid(preset="glycerol-water", glycerol_mass_fraction=0.6, density_kg_per_m3=1150.0),
+    fm.Liquid(preset="", law="newtonian", params={"viscosity_Pa_s": 0.05},
+              activation_temperature_K=3000.0, temperature_K=310.0),
+    fm.Liquid(preset="", law="power-law", params={"consistency_Pa_s": 0.5, "flow_index": 0.6}),
+    fm.Liquid(preset="", law="carreau-yasuda",
+              params={"zero_shear_viscosity_Pa_s": 2.0, "infinite_shear_viscosity_Pa_s": 0.01,
+                      "time_constant_s": 0.5, "flow_index": 0.4, "yasuda_exponent": 2.0},
+              activation_temperature_K=2500.0, temperature_K=290.0),
+    fm.Liquid(preset="", law="cross",
+              params={"zero_shear_viscosity_Pa_s": 1.0, "infinite_shear_viscosity_Pa_s": 0.005,
+                      "time_constant_s": 0.1, "cross_exponent": 0.8}),
+    fm.Liquid(preset="", law="bingham",
+              params={"yield_stress_Pa": 5.0, "plastic_viscosity_Pa_s": 0.05}),
+    fm.Liquid(preset="", law="herschel-bulkley",
+              params={"yield_stress_Pa": 8.0, "consistency_Pa_s": 0.8, "flow_index": 0.5}),
+    fm.Liquid(preset="", law="casson",
+              params={"yield_stress_Pa": 3.0, "casson_viscosity_Pa_s": 0.02}),
+]
+
+
+def _formulation(liquid, loading=0.35, thickening=False, droplets=False, small=False):
+    ings = [fm.Ingredient("filler", 2600.0, loading, diameter_m=0.2e-6 if small else 4e-6)]
+    if droplets:
+        ings.append(fm.Ingredient("oil", 900.0, 0.08, kind="droplet", diameter_m=2e-6,
+                                  droplet_viscosity_Pa_s=0.05,
+                                  interfacial_tension_N_per_m=0.005))
+    return fm.Formulation(liquid=liquid, ingredients=tuple(ings),
+                          thickening_onset_stress_Pa=50.0 if thickening else None)
+
+
+def _mixed_set():
+    forms = []
+    for k, liquid in enumerate(LIQUIDS):
+        forms.append(_formulation(liquid, 0.2 + 0.04 * k, small=k % 2 == 0))
+        forms.append(_formulation(liquid, 0.62, thickening=True))
+        forms.append(_formulation(liquid, 0.45, droplets=True, small=True))
+    return forms
+
+
+def test_each_row_equals_predict_over_every_liquid_law_thickening_and_droplets():
+    forms = _mixed_set()
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", ValidityWarning)
+        res = engine.evaluate(engine.stack(forms), RATES)
+        for i, f in enumerate(forms):
+            frame = fm.predict(f, RATES)
+            assert np.allclose(res.viscosity_Pa_s[i], frame["viscosity_Pa_s"], rtol=1e-9,
+                               atol=0), (i, f.liquid.law)
+            assert list(res.regime[i]) == list(frame["regime"]), i
+            assert res.phi[i] == pytest.approx(frame.attrs["phi"], rel=1e-12)
+            assert res.phi_max[i] == pytest.approx(frame.attrs["phi_max"], rel=1e-12)
+    assert {"thickening", "discontinuous-thickening", "jammed"} & set(res.regime.ravel())
+
+
+def test_vary_contract_shapes_basis_and_jammed_rows():
+    f = _formulation(LIQUIDS[4], droplets=True)
+    x = np.array([0.05, 0.3, 0.6, 0.9])
+    fs = engine.vary(f, loadings={0: x}, basis="mass")
+    res = engine.evaluate(fs, shear_rate_1_per_s=[100.0, 1000.0])
+    assert res.viscosity_Pa_s.shape == (4, 2) and res.regime.shape == (4, 2)
+    assert res.phi.shape == (4,) and res.phi_max.shape == (4,)
+    assert np.all(np.diff(res.phi) > 0)
+    jam = res.phi >= res.phi_max
+    assert jam[-1] and not jam[0]
+    assert np.all(np.isinf(res.viscosity_Pa_s[jam])) and np.all(res.regime[jam] == "jammed")
+    # Each row is the formulation with that loading (the droplets held at theirs).
+    for i in range(3):
+        one = dataclasses.replace(f, ingredients=(dataclasses.replace(
+            f.ingredients[0], loading=float(x[i]), basis="mass"), f.ingredients[1]))
+        assert np.allclose(res.viscosity_Pa_s[i], fm.predict(one, [100.0, 1000.0])
+                           ["viscosity_Pa_s"], rtol=1e-9)
+
+
+def test_vary_on_a_volume_basis_sets_volume_fractions():
+    f = _formulation(LIQUIDS[0])
+    fs = engine.vary(f, loadings={0: [0.1, 0.2]}, basis="volume")
+    assert np.allclose(fs.phi_solids, [0.1, 0.2], rtol=1e-12)
+
+
+@pytest.mark.parametrize("bad", [{3: [0.1]}, {0: [1.5]}, {0: [0.1, 0.2], 1: [0.1, 0.2, 0.3]}])
+def test_vary_names_bad_input(bad):
+    f = _formulation(LIQUIDS[0], droplets=True)
+    with pytest.raises(InputRangeError):
+        engine.vary(f, loadings=bad)
+
+
+def test_additive_yield_stress_acts_like_herschel_bulkley():
+    # A Newtonian liquid with an added yield stress tau_y is a Bingham liquid: the same
+    # engine row with law "bingham" must give the same flow curve (Bingham 1922 form).
+    water = fm.Liquid(preset="", law="newtonian", params={"viscosity_Pa_s": 0.1})
+    bingham = fm.Liquid(preset="", law="bingham",
+                        params={"yield_stress_Pa": 4.0, "plastic_viscosity_Pa_s": 0.1})
+    fs = engine.stack([_formulation(water), _formulation(bingham)])
+    fs = dataclasses.replace(fs, yield_stress_Pa=np.array([4.0, 0.0]))
+    res = engine.evaluate(fs, RATES)
+    assert np.allclose(res.viscosity_Pa_s[0], res.viscosity_Pa_s[1], rtol=1e-9)
+    assert res.apparent_yield_stress_Pa[0] == pytest.approx(res.apparent_yield_stress_Pa[1])
+    assert "yield" in set(res.regime[0])
