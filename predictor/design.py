@@ -28,9 +28,8 @@ from dataclasses import dataclass
 
 import numpy as np
 import pandas as pd
-from scipy import optimize
 
-from . import composition, packing, uncertainty
+from . import composition, engine, packing, uncertainty
 from . import formulation as fm
 from ._checks import in_range, positive, scalar_or_array
 from .errors import InputRangeError, ValidityWarning
@@ -372,21 +371,17 @@ class _Context:
 
 
 def _solve_loading(ctx: _Context, limit: float, rate: float) -> tuple[float, str]:
-    """Effective solid fraction where the viscosity at `rate` reaches `limit`."""
-    if ctx.viscosity(0.0, rate) >= limit:
-        return 0.0, "liquid"
-    top = ctx.upper * (1.0 - 1e-9)
-    eta_top = ctx.viscosity(top, rate)
-    if np.isfinite(eta_top) and eta_top < limit:
-        return top, "packing"
+    """Effective solid fraction where the viscosity at `rate` reaches `limit`.
 
-    def g(phi):
-        eta = ctx.viscosity(phi, rate)
-        return np.log(min(eta, 1e300)) - np.log(limit)
-
-    phi = float(optimize.brentq(g, 0.0, top, xtol=1e-10, rtol=1e-12))
-    ctx.viscosity(phi, rate, quiet=False)     # let the answer's own warnings through
-    return phi, "viscosity"
+    The one solver of `engine.max_loading` on this formulation's row, searched up to the
+    relation's own upper limit.
+    """
+    fs = engine.from_rows([engine.row_inputs(ctx.formulation, ctx.mix)])
+    phi, reason = engine.max_loading(fs, limit, rate, tolerance=1e-10,
+                                     upper=ctx.upper * (1.0 - 1e-9))
+    if reason[0] == "viscosity":
+        ctx.viscosity(float(phi[0]), rate, quiet=False)   # the answer's own warnings
+    return float(phi[0]), str(reason[0])
 
 
 def _param_samples(ctx: _Context, n, seed, fit, phi_max_sd, param_sd, packing_spread):

@@ -330,7 +330,7 @@ def evaluate(fs: FormulationSet, shear_rate_1_per_s) -> Result:
 
 
 def max_loading(fs: FormulationSet, viscosity_limit_Pa_s, shear_rate_1_per_s=1.0,
-                tolerance: float = LOADING_TOLERANCE):
+                tolerance: float = LOADING_TOLERANCE, upper=None):
     """Highest effective solid fraction of each row whose viscosity stays under a limit.
 
     The one solver of the question "how much can I load": each row's solids are scaled
@@ -347,11 +347,15 @@ def max_loading(fs: FormulationSet, viscosity_limit_Pa_s, shear_rate_1_per_s=1.0
         Shear rate at which the limit applies, per row or shared. [1/s]
     tolerance : float
         Width of the final bracket in phi. [-]
+    upper : float or array_like, optional
+        Upper end of the search per row; default the packing limit phi_max (a relation
+        without a packing limit may set its own, see `design`). [-]
 
     Returns
     -------
     phi : numpy.ndarray
         (N,) effective solid volume fraction; 0 where the liquid alone exceeds the limit.
+        Validity warnings of the trial loadings are not raised.
     limited_by : numpy.ndarray
         (N,) str: "viscosity" (the limit is reached), "liquid" (the liquid with its
         droplets already exceeds it) or "packing" (the limit is not reached below phi_max).
@@ -377,11 +381,14 @@ def max_loading(fs: FormulationSet, viscosity_limit_Pa_s, shear_rate_1_per_s=1.0
     rates, which = np.unique(rate, return_inverse=True)
 
     def too_thick(phi):
-        res = evaluate(fs.at_loading(phi), rates)
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore", ValidityWarning)
+            res = evaluate(fs.at_loading(phi), rates)
         eta = res.viscosity_Pa_s[np.arange(n), which]
         return ~(eta < limit)           # nan or inf count as too thick
 
-    low, high = np.zeros(n), fs.phi_max.astype(float).copy()
+    top_phi = fs.phi_max if upper is None else np.broadcast_to(np.asarray(upper, float), (n,))
+    low, high = np.zeros(n), np.array(top_phi, dtype=float)
     thick0 = too_thick(low)
     top = too_thick(high * (1.0 - 1e-9))
     for _ in range(200):

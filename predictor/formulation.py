@@ -21,14 +21,13 @@ How a formulation becomes one viscosity (documented choices, common practice, no
 from __future__ import annotations
 
 import dataclasses
-import warnings
 from dataclasses import dataclass, field
 
 import numpy as np
 import pandas as pd
 
 from . import composition, liquids, packing, shear, sizes
-from .errors import InputRangeError, ValidityWarning
+from .errors import InputRangeError
 from .registry import get_model
 from .viscosity import relative_viscosity
 
@@ -517,10 +516,12 @@ def loading_sweep(formulation: Formulation, phi=None, n: int = 200,
         eta_r = relative_viscosity_at(formulation, grid, mix)
         eta = eta_r * mix.liquid_viscosity_Pa_s
     else:
+        from . import engine
+
         rate = _rates(shear_rate_1_per_s)[:1]
-        curves = [flow_curve_of(formulation, rate, _at_loading(mix, x)) for x in grid]
-        eta = np.array([c.viscosity_Pa_s[0] for c in curves])
-        eta_r = np.array([c.relative_viscosity[0] for c in curves])
+        row = engine.from_rows([engine.row_inputs(formulation, mix)])
+        res = engine.evaluate(row.take(np.zeros(grid.size, int)).at_loading(grid), rate)
+        eta, eta_r = res.viscosity_Pa_s[:, 0], res.relative_viscosity[:, 0]
     frame = pd.DataFrame({
         "phi": grid,
         "mass_fraction": solid_mass_fraction(formulation, grid, mix),
@@ -565,9 +566,10 @@ def max_loading(formulation: Formulation, viscosity_limit_Pa_s: float,
     """Highest effective solid volume fraction whose viscosity at a shear rate stays under a limit.
 
     The solids are scaled along their shares (droplets stay); the viscosity at the shear
-    rate comes from the full flow curve (`flow_curve_of`), so thinning, thickening and a
-    non-Newtonian liquid count. Solved by bisection to 1e-9 in phi on the rising curve;
-    returns 0 when the liquid alone (with its droplets) already exceeds the limit.
+    rate comes from the full flow curve, so thinning, thickening and a non-Newtonian
+    liquid count. The one solver `engine.max_loading` (bisection to 1e-9 in phi, which
+    also gives the limiting reason); returns 0 when the liquid alone (with its droplets)
+    already exceeds the limit.
 
     Parameters
     ----------
@@ -582,32 +584,11 @@ def max_loading(formulation: Formulation, viscosity_limit_Pa_s: float,
     float
         Total effective solid volume fraction. [-]
     """
-    limit = float(viscosity_limit_Pa_s)
-    if not np.isfinite(limit) or limit <= 0:
-        raise InputRangeError("viscosity_limit_Pa_s", limit, "a positive, finite viscosity")
-    rate = float(shear_rate_1_per_s)
-    if not np.isfinite(rate) or rate <= 0:
-        raise InputRangeError("shear_rate_1_per_s", rate, "a positive, finite shear rate")
-    mix = mixture(formulation)
-    if not mix.is_solid.any():
-        raise InputRangeError("ingredients", "no solid",
-                              "at least one solid ingredient to scale (for droplets, use the "
-                              "phase-ratio questions in predictor.phase_ratio)")
-    rates = np.array([rate])
+    from . import engine
 
-    def too_thick(x):
-        with warnings.catch_warnings():
-            warnings.simplefilter("ignore", ValidityWarning)
-            eta = flow_curve_of(formulation, rates, _at_loading(mix, x)).viscosity_Pa_s[0]
-        return not eta < limit       # nan or inf count as too thick
-
-    low, high = 0.0, mix.phi_max
-    if too_thick(low):
-        return 0.0
-    while high - low > 1e-9:
-        mid = 0.5 * (low + high)
-        low, high = (low, mid) if too_thick(mid) else (mid, high)
-    return low
+    phi, _ = engine.max_loading(engine.stack([formulation]), viscosity_limit_Pa_s,
+                                shear_rate_1_per_s)
+    return float(phi[0])
 
 
 def with_solids_scaled(formulation: Formulation, phi_solids_effective: float) -> Formulation:

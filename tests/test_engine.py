@@ -121,3 +121,21 @@ def test_additive_yield_stress_acts_like_herschel_bulkley():
     assert np.allclose(res.viscosity_Pa_s[0], res.viscosity_Pa_s[1], rtol=1e-9)
     assert res.apparent_yield_stress_Pa[0] == pytest.approx(res.apparent_yield_stress_Pa[1])
     assert "yield" in set(res.regime[0])
+
+
+def test_max_loading_rows_equal_the_single_formulation_solver_with_reasons():
+    forms = [_formulation(liquid, 0.3, thickening=k % 3 == 0, droplets=k % 2 == 1)
+             for k, liquid in enumerate(LIQUIDS)]
+    limit = 1.0
+    phi, reason = engine.max_loading(engine.stack(forms), limit, 10.0)
+    for i, f in enumerate(forms):
+        assert phi[i] == pytest.approx(fm.max_loading(f, limit, 10.0), abs=2e-9)
+        if reason[i] == "viscosity" and f.thickening_onset_stress_Pa is None:
+            # The limit is met at the answer (thickening rows may jump across it).
+            eta = fm.predict(fm.with_solids_scaled(f, float(phi[i])), [10.0])
+            assert eta["viscosity_Pa_s"].iloc[0] == pytest.approx(limit, rel=1e-5)
+    assert set(reason) <= {"viscosity", "liquid", "packing"}
+    # A liquid thicker than the limit leaves no room for solids.
+    thick = _formulation(fm.Liquid(preset="", law="newtonian", params={"viscosity_Pa_s": 2.0}))
+    phi, reason = engine.max_loading(engine.stack([thick]), limit, 10.0)
+    assert phi[0] == 0.0 and reason[0] == "liquid"
