@@ -236,8 +236,11 @@ def vary(formulation: fm.Formulation, loadings: Mapping[int, object],
     return from_rows(rows)
 
 
-def _rates(shear_rate_1_per_s) -> np.ndarray:
-    rates = np.atleast_1d(np.asarray(shear_rate_1_per_s, dtype=float)).ravel()
+def _rates(shear_rate_1_per_s, n: int) -> np.ndarray:
+    rates = np.atleast_1d(np.asarray(shear_rate_1_per_s, dtype=float))
+    if rates.ndim == 2 and rates.shape[0] != n or rates.ndim > 2:
+        raise InputRangeError("shear_rate_1_per_s", f"an array of shape {rates.shape}",
+                              f"rates (M,) shared by the rows, or ({n}, M)")
     bad = ~(np.isfinite(rates) & (rates > 0))
     if rates.size == 0 or np.any(bad):
         raise InputRangeError("shear_rate_1_per_s", rates[bad][0] if bad.any() else "none",
@@ -281,14 +284,15 @@ def evaluate(fs: FormulationSet, shear_rate_1_per_s) -> Result:
     ----------
     fs : FormulationSet
     shear_rate_1_per_s : float or array_like
-        Shear rates (M,), > 0. [1/s]
+        Shear rates, > 0: (M,) shared by all rows, or (N, M) one set per row. [1/s]
 
     Returns
     -------
     Result
     """
-    rates = _rates(shear_rate_1_per_s)
-    n, m = len(fs), rates.size
+    n = len(fs)
+    rates = _rates(shear_rate_1_per_s, n)
+    m = rates.shape[-1]
     medium = medium_factor(fs)
     full = np.full((n, m), np.inf)
     out = {"sigma": full.copy(), "eta": full.copy(), "eta_l": np.full((n, m), np.nan),
@@ -303,7 +307,7 @@ def evaluate(fs: FormulationSet, shear_rate_1_per_s) -> Result:
         with warnings.catch_warnings():
             warnings.simplefilter("ignore", ValidityWarning)
             fc = shear.flow_curves(
-                rates, fs.phi[sel], liquid_law_name=law.name,
+                rates if rates.ndim == 1 else rates[sel], fs.phi[sel], liquid_law_name=law.name,
                 liquid_params=_params(fs.liquid_params, sel, law),
                 medium_factor=medium[sel], relation=rel.name,
                 relation_params=_params(fs.relation_params, sel, rel),
@@ -321,7 +325,8 @@ def evaluate(fs: FormulationSet, shear_rate_1_per_s) -> Result:
         sel = dead[rows]
         spec = get_model(fs.liquid_law[sel[0]], kind="liquid")
         params = {k: v[:, None] for k, v in _params(fs.liquid_params, sel, spec).items()}
-        out["eta_l"][sel] = liquids.liquid_law(spec.name, **params).viscosity(rates)
+        out["eta_l"][sel] = liquids.liquid_law(spec.name, **params).viscosity(
+            rates if rates.ndim == 1 else rates[sel])
     with np.errstate(invalid="ignore"):
         relative = out["eta"] / out["eta_l"]
     return Result(rates, out["eta"], out["sigma"], relative, out["eta_l"],
@@ -378,13 +383,13 @@ def max_loading(fs: FormulationSet, viscosity_limit_Pa_s, shear_rate_1_per_s=1.0
         raise InputRangeError("ingredients", "no solid",
                               "at least one solid ingredient to scale (for droplets, use the "
                               "phase-ratio questions in predictor.phase_ratio)")
-    rates, which = np.unique(rate, return_inverse=True)
+    rates = rate[:, None]
 
     def too_thick(phi):
         with warnings.catch_warnings():
             warnings.simplefilter("ignore", ValidityWarning)
             res = evaluate(fs.at_loading(phi), rates)
-        eta = res.viscosity_Pa_s[np.arange(n), which]
+        eta = res.viscosity_Pa_s[:, 0]
         return ~(eta < limit)           # nan or inf count as too thick
 
     top_phi = fs.phi_max if upper is None else np.broadcast_to(np.asarray(upper, float), (n,))

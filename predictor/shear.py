@@ -611,9 +611,10 @@ def _refine(model, rates, lo, hi):
 def _grid_bounds(model, rates, sig_jam):
     """Lowest and highest stress of the grid of each row (the stress-space search range)."""
     g_lo, g_hi = model.plateaus()
-    sig_lo = model.stress(rates.min(), g_lo) / 4.0
+    sig_lo = model.stress(rates.min(axis=-1, keepdims=True), g_lo) / 4.0
     with np.errstate(over="ignore"):
-        sig_hi = np.where(np.isfinite(g_hi), model.stress(rates.max(), g_hi) * 4.0, np.inf)
+        sig_hi = np.where(np.isfinite(g_hi), model.stress(
+            rates.max(axis=-1, keepdims=True), g_hi) * 4.0, np.inf)
     sig_hi = np.minimum(sig_hi, sig_jam)
     sig_hi = np.where(np.isfinite(sig_hi), sig_hi, sig_lo * 1e12)   # guard; see the checks
     sig_lo = np.maximum(sig_lo, 1e-300)
@@ -654,7 +655,7 @@ class _Solved:
 
 
 def _solve(model, rates, points_per_decade=60.0):
-    """Stress at every rate of every row (model arrays (n, 1), rates (M,)), and regimes.
+    """Stress at every rate of every row (model arrays (n, 1), rates (M,) or (n, M)).
 
     Rows without frictional thickening have a stress-rate curve that rises monotonically
     (g is bounded by its plateaus, the stress rises with g), so the root lies between the
@@ -662,7 +663,9 @@ def _solve(model, rates, points_per_decade=60.0):
     turn back (S-shaped curve, shear jamming): their rate is computed on a stress grid,
     each requested rate is bracketed on the rising envelope, then refined.
     """
-    n, m = model.phi.shape[0], rates.size
+    n = model.phi.shape[0]
+    rates = np.broadcast_to(rates, (n, rates.shape[-1]))     # (M,) or (n, M)
+    m = rates.shape[1]
     sigma = np.full((n, m), np.inf)
     dst = np.zeros((n, m), bool)
     nan = np.full(n, np.nan)
@@ -674,12 +677,13 @@ def _solve(model, rates, points_per_decade=60.0):
     if mono.any():
         sub = model.take(mono)
         g_lo, g_hi = sub.plateaus()
-        lo, hi = np.log(sub.stress(rates, g_lo)), np.log(sub.stress(rates, g_hi))
-        sigma[mono] = np.exp(_refine(sub, rates, lo, hi))
+        r = rates[mono]
+        lo, hi = np.log(sub.stress(r, g_lo)), np.log(sub.stress(r, g_hi))
+        sigma[mono] = np.exp(_refine(sub, r, lo, hi))
     thick = np.flatnonzero(~dead & model.thickening.ravel())
     for part in np.array_split(thick, max(1, thick.size // 2000)):
         if part.size:
-            _solve_on_grid(model.take(part), rates, sig_jam[part], points_per_decade,
+            _solve_on_grid(model.take(part), rates[part], sig_jam[part], points_per_decade,
                            part, sigma, dst, low, high, jam_rate, fall)
     ys = _apparent_yield_stress(model, sig_jam)
     regime = _regimes(model, rates, sigma, ys[:, None])
@@ -695,7 +699,7 @@ def _solve_on_grid(model, rates, sig_jam, points_per_decade, rows, sigma, dst, l
     rate_grid = model.rate(grid, model.g(grid))
     envelope = np.maximum.accumulate(rate_grid, axis=1)
     size = grid.shape[1]
-    k = (envelope[:, :, None] < rates[None, None, :]).sum(axis=1)      # (n, M)
+    k = (envelope[:, :, None] < rates[:, None, :]).sum(axis=1)      # (n, M)
     reach = k < size
     kk = np.clip(k, 1, size - 1)
     lo = np.log(np.take_along_axis(grid, kk - 1, axis=1))
@@ -974,7 +978,7 @@ def flow_curve(shear_rate_1_per_s, phi, *, liquid_law_name="newtonian", liquid_p
                         f"{fall:.3g} Pa) the suspension cannot flow steadily "
                         f"(phi = {phi:.3g} >= frictional packing limit "
                         f"{float(model.phi_mu):.3g}).")
-    sig_lo, sig_hi = (float(x) for x in _grid_bounds(model, rates, sig_jam))
+    sig_lo, sig_hi = (float(np.ravel(x)[0]) for x in _grid_bounds(model, rates, sig_jam))
     _onset_markers(model, markers, sig_lo, sig_hi, sig_jam)
     relative = viscosity / eta_l
     return FlowCurve(rates, sigma, viscosity, relative, eta_l, solved.regime[0].astype(str),
@@ -1072,7 +1076,7 @@ def flow_curves(shear_rate_1_per_s, phi, *, liquid_law_name="newtonian", liquid_
     Parameters
     ----------
     shear_rate_1_per_s : float or array_like
-        Shear rates (M,), > 0. [1/s]
+        Shear rates, > 0: (M,) shared by the rows, or (n, M) one set per row. [1/s]
     phi : float or array_like
         Effective volume fraction of the particles, per row, in [0, 1). [-]
     liquid_law_name : str, optional
@@ -1117,11 +1121,11 @@ def flow_curves(shear_rate_1_per_s, phi, *, liquid_law_name="newtonian", liquid_
     [[0.0275, 0.0275], [0.1138, 0.1138]]
     """
     rates = np.atleast_1d(as_array(shear_rate_1_per_s, "shear_rate_1_per_s")).astype(float)
-    if rates.ndim != 1 or np.any(rates <= 0):
-        raise InputRangeError("shear_rate_1_per_s", rates.ravel()[0] if rates.size else rates,
-                              "a one-dimensional array of rates > 0")
     phi = np.atleast_1d(in_range(phi, "phi", 0.0, 1.0, high_open=True)).astype(float)
     n = phi.size
+    if rates.ndim > 2 or (rates.ndim == 2 and rates.shape[0] != n) or np.any(rates <= 0):
+        raise InputRangeError("shear_rate_1_per_s", rates.ravel()[0] if rates.size else rates,
+                              "rates > 0, shared (M,) or one row per suspension (n, M)")
 
     def column(value):
         return np.broadcast_to(np.asarray(value, dtype=float), (n,)).reshape(n, 1)
@@ -1139,7 +1143,8 @@ def flow_curves(shear_rate_1_per_s, phi, *, liquid_law_name="newtonian", liquid_
         & np.isfinite(model.g0)
     solved = _solve(model, rates, float(points_per_decade))
     with np.errstate(invalid="ignore"):
-        eta_l = np.broadcast_to(np.asarray(law.viscosity(rates), dtype=float), (n, rates.size))
+        eta_l = np.broadcast_to(np.asarray(law.viscosity(rates), dtype=float),
+                                (n, rates.shape[-1]))
     return FlowCurves(rates, solved.sigma, solved.sigma / rates, eta_l,
                       solved.regime.astype(str), solved.apparent_yield_stress_Pa,
                       solved.dst_low_1_per_s, solved.dst_high_1_per_s,
