@@ -3,7 +3,8 @@
 This is an orchestration module like `formulation.py`: it reads the table, converts units
 at the edge (`predictor.units`), and sequences vectorised calls to the core over all rows of
 a chunk at once (`composition`, `suspension`, the registry's relations, `liquids`,
-`shear.newtonian_flow_viscosity`; `formulation.mixture` once per distinct powder blend). It
+`engine.evaluate` and `engine.max_loading`; `formulation.mixture` once per distinct powder
+blend). It
 writes no relation of its own. Rows with bad input get a message in their `error` column and
 never stop the run; so does a CSV row with more cells than the header.
 
@@ -57,12 +58,12 @@ Output columns, appended to the input columns: ``status`` (``ok`` / ``error``), 
 ``window j verdict`` (``pass`` / ``fail`` / ``error``), then ``settling`` and ``warnings``.
 The viscosity unit of the output is selectable.
 
-The viscosity at a window's shear rate is the one `formulation.predict` gives (Brownian
-thinning between the zero- and high-shear plateaus, droplets in the medium), and the highest
-loading the one `formulation.max_loading` gives, so a batch row equals them for the same
-inputs. The batch liquids are Newtonian and have no thickening, so the flow curve has a
-closed form: every row of a chunk is computed at once, with no per-row flow-curve solve, and
-the highest loadings by one bisection vectorised over rows and windows.
+The viscosity at a window's shear rate and the highest loading come from the one
+formulation engine (`predictor.engine`): every row of a chunk is one row of a
+`FormulationSet`, solved at its window shear rates in one vectorised call
+(`engine.evaluate`, the solve `formulation.predict` uses) and the highest loadings by one
+bisection vectorised over rows and windows (`engine.max_loading`, the solver of
+`formulation.max_loading`), so a batch row equals them for the same inputs.
 """
 
 from __future__ import annotations
@@ -78,8 +79,8 @@ from dataclasses import dataclass, field
 import numpy as np
 import pandas as pd
 
-from . import composition, formulation, shear, sizes, suspension
-from .errors import InputRangeError, LoadlineError, ScenarioError, UnitError
+from . import composition, engine, formulation, shear, sizes, suspension
+from .errors import InputRangeError, LoadlineError, ScenarioError, UnitError, ValidityWarning
 from .labdata import decimal_point, decode_text, looks_like_data, read_bytes
 from .registry import get_model
 from .units import from_si, parse_loading, to_si
@@ -989,14 +990,13 @@ def _by_relation(names: np.ndarray, kind: str, call: Callable) -> np.ndarray:
 
 
 class _Flow:
-    """Row arrays of one chunk for the flow answers, and the viscosity at any solids loading.
+    """Row arrays of one chunk for the flow answers, as engine rows (`rows`) and notes.
 
-    Mirrors `formulation.flow_curve_of` for a Newtonian liquid without thickening: the
-    droplets set the medium (`formulation.droplet_factor`, with the solids' share at the
-    loading), the relation at phi_max and at `formulation.ZERO_SHEAR_RATIO` phi_max gives
-    the two plateaus, the Sauter radius of all solids the Brownian stress scale (left out
-    above `shear.BROWNIAN_RADIUS_LIMIT_m`), and `shear.newtonian_flow_viscosity` the
-    viscosity. Methods take row indices `k` (repeats allowed) and arrays over them.
+    The inputs `engine.row_inputs` gives for a formulation, resolved for every row of the
+    chunk at once: the droplets' viscosity ratio, the Sauter radius of all solids (the
+    Brownian radius), the swelling of adsorbed layers. `plateaus` and `medium` serve the
+    row notes only (the same wording as `shear.flow_curve`). Methods take row indices `k`
+    (repeats allowed) and arrays over them.
     """
 
     def __init__(self, c: _Chunk, st: _State, sauter):
@@ -1025,6 +1025,7 @@ class _Flow:
                           / self.eta_l)
         self.has_droplets = drop.any(axis=1) & (self.phi_droplets > 0)
         self.phi = phi
+        self.temperature_K = c.temperature_K
         has_phi_max = np.zeros(c.rows.n, bool)
         for name in pd.unique(c.relation[c.rows.ok]):
             spec = get_model(name, kind="suspension")
@@ -1074,14 +1075,23 @@ class _Flow:
                                      formulation.ZERO_SHEAR_RATIO * self.phi_max[k][brown])
         return g_hs, g0, coarse
 
-    def arguments(self, k, phi, bare, rate):
-        """Arguments of `shear.newtonian_flow_viscosity` at an effective solids fraction."""
-        medium = self.medium(k, bare)
-        g_hs, g0, _ = self.plateaus(k, phi)
-        jammed = ~np.isfinite(medium) | (phi >= 1.0)
-        brown = np.isfinite(g0)
-        return (rate, self.eta_l[k] * np.where(jammed, 1.0, medium),
-                np.where(jammed, np.inf, g_hs), g0, np.where(brown, self.stress_scale[k], 1.0))
+    def rows(self, k) -> engine.FormulationSet:
+        """Rows `k` as an engine `FormulationSet` (Newtonian liquid at its viscosity)."""
+        n = len(k)
+        eff, bare = self.phi_eff[k], self.phi_solids[k]
+        swelling = np.where(bare > 0, eff / np.where(bare > 0, bare, 1.0),
+                            self.mean_swelling[k])
+        nan = np.full(n, np.nan)
+        return engine.FormulationSet(
+            phi=eff, phi_solids=bare, swelling=swelling, phi_droplets=self.phi_droplets[k],
+            phi_max=self.phi_max[k], phi_max_frictional=nan, onset_stress_Pa=nan,
+            radius_m=np.where(self.brownian[k], self.radius[k], np.nan),
+            temperature_K=self.temperature_K[k], yield_stress_Pa=np.zeros(n),
+            has_solids=np.ones(n, bool), liquid_law=np.full(n, "newtonian", dtype=object),
+            liquid_params={"viscosity_Pa_s": self.eta_l[k]}, relation=self.relation[k],
+            relation_params={"intrinsic_viscosity": self.intrinsic[k]},
+            droplet_model=self.droplet_relation[k],
+            droplet_params={"viscosity_ratio": self.ratio[k]})
 
     def bare(self, k, phi):
         """Bare solids fraction when the solids are scaled to effective fraction `phi`."""
@@ -1148,40 +1158,23 @@ def _join(parts: list[np.ndarray]) -> np.ndarray:
 
 
 def _max_loading(f: _Flow, k, rate, limit) -> tuple[np.ndarray, np.ndarray]:
-    """`formulation.max_loading` for many (row, window) pairs at once: a vectorised bisection
-    in the effective solids fraction from 0 to phi_max, to 1e-9, solids scaled along their
-    shares and droplets fixed; 0 where the liquid (with its droplets) is already too thick.
-
-    Returns the fractions and, per pair, the error that stopped its solve ("" if none; the
-    fraction is then NaN), as `max_loading` would raise it.
+    """`engine.max_loading` (the solver of `formulation.max_loading`) for many (row, window)
+    pairs at once. Returns the fractions and, per pair, the error that stopped its solve
+    ("" if none; the fraction is then NaN), as `max_loading` would raise it.
     """
     errors = np.full(len(k), "", dtype=object)
-
-    def too_thick(sel, phi):
-        kk = k[sel]
-        args = f.arguments(kk, phi, f.bare(kk, phi), rate[sel])
-        bad = ~((args[2] > 0) & (args[3] > 0))     # a relation at 0 (Frankel-Acrivos at phi 0)
-        for i in np.flatnonzero(bad):
-            try:
-                shear.newtonian_flow_viscosity(*(a[i] for a in args))
-            except LoadlineError as err:
-                errors[sel[i]] = errors[sel[i]] or str(err)
-        eta = np.full(len(sel), np.nan)
-        eta[~bad] = shear.newtonian_flow_viscosity(*(a[~bad] for a in args))
-        return ~(eta < limit[sel])      # nan or inf count as too thick
-
-    low = np.zeros(len(k))
-    high = f.phi_max[k].astype(float)
-    active = ~too_thick(np.arange(len(k)), low) & (high - low > 1e-9)
-    active &= errors == ""
-    while active.any():
-        sel = np.flatnonzero(active)
-        mid = 0.5 * (low[sel] + high[sel])
-        thick = too_thick(sel, mid)
-        high[sel] = np.where(thick, mid, high[sel])
-        low[sel] = np.where(thick, low[sel], mid)
-        active[sel] = (high[sel] - low[sel] > 1e-9) & (errors[sel] == "")
-    return np.where(errors == "", low, np.nan), errors
+    try:
+        phi, _ = engine.max_loading(f.rows(k), limit, rate)
+        return phi, errors
+    except LoadlineError:
+        pass
+    phi = np.full(len(k), np.nan)
+    for i in range(len(k)):          # isolate the pairs whose solve fails
+        try:
+            phi[i] = engine.max_loading(f.rows(k[i:i + 1]), limit[i], rate[i])[0][0]
+        except LoadlineError as err:
+            errors[i] = str(err)
+    return phi, errors
 
 
 def _solid_mass_fraction(c: _Chunk, f: _Flow, k, phi_eff) -> np.ndarray:
@@ -1204,12 +1197,11 @@ def _solid_mass_fraction(c: _Chunk, f: _Flow, k, phi_eff) -> np.ndarray:
 def _flow_answers(c: _Chunk, ctx: _Context, st: _State, sauter, packing_notes, rates, limits):
     """Viscosity and regime at each row's window shear rates, the highest loadings, notes.
 
-    The batch liquids are Newtonian and have no thickening, so `formulation.predict` of a
-    row is `shear.flow_curve` with a closed form, `shear.newtonian_flow_viscosity`: every
-    row of the chunk is computed at once (`_Flow`), with the checks and notes `predict`
-    gives (rows it would refuse get its error). The highest loading under each window's
-    max viscosity is `formulation.max_loading` by a bisection vectorised over rows and
-    windows (`_max_loading`), its mass fraction `formulation.solid_mass_fraction`; a
+    Every row of the chunk is one row of the engine (`_Flow.rows`, `engine.evaluate`),
+    with the checks and notes `predict` gives (rows it would refuse get its error). The
+    highest loading under each window's max viscosity is `engine.max_loading` over rows
+    and windows at once (`_max_loading`), its mass fraction
+    `formulation.solid_mass_fraction`; a
     failed solve leaves NaN and a note. Returns arrays over rows and windows: viscosity
     [Pa*s], regime, max effective solids phi [-], max solids mass fraction [-], and the
     notes per row.
@@ -1243,13 +1235,11 @@ def _flow_answers(c: _Chunk, ctx: _Context, st: _State, sauter, packing_notes, r
     def call(part):
         values = np.full((len(part), width), np.nan)
         kinds = np.full((len(part), width), "", dtype=object)
-        for w in range(width):
-            on = good[part, w]
-            if on.any():
-                k = part[on]
-                args = f.arguments(k, f.phi_eff[k], f.phi_solids[k], rates[k, w])
-                values[on, w] = shear.newtonian_flow_viscosity(*args)
-                kinds[on, w] = shear.newtonian_flow_regime(*args)
+        on = good[part]
+        with warnings_module.catch_warnings():
+            warnings_module.simplefilter("ignore", ValidityWarning)
+            res = engine.evaluate(f.rows(part), np.where(on, rates[part], 1.0))
+        values[on], kinds[on] = res.viscosity_Pa_s[on], res.regime[on]
         return (values, kinds, *_flow_notes(f, part))
 
     flow_notes = np.full(n, "", dtype=object)

@@ -214,7 +214,24 @@ def test_process_shear_rates_table_is_well_formed():
     assert all(0 < lo < hi for _, lo, hi in S.PROCESS_SHEAR_RATES)
 
 
-# --- newtonian_flow_viscosity / newtonian_flow_regime: the closed form ---------------------
+# --- Newtonian liquid without thickening: the closed form of Krieger's interpolation -------
+#
+# With a Newtonian medium mu, sigma = mu gammadot g(sigma) and Krieger's interpolation
+# g = g_inf + (g_0 - g_inf)/(1 + sigma/sigma_c) (Krieger, Adv. Colloid Interface Sci. 3,
+# 1972) give sigma**2 + sigma (sigma_c - mu gammadot g_inf) - mu gammadot g_0 sigma_c = 0:
+# an outside check of the numerical solve, written here and nowhere in the package.
+
+
+def _closed_form(rates, mu, g_hs, g0, scale):
+    a = mu * np.asarray(rates, dtype=float)
+    if scale is None or not np.isfinite(g0):      # no Brownian term
+        return a * g_hs / rates
+    b = scale - a * g_hs
+    root = np.hypot(b, 2.0 * np.sqrt(a * g0 * scale))
+    sigma = np.where(b > 0, 2.0 * a * g0 * scale / np.where(b > 0, b + root, 1.0),
+                     0.5 * (root - b))
+    return sigma / rates
+
 
 def _plateaus(phi, phi_max, intrinsic):
     """Krieger-Dougherty at the high- and zero-shear packing limits (Krieger 1972 plateaus)."""
@@ -249,65 +266,27 @@ def test_closed_form_equals_the_flow_curve_solve(headroom, phi_max, intrinsic, l
     brownian = radius is not None and radius <= S.BROWNIAN_RADIUS_LIMIT_m
     scale = (S.CRITICAL_REDUCED_STRESS * S.BOLTZMANN_J_PER_K * temperature / radius**3
              if brownian else None)
-    args = (rates, eta_l * medium, g_hs, g0 if brownian else None, scale)
-    got = S.newtonian_flow_viscosity(*args)
-    np.testing.assert_allclose(got, fc.viscosity_Pa_s, rtol=1e-9)
-    # Regime labels: flow_curve takes the secant slope of its stress-grid segment, the closed
-    # form the exact local slope, so labels may differ only where the slope is within a few
-    # thousandths of the +-0.05 threshold; the slope here is a central difference of the
-    # closed form itself (an independent estimate of d ln eta / d ln rate).
+    expected = _closed_form(rates, eta_l * medium, g_hs, g0, scale)
+    np.testing.assert_allclose(fc.viscosity_Pa_s, expected, rtol=1e-9)
+    # The rows solve (the engine's) gives the same for three rows at once.
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", ValidityWarning)
+        rows = S.flow_curves(rates, [phi, phi, 0.5 * phi], liquid_params={"viscosity_Pa_s": eta_l},
+                             medium_factor=medium, phi_max_high_shear=phi_max,
+                             phi_max_zero_shear=ZERO_SHEAR_RATIO * phi_max,
+                             radius_m=np.nan if radius is None else radius,
+                             temperature_K=temperature,
+                             relation_params={"intrinsic_viscosity": intrinsic})
+    np.testing.assert_allclose(rows.viscosity_Pa_s[0], expected, rtol=1e-9)
+    np.testing.assert_allclose(rows.viscosity_Pa_s[1], fc.viscosity_Pa_s, rtol=1e-12)
+    assert list(rows.regime[0]) == list(fc.regime)
+    # Regime labels from the local slope: compare with a central difference of the closed
+    # form (an independent estimate of d ln eta / d ln rate), away from the threshold.
     step = 1e-4
-    slope = (np.log(S.newtonian_flow_viscosity(rates * np.exp(step), *args[1:]))
-             - np.log(S.newtonian_flow_viscosity(rates * np.exp(-step), *args[1:]))) / (2 * step)
+    slope = (np.log(_closed_form(rates * np.exp(step), eta_l * medium, g_hs, g0, scale))
+             - np.log(_closed_form(rates * np.exp(-step), eta_l * medium, g_hs, g0, scale))
+             ) / (2 * step)
     clear = np.abs(np.abs(slope) - S.PLATEAU_SLOPE) > 5e-3
-    regime = S.newtonian_flow_regime(*args)
-    assert np.all(regime[clear] == fc.regime[clear])
-    expected = np.where(slope < -S.PLATEAU_SLOPE, "thinning",
-                        np.where(slope > S.PLATEAU_SLOPE, "thickening", "plateau"))
-    assert np.all(regime[clear] == expected[clear])
-
-
-def test_closed_form_plateaus_and_midpoint():
-    # Hand check. Krieger & Dougherty (1959) / Krieger (1972): the Brownian suspension has a
-    # zero-shear plateau mu*g0 and a high-shear plateau mu*g_inf. With g0 = 20, g_inf = 4,
-    # mu = 1 mPa*s, sigma_c = 0.04 Pa: at 1e-9 1/s the stress (2e-11 Pa) is far below
-    # sigma_c, so eta = 0.020 Pa*s; at 1e12 1/s it is far above, so eta = 0.004 Pa*s.
-    # At sigma = sigma_c, g is midway (12) by the interpolation's definition, i.e. at
-    # rate = 0.04 / (1e-3 * 12) = 3.3333 1/s the viscosity is 0.012 Pa*s.
-    eta = S.newtonian_flow_viscosity([1e-9, 1e12, 0.04 / 0.012], 1e-3, 4.0, 20.0, 0.04)
-    assert eta[0] == pytest.approx(0.020, rel=1e-9)
-    assert eta[1] == pytest.approx(0.004, rel=1e-9)
-    assert eta[2] == pytest.approx(0.012, rel=1e-12)
-    assert list(S.newtonian_flow_regime([1e-9, 3.3333, 1e12], 1e-3, 4.0, 20.0, 0.04)) == [
-        "plateau", "thinning", "plateau"]
-
-
-def test_closed_form_without_brownian_term_and_when_jammed():
-    # Without the Brownian term the viscosity is mu * g_inf at every rate (common practice,
-    # no source: a Newtonian suspension); inf g_inf (phi >= phi_max) gives inf, "jammed".
-    rates = np.logspace(-3, 5, 9)
-    for g0, scale in ((None, None), (np.inf, 0.04), (30.0, None)):
-        assert np.all(S.newtonian_flow_viscosity(rates, 2e-3, 5.0, g0, scale) == 2e-3 * 5.0)
-        assert set(S.newtonian_flow_regime(rates, 2e-3, 5.0, g0, scale)) == {"plateau"}
-    assert S.newtonian_flow_viscosity(1.0, 1e-3, np.inf, 20.0, 0.04) == np.inf
-    assert S.newtonian_flow_regime(1.0, 1e-3, np.inf, 20.0, 0.04) == "jammed"
-    # One value per row: elements may differ in everything, including the Brownian term.
-    eta = S.newtonian_flow_viscosity([1.0, 1.0], [1e-3, 2e-3], [4.0, 5.0], [20.0, np.inf],
-                                     [0.04, 1.0])
-    assert eta[1] == pytest.approx(1e-2, rel=1e-15) and 0.004 < eta[0] < 0.02
-
-
-@pytest.mark.parametrize(("kwargs", "field"), [
-    ({"shear_rate_1_per_s": 0.0}, "shear_rate_1_per_s"),
-    ({"medium_viscosity_Pa_s": -1e-3}, "medium_viscosity_Pa_s"),
-    ({"high_shear_relative_viscosity": np.nan}, "high_shear_relative_viscosity"),
-    ({"zero_shear_relative_viscosity": 0.0}, "zero_shear_relative_viscosity"),
-    ({"stress_scale_Pa": np.inf}, "stress_scale_Pa"),
-])
-def test_closed_form_bad_input_names_the_field(kwargs, field):
-    args = {"shear_rate_1_per_s": 1.0, "medium_viscosity_Pa_s": 1e-3,
-            "high_shear_relative_viscosity": 4.0, "zero_shear_relative_viscosity": 20.0,
-            "stress_scale_Pa": 0.04, **kwargs}
-    for func in (S.newtonian_flow_viscosity, S.newtonian_flow_regime):
-        with pytest.raises(InputRangeError, match=field):
-            func(**args)
+    labels = np.where(slope < -S.PLATEAU_SLOPE, "thinning",
+                      np.where(slope > S.PLATEAU_SLOPE, "thickening", "plateau"))
+    assert np.all(fc.regime[clear] == labels[clear])
