@@ -1292,65 +1292,64 @@ def duration_text(seconds: float) -> str:
     return f"{seconds:.3g} s"
 
 
-MAX_SETTLING_CALLS = 20_000  # distinct settling cases per chunk (the verdict is scalar-only)
 
 
 def _settling(c: _Chunk, st: _State, ctx: _Context) -> np.ndarray:
-    """Storage verdict per row: `stability.storage_verdict` for each sized ingredient.
+    """Storage verdict per row: `stability.storage_reasons` for each sized ingredient.
 
     The same inputs as `design.storage_check`: per ingredient its D90 (the coarse end), its
     density, the liquid's density, Newtonian viscosity and temperature, and the total
-    dispersed volume fraction for hindrance. The verdict is scalar-only, so it is called
-    once per distinct case. The row
-    shows the first ingredient that separates, else "stable" with the reason.
+    dispersed volume fraction for hindrance. One vectorised call per ingredient column
+    over all its rows (the D90 once per distinct size distribution). The row shows the
+    first ingredient that separates, else "stable" with the reason.
     """
     from . import stability
 
     n = c.rows.n
     verdict = np.full(n, "", dtype=object)
-    if not hasattr(stability, "storage_verdict"):
-        verdict[:] = "not assessed (stability.storage_verdict missing)"
-        return verdict
     ok = c.rows.ok
-    phi_total = st.phi_solids + st.phi_droplets
+    phi_total = np.minimum(st.phi_solids + st.phi_droplets, 0.99)
     stable_reason = np.full(n, "", dtype=object)
-    calls = 0
     for j in range(c.present.shape[1]):
         sized = ok & c.present[:, j] & ((c.table[:, j] != "") | ~np.isnan(c.d50[:, j]))
         if not sized.any():
             continue
+        d90 = np.full(n, np.nan)
         keys = pd.DataFrame({"t": c.table[sized, j], "d": c.d50[sized, j],
-                             "s": c.spread[sized, j], "rp": c.density[sized, j],
-                             "rl": c.liquid_density[sized], "eta": st.eta_l[sized],
-                             "phi": phi_total[sized], "T": c.temperature_K[sized]})
+                             "s": c.spread[sized, j]})
         where = np.flatnonzero(sized)
-        for (tab, d50, spread, rp, rl, eta, phi, temp), pos in _groups(keys):
-            rows_u = where[pos]
-            calls += 1
-            if calls > MAX_SETTLING_CALLS:
-                verdict[rows_u] = np.where(verdict[rows_u] == "", "not assessed (more than "
-                                           f"{MAX_SETTLING_CALLS} distinct cases in a chunk)",
-                                           verdict[rows_u])
-                continue
+        for (tab, d50, spread), pos in _groups(keys):
             dist = _distribution(ctx, str(tab), _nan(d50), _nan(spread))
-            if isinstance(dist, LoadlineError):
-                continue
-            try:
-                v = stability.storage_verdict(dist.d90_m, float(rp), float(rl), float(eta),
-                                              phi=min(float(phi), 0.99), temperature_K=temp)
-            except (LoadlineError, ValueError) as err:
-                verdict[rows_u] = np.where(verdict[rows_u] == "",
-                                           f"not assessed ({err})", verdict[rows_u])
-                continue
-            if v.stable:
-                stable_reason[rows_u] = np.where(stable_reason[rows_u] == "", v.reason,
-                                                 stable_reason[rows_u])
-                continue
-            text = (f"{c.names[rows_u[0], j]} {v.direction}, {v.clear_layer_m * 1e3:g} mm "
-                    f"layer in {duration_text(v.clear_layer_time_s)}")
-            for i in rows_u:  # the ingredient name may differ between rows of one case
-                if verdict[i] == "":
-                    verdict[i] = text.replace(str(c.names[rows_u[0], j]), str(c.names[i, j]), 1)
+            if not isinstance(dist, LoadlineError):
+                d90[where[pos]] = dist.d90_m
+        rows = np.flatnonzero(sized & np.isfinite(d90))
+        if rows.size == 0:
+            continue
+        args = (d90[rows], c.density[rows, j], c.liquid_density[rows], st.eta_l[rows],
+                phi_total[rows])
+        try:
+            parts = [(rows, stability.storage_reasons(*args, temperature_K=c.temperature_K[rows]))]
+        except (LoadlineError, ValueError):
+            parts = []
+            for i, row in enumerate(rows):        # isolate the cases that cannot be assessed
+                try:
+                    parts.append((rows[i:i + 1], stability.storage_reasons(
+                        *(a[i:i + 1] for a in args),
+                        temperature_K=c.temperature_K[rows[i:i + 1]])))
+                except (LoadlineError, ValueError) as err:
+                    if verdict[row] == "":
+                        verdict[row] = f"not assessed ({err})"
+        for sel, r in parts:
+            stable = np.asarray(r["stable"], bool)
+            keep = stable & (stable_reason[sel] == "")
+            stable_reason[sel[keep]] = np.asarray(r["reason"])[keep]
+            moving = sel[~stable & (verdict[sel] == "")]
+            if moving.size:
+                k = np.flatnonzero(~stable & (verdict[sel] == ""))
+                times = np.asarray(r["clear_layer_time_s"])[k]
+                direction = np.asarray(r["direction"])[k]
+                verdict[moving] = [f"{c.names[i, j]} {d}, 1 mm layer in {duration_text(t)}"
+                                   for i, d, t in zip(moving, direction, times, strict=True)]
     empty = verdict == ""
     verdict[empty & (stable_reason != "")] = "stable (" + stable_reason[
         empty & (stable_reason != "")] + ")"

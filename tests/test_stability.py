@@ -125,3 +125,23 @@ def test_vectorised_over_arrays():
     d = np.array([1e-6, 10e-6, 100e-6])
     v = stability.stokes_velocity(d, 2650.0, 1000.0, 1e-3)
     assert v.shape == (3,) and np.allclose(v[1:] / v[:-1], 100.0)
+
+
+def test_storage_reasons_is_storage_verdict_over_many_cases():
+    # One decision rule: the vectorised form must give the scalar verdict element by element
+    # (the scalar's own checks are against Stokes, Richardson & Zaki and Beris above).
+    rng = np.random.default_rng(3)
+    n = 300
+    d = 10 ** rng.uniform(-8, -4, n)
+    rho_p = rng.choice([900.0, 1000.0, 2650.0, 4100.0], n)
+    eta = 10 ** rng.uniform(-3.5, 1, n)
+    phi = rng.uniform(0, 0.5, n)
+    tau = np.where(rng.random(n) < 0.3, 10 ** rng.uniform(-3, 1, n), 0.0)
+    r = stability.storage_reasons(d, rho_p, 1000.0, eta, phi, tau)
+    for i in range(n):
+        v = stability.storage_verdict(float(d[i]), float(rho_p[i]), 1000.0, float(eta[i]),
+                                      phi=float(phi[i]), yield_stress_Pa=float(tau[i]))
+        assert (r["reason"][i], bool(r["stable"][i]), r["direction"][i]) == (
+            v.reason, v.stable, v.direction)
+        assert r["clear_layer_time_s"][i] == v.clear_layer_time_s
+    assert len(set(r["reason"])) >= 4
