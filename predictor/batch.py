@@ -99,12 +99,16 @@ MAX_SIZE_TABLE_BYTES = 5_000_000
 _LIQUID_FIELDS = {
     "candidate": "text", "liquid": "text", "relation": "text", "droplet relation": "text",
     "liquid viscosity": "viscosity", "temperature": "temperature",
-    "liquid density": "density", "glycerol": "loading",
+    "liquid density": "density", "glycerol": "loading", "base scenario": "text",
+    "liquid law": "text", "liquid reference temperature": "temperature",
+    "liquid activation temperature": "temperature_difference",
+    "thickening onset": "stress", "phi_max frictional": "dimensionless",
 }
 _INGREDIENT_FIELDS = {
     "": "text", "kind": "text", "loading": "loading", "density": "density", "d50": "length",
     "spread": "dimensionless", "size table": "text", "aspect ratio": "dimensionless",
     "layer": "length", "phi_max": "dimensionless", "droplet viscosity": "viscosity",
+    "intrinsic viscosity": "dimensionless", "basis": "text",
 }
 _WINDOW_FIELDS = {
     "": "text", "shear rate": "shear_rate", "min viscosity": "viscosity",
@@ -146,6 +150,32 @@ class Layout:
         return None
 
 
+#: Parameter units of the registry's liquid laws -> dimension passed to units.to_si.
+_PARAM_DIMENSIONS = {"Pa*s": "viscosity", "s": "time", "Pa": "stress", "-": "dimensionless",
+                     "": "dimensionless"}
+
+
+def liquid_parameter_columns() -> dict[str, tuple[str, str]]:
+    """Column names (after ``liquid``) of the registry liquid laws' parameters.
+
+    The registry name with its SI suffix dropped and spaces for underscores
+    (``zero shear viscosity`` for ``zero_shear_viscosity_Pa_s``), and the registry name
+    itself; each maps to (registry name, dimension). ``viscosity`` is the column
+    ``liquid viscosity`` of a newtonian liquid.
+    """
+    from .registry import models
+
+    out = {}
+    for spec in models("liquid"):
+        for p in spec.params:
+            short = re.sub(r"_(Pa_s|Pa|s)$", "", p.name).replace("_", " ")
+            dim = "consistency" if p.name.startswith("consistency") else \
+                _PARAM_DIMENSIONS.get(p.unit, "dimensionless")
+            for key in (short, p.name.lower()):
+                out.setdefault(key, (p.name, dim))
+    return out
+
+
 def parse_header(headers) -> Layout:
     """Recognise the columns of a candidate table; a bad unit in a header raises.
 
@@ -172,6 +202,9 @@ def parse_header(headers) -> Layout:
             fname = f"{kind} {fname}".strip()
         elif name in _LIQUID_FIELDS:
             index, fname, dimension = 0, name, _LIQUID_FIELDS[name]
+        elif name.startswith("liquid ") and name[7:] in liquid_parameter_columns():
+            param, dimension = liquid_parameter_columns()[name[7:]]
+            index, fname = 0, f"liquid param {param}"
         else:
             if name.split(" ")[0] in ("ingredient", "window", "liquid"):
                 unrecognised.append(str(header))
@@ -188,6 +221,8 @@ def parse_header(headers) -> Layout:
     ingredients = tuple(sorted({c.index for c in cols if c.field.startswith("ingredient")}))
     windows = tuple(sorted({c.index for c in cols if c.field.startswith("window")}))
     layout = Layout(cols, ingredients, windows, tuple(unrecognised))
+    if layout.get("base scenario") is not None:
+        return layout     # the base scenario gives what the columns leave out
     for k in ingredients:
         for needed in ("loading", "density"):
             if layout.get(f"ingredient {needed}", k) is None:
@@ -207,6 +242,14 @@ def parse_header(headers) -> Layout:
 def _column(header, fname, index, dimension, unit) -> Column:
     if dimension == "text":
         return Column(header, fname, index)
+    if dimension == "temperature_difference":      # an activation temperature: no offset
+        if not unit:
+            raise UnitError(f"column '{header}': give its unit in square brackets, e.g. "
+                            f"'{header} [K]'.")
+        field_name = f"unit of column '{header}'"
+        scale = (to_si(1.0, unit, "temperature", field_name)
+                 - to_si(0.0, unit, "temperature", field_name))
+        return Column(header, fname, index, dimension, scale, 0.0)
     if dimension == "loading":
         if unit.lower() in _FRACTION_UNITS:
             return Column(header, fname, index, dimension, 1.0, 0.0, _FRACTION_UNITS[unit.lower()])
@@ -231,7 +274,8 @@ def _column(header, fname, index, dimension, unit) -> Column:
 
 
 _EXAMPLE_UNITS = {"viscosity": "Pa*s", "temperature": "degC", "density": "kg/m3",
-                  "length": "um", "shear_rate": "1/s"}
+                  "length": "um", "shear_rate": "1/s", "stress": "Pa", "time": "s",
+                  "consistency": "Pa*s^n"}
 
 
 # -- reading ----------------------------------------------------------------------------------
@@ -581,6 +625,11 @@ class _Chunk:
     liquid_viscosity: np.ndarray
     relation: np.ndarray
     droplet_relation: np.ndarray
+    law_params: dict             # registry parameter -> (n,) SI, nan where not its law
+    reference_K: np.ndarray      # Arrhenius reference temperature
+    activation_K: np.ndarray     # Arrhenius activation temperature, nan: no shift
+    onset: np.ndarray            # thickening onset stress, nan: no thickening
+    frictional: np.ndarray       # frictional packing limit, nan: the default ratio
     present: np.ndarray          # (n, k) bool
     is_solid: np.ndarray         # (n, k)
     is_mass: np.ndarray          # (n, k)
@@ -594,6 +643,7 @@ class _Chunk:
     phi_max_given: np.ndarray
     droplet_viscosity: np.ndarray
     names: np.ndarray            # (n, k) object
+    intrinsic_given: np.ndarray  # (n, k), nan: from the aspect ratio
 
 
 def _resolve(chunk: pd.DataFrame, ctx: _Context, row_errors=None) -> _Chunk:
@@ -604,9 +654,26 @@ def _resolve(chunk: pd.DataFrame, ctx: _Context, row_errors=None) -> _Chunk:
     given_eta = _num(rows, "liquid viscosity")
     liquid = np.where((liquid == "water") & ~np.isnan(given_eta)
                       & (layout.get("liquid", 0) is None), "newtonian", liquid)
-    known = np.isin(liquid, ["water", "glycerol-water", "newtonian"])
+    law = _text(rows, "liquid law")
+    liquid = np.where(law != "", law, liquid)
+    from .registry import models
+
+    laws = [s.name for s in models("liquid")]
+    known = np.isin(liquid, ["water", "glycerol-water", "newtonian", *laws])
     rows.flag(~known, np.array([f"column 'liquid' = {v!r} is not allowed; expected 'water', "
-                                "'glycerol-water' or 'newtonian'." for v in liquid], object))
+                                f"'glycerol-water' or a liquid law: {', '.join(laws)}."
+                                for v in liquid], object))
+    law_params = {}
+    for name in pd.unique(liquid[known & rows.ok]):
+        if name in ("water", "glycerol-water", "newtonian"):
+            continue
+        spec = get_model(name, kind="liquid")
+        on = liquid == name
+        for p, default in ((p, spec.defaults()[p.name]) for p in spec.params):
+            value = _num(rows, f"liquid param {p.name}", default=default)
+            law_params.setdefault(p.name, np.full(n, np.nan))[on] = value[on]
+        _check_params(rows, on, spec, {k: v for k, v in law_params.items()
+                                       if k in spec.param_names()})
     temperature = _num(rows, "temperature", default=298.15)
     _check(rows, ~(temperature > 0), layout, "temperature", 0, temperature,
            "a temperature above absolute zero", "temperature [K]")
@@ -620,6 +687,10 @@ def _resolve(chunk: pd.DataFrame, ctx: _Context, row_errors=None) -> _Chunk:
     glycerol = _num(rows, "glycerol", default=0.0)
     _check(rows, (glycerol < 0) | (glycerol > 1), layout, "glycerol", 0, glycerol,
            "a share from 0 to 100 wt%", "glycerol [wt%]")
+    reference = _num(rows, "liquid reference temperature", default=298.15)
+    activation = _num(rows, "liquid activation temperature")
+    onset = _num(rows, "thickening onset")
+    frictional = _num(rows, "phi_max frictional")
     rows.flag((liquid == "newtonian") & np.isnan(given_eta),
               "column 'liquid viscosity [Pa*s]' is empty; it is required for a newtonian liquid.")
     _check(rows, (liquid == "newtonian") & ~(given_eta > 0) & ~np.isnan(given_eta), layout,
@@ -627,7 +698,8 @@ def _resolve(chunk: pd.DataFrame, ctx: _Context, row_errors=None) -> _Chunk:
 
     shape = (n, len(ks))
     out = {name: np.full(shape, np.nan) for name in (
-        "loading", "density", "d50", "spread", "aspect", "layer", "phi_max", "eta_d")}
+        "loading", "density", "d50", "spread", "aspect", "layer", "phi_max", "eta_d",
+        "intrinsic")}
     present = np.zeros(shape, bool)
     is_solid = np.ones(shape, bool)
     is_mass = np.zeros(shape, bool)
@@ -643,17 +715,25 @@ def _resolve(chunk: pd.DataFrame, ctx: _Context, row_errors=None) -> _Chunk:
                   np.array([f"column 'ingredient {k} kind' = {v!r} is not allowed; expected "
                             "'solid' or 'droplet'." for v in kind], object))
         is_solid[:, j] = kind != "droplet"
-        is_mass[:, j] = layout.get("ingredient loading", k).basis == "mass"
+        loading_col = layout.get("ingredient loading", k)
+        header = loading_col.header if loading_col else f"ingredient {k} loading"
+        basis = _text(rows, "ingredient basis", k,
+                      default=loading_col.basis if loading_col else "mass")
+        rows.flag(present[:, j] & ~np.isin(basis, ["mass", "volume"]),
+                  np.array([f"column 'ingredient {k} basis' = {v!r} is not allowed; expected "
+                            "'mass' or 'volume'." for v in basis], object))
+        is_mass[:, j] = basis == "mass"
         rows.flag(present[:, j] & np.isnan(loading),
-                  f"column '{layout.get('ingredient loading', k).header}' is empty for an "
+                  f"column '{header}' is empty for an "
                   f"ingredient {k} that is named; give its loading.")
         _check(rows, present[:, j] & ((loading < 0) | (loading > 1)), layout,
                "ingredient loading", k, loading, "a loading from 0 to 100 %",
                f"ingredient {k} loading")
         density = _num(rows, "ingredient density", k)
+        density_col = layout.get("ingredient density", k)
         rows.flag(present[:, j] & np.isnan(density),
-                  f"column '{layout.get('ingredient density', k).header}' is empty; "
-                  f"ingredient {k} needs its density.")
+                  f"column '{density_col.header if density_col else f'ingredient {k} density'}'"
+                  f" is empty; ingredient {k} needs its density.")
         _check(rows, present[:, j] & ~(density > 0) & ~np.isnan(density), layout,
                "ingredient density", k, density, "a density > 0", f"ingredient {k} density")
         d50 = _num(rows, "ingredient d50", k)
@@ -682,9 +762,10 @@ def _resolve(chunk: pd.DataFrame, ctx: _Context, row_errors=None) -> _Chunk:
         eta_d = _num(rows, "ingredient droplet viscosity", k)
         _check(rows, present[:, j] & (eta_d <= 0), layout, "ingredient droplet viscosity", k,
                eta_d, "a viscosity > 0", f"ingredient {k} droplet viscosity")
+        intrinsic = _num(rows, "ingredient intrinsic viscosity", k)
         for name_, arr in (("loading", loading), ("density", density), ("d50", d50),
                            ("spread", spread), ("aspect", aspect), ("layer", layer),
-                           ("phi_max", phi_max), ("eta_d", eta_d)):
+                           ("phi_max", phi_max), ("eta_d", eta_d), ("intrinsic", intrinsic)):
             out[name_][:, j] = arr
         table[:, j] = tab
     rows.flag(~present.any(axis=1), "no ingredient: give at least one loading.")
@@ -699,20 +780,29 @@ def _resolve(chunk: pd.DataFrame, ctx: _Context, row_errors=None) -> _Chunk:
     return _Chunk(rows, liquid, temperature, rho_l, glycerol, given_eta,
                   _text(rows, "relation", default=DEFAULT_RELATION),
                   _text(rows, "droplet relation", default=DEFAULT_DROPLET_RELATION),
+                  law_params, reference, activation, onset, frictional,
                   present, is_solid, is_mass, np.where(present, out["loading"], 0.0),
                   np.where(present, out["density"], 1000.0), out["d50"], out["spread"], table,
-                  out["aspect"], out["layer"], out["phi_max"], out["eta_d"], names)
+                  out["aspect"], out["layer"], out["phi_max"], out["eta_d"], names,
+                  out["intrinsic"])
 
 
 def candidate_formulation(c: _Chunk, i: int, ctx: _Context) -> formulation.Formulation:
     """The Formulation of row `i` of a resolved chunk (the same inputs the batch uses)."""
     liquid_kind = c.liquid[i]
     preset = liquid_kind if liquid_kind in ("water", "glycerol-water") else ""
+    law = "newtonian" if preset else liquid_kind
+    if law == "newtonian":
+        params = {} if preset else {"viscosity_Pa_s": float(c.liquid_viscosity[i])}
+    else:
+        spec = get_model(law, kind="liquid")
+        params = {p: float(c.law_params[p][i]) for p in spec.param_names()}
     liquid = formulation.Liquid(
-        name=liquid_kind, preset=preset, law="newtonian",
-        params={} if preset else {"viscosity_Pa_s": float(c.liquid_viscosity[i])},
+        name=liquid_kind, preset=preset, law=law, params=params,
         temperature_K=float(c.temperature_K[i]), density_kg_per_m3=float(c.liquid_density[i]),
-        glycerol_mass_fraction=float(c.glycerol[i]))
+        glycerol_mass_fraction=float(c.glycerol[i]),
+        reference_temperature_K=float(c.reference_K[i]),
+        activation_temperature_K=_given(c.activation_K[i]))
     ingredients = []
     for j in range(c.present.shape[1]):
         if not c.present[i, j]:
@@ -730,12 +820,19 @@ def candidate_formulation(c: _Chunk, i: int, ctx: _Context) -> formulation.Formu
             diameter_m=float(size.sauter_diameter_m) if size is not None else 1e-6,
             size=size, aspect_ratio=float(c.aspect[i, j]),
             layer_thickness_m=float(c.layer[i, j]),
-            phi_max=None if math.isnan(c.phi_max_given[i, j]) else float(c.phi_max_given[i, j]),
-            droplet_viscosity_Pa_s=(None if math.isnan(c.droplet_viscosity[i, j])
-                                    else float(c.droplet_viscosity[i, j]))))
+            phi_max=_given(c.phi_max_given[i, j]),
+            intrinsic_viscosity=_given(c.intrinsic_given[i, j]),
+            droplet_viscosity_Pa_s=_given(c.droplet_viscosity[i, j])))
     return formulation.Formulation(liquid=liquid, ingredients=tuple(ingredients),
                                    model=str(c.relation[i]),
-                                   droplet_model=str(c.droplet_relation[i]))
+                                   droplet_model=str(c.droplet_relation[i]),
+                                   thickening_onset_stress_Pa=_given(c.onset[i]),
+                                   phi_max_frictional=_given(c.frictional[i]))
+
+
+def _given(value) -> float | None:
+    """None for NaN (an empty cell), else the float."""
+    return None if math.isnan(value) else float(value)
 
 
 def _guarded(func: Callable[[np.ndarray], object], index: np.ndarray, rows: _Rows,
@@ -783,9 +880,54 @@ def _liquid_viscosity(c: _Chunk) -> np.ndarray:
 
         for part, value in _guarded(call, index, c.rows):
             eta[part] = value
+    shift = _shift(c)
     newtonian = c.liquid == "newtonian"
-    eta[newtonian] = c.liquid_viscosity[newtonian]
+    eta[newtonian] = c.liquid_viscosity[newtonian] * shift[newtonian]
+    for name, params in _laws(c, shift).items():   # apparent viscosity at 1 1/s
+        on = np.flatnonzero((c.liquid == name) & c.rows.ok)
+
+        def call(part, name=name, params=params):
+            return liquids.liquid_viscosity(1.0, name, **{k: v[part] for k, v in
+                                                          params.items()})
+
+        for part, value in _guarded(call, on, c.rows):
+            eta[part] = value
     return eta
+
+
+def _shift(c: _Chunk) -> np.ndarray:
+    """Arrhenius factor of each row's liquid (1 for presets and without an activation
+    temperature), as `formulation.Liquid.shift_factor`."""
+    from . import liquids
+
+    out = np.ones(c.rows.n)
+    on = (~np.isnan(c.activation_K) & ~np.isin(c.liquid, ["water", "glycerol-water"])
+          & c.rows.ok)
+
+    def call(part):
+        return liquids.arrhenius_shift(c.temperature_K[part], c.reference_K[part],
+                                       c.activation_K[part])
+
+    for part, value in _guarded(call, np.flatnonzero(on), c.rows):
+        out[part] = value
+    return out
+
+
+def _laws(c: _Chunk, shift: np.ndarray) -> dict:
+    """Law name -> its parameters (n,) at each row's temperature, as
+    `formulation.liquid_law_of` (viscosities and time constants times the shift)."""
+    out = {}
+    for name in pd.unique(c.liquid):
+        if name in ("water", "glycerol-water", "newtonian"):
+            continue
+        try:
+            spec = get_model(name, kind="liquid")
+        except LoadlineError:
+            continue
+        out[spec.name] = {p.name: c.law_params[p.name] * (shift if p.unit in
+                                                          formulation._SHIFTED_UNITS else 1.0)
+                          for p in spec.params}
+    return out
 
 
 @dataclass
@@ -915,10 +1057,15 @@ def _check_formulation(c: _Chunk, sauter, smallest, largest) -> None:
             flag(on & ~np.isnan(value), f"ingredients[{{i}}].size ({what} class)", value,
                  *_SIZE_CLASS_RANGE, position[:, j])
     liquid = {"temperature_K": c.temperature_K, "density_kg_per_m3": c.liquid_density,
-              "glycerol_mass_fraction": c.glycerol}
+              "glycerol_mass_fraction": c.glycerol, "reference_temperature_K": c.reference_K,
+              "activation_temperature_K": c.activation_K}
     for name, (low, high) in formulation._LIQUID_RANGES.items():
         if name in liquid:
-            flag(np.ones(rows.n, bool), f"liquid.{name}", liquid[name], low, high)
+            given = ~np.isnan(liquid[name]) if name == "activation_temperature_K" else True
+            flag(np.ones(rows.n, bool) & given, f"liquid.{name}", liquid[name], low, high)
+    for name, value, (low, high) in (("thickening_onset_stress_Pa", c.onset, (1e-9, 1e7)),
+                                     ("phi_max_frictional", c.frictional, (0.05, 1.0))):
+        flag(~np.isnan(value), name, value, low, high)
 
 
 def _check_params(rows: _Rows, mask, spec, values: dict) -> None:
@@ -949,7 +1096,8 @@ def _packing(c: _Chunk, ctx: _Context, phi_eff: np.ndarray) -> tuple:
     for j in range(c.present.shape[1]):
         solid = c.present[:, j] & c.is_solid[:, j]
         keys[f"t{j}"] = np.where(solid, c.table[:, j], "")
-        for name, arr in (("d", c.d50), ("s", c.spread), ("a", c.aspect), ("m", c.phi_max_given)):
+        for name, arr in (("d", c.d50), ("s", c.spread), ("a", c.aspect), ("m", c.phi_max_given),
+                          ("i", c.intrinsic_given)):
             keys[f"{name}{j}"] = np.where(solid, arr[:, j], -1.0)
         # shares rounded to 12 digits: rows differing only by float noise share one call
         keys[f"w{j}"] = np.round(shares[:, j], 12)
@@ -1026,6 +1174,18 @@ class _Flow:
         self.has_droplets = drop.any(axis=1) & (self.phi_droplets > 0)
         self.phi = phi
         self.temperature_K = c.temperature_K
+        self.onset = c.onset
+        self.frictional = np.where(np.isnan(c.frictional),
+                                   formulation.FRICTIONAL_RATIO * self.phi_max, c.frictional)
+        # The liquid law of each row (presets are Newtonian at their viscosity).
+        self.law = np.where(np.isin(c.liquid, ["water", "glycerol-water"]), "newtonian",
+                            c.liquid).astype(object)
+        self.law_params = {"viscosity_Pa_s": np.where(self.law == "newtonian", self.eta_l,
+                                                      np.nan)}
+        for name, params in _laws(c, _shift(c)).items():
+            on = self.law == name
+            for k, v in params.items():
+                self.law_params.setdefault(k, np.full(c.rows.n, np.nan))[on] = v[on]
         has_phi_max = np.zeros(c.rows.n, bool)
         for name in pd.unique(c.relation[c.rows.ok]):
             spec = get_model(name, kind="suspension")
@@ -1076,7 +1236,7 @@ class _Flow:
         return g_hs, g0, coarse
 
     def rows(self, k) -> engine.FormulationSet:
-        """Rows `k` as an engine `FormulationSet` (Newtonian liquid at its viscosity)."""
+        """Rows `k` as an engine `FormulationSet` (`engine.row_inputs` of each row)."""
         n = len(k)
         eff, bare = self.phi_eff[k], self.phi_solids[k]
         swelling = np.where(bare > 0, eff / np.where(bare > 0, bare, 1.0),
@@ -1084,11 +1244,14 @@ class _Flow:
         nan = np.full(n, np.nan)
         return engine.FormulationSet(
             phi=eff, phi_solids=bare, swelling=swelling, phi_droplets=self.phi_droplets[k],
-            phi_max=self.phi_max[k], phi_max_frictional=nan, onset_stress_Pa=nan,
+            phi_max=self.phi_max[k],
+            phi_max_frictional=np.where(np.isnan(self.onset[k]), nan, self.frictional[k]),
+            onset_stress_Pa=self.onset[k],
             radius_m=np.where(self.brownian[k], self.radius[k], np.nan),
             temperature_K=self.temperature_K[k], yield_stress_Pa=np.zeros(n),
-            has_solids=np.ones(n, bool), liquid_law=np.full(n, "newtonian", dtype=object),
-            liquid_params={"viscosity_Pa_s": self.eta_l[k]}, relation=self.relation[k],
+            has_solids=np.ones(n, bool), liquid_law=self.law[k],
+            liquid_params={p: v[k] for p, v in self.law_params.items()},
+            relation=self.relation[k],
             relation_params={"intrinsic_viscosity": self.intrinsic[k]},
             droplet_model=self.droplet_relation[k],
             droplet_params={"viscosity_ratio": self.ratio[k]})
@@ -1229,7 +1392,7 @@ def _flow_answers(c: _Chunk, ctx: _Context, st: _State, sauter, packing_notes, r
     for name in pd.unique(c.droplet_relation[asked & f.has_droplets]):
         _check_params(rows, asked & f.has_droplets & (c.droplet_relation == name),
                       get_model(name, kind="emulsion"), {"viscosity_ratio": f.ratio})
-    _check_params(rows, asked & (c.liquid != "newtonian"), newtonian,
+    _check_params(rows, asked & np.isin(c.liquid, ["water", "glycerol-water"]), newtonian,
                   {"viscosity_Pa_s": st.eta_l})
 
     def call(part):
@@ -1326,7 +1489,8 @@ def _settling(c: _Chunk, st: _State, ctx: _Context) -> np.ndarray:
         if rows.size == 0:
             continue
         args = (d90[rows], c.density[rows, j], c.liquid_density[rows], st.eta_l[rows],
-                phi_total[rows])
+                phi_total[rows], np.nan_to_num(c.law_params.get("yield_stress_Pa",
+                                                                np.zeros(n))[rows]))
         try:
             parts = [(rows, stability.storage_reasons(*args, temperature_K=c.temperature_K[rows]))]
         except (LoadlineError, ValueError):

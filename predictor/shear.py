@@ -630,9 +630,11 @@ def _grid(model, rates, sig_jam, points_per_decade):
     """Stress grid of each row (n, G): log-spaced, dense just below the jamming stress."""
     sig_lo, sig_hi = _grid_bounds(model, rates, sig_jam)
     decades = np.maximum(np.log10(sig_hi / sig_lo), 1.0)
-    n = int(np.clip(points_per_decade * float(np.max(decades)), 200, 20000))
+    # Each row its own number of points (as if alone); shorter rows repeat their last one.
+    n = np.clip(points_per_decade * decades, 200, 20000).astype(int)
     jam = np.isfinite(sig_jam)
-    t = np.where(jam, np.arange(n) / n, np.linspace(0.0, 1.0, n))
+    j = np.arange(int(np.max(n)))
+    t = np.where(jam, np.minimum(j, n - 1) / n, np.minimum(j / np.maximum(n - 1, 1), 1.0))
     top = np.where(jam, sig_jam, sig_hi)
     grid = np.exp(np.log(sig_lo) + t * (np.log(top) - np.log(sig_lo)))
     near = np.where(jam, np.where(jam, sig_jam, 1.0) * (1.0 - np.logspace(-1, -13, 200)),

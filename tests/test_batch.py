@@ -397,3 +397,89 @@ def test_row_far_wider_than_the_header_is_counted_and_the_run_goes_on(tmp_path):
     assert frame["error"].iloc[3].startswith(
         f"row 5 has {2 + batch.EXTRA_CELLS + 20} cells, the header has 6")
     assert frame["candidate"].iloc[6] == "Q,uoted"
+
+
+# -- non-Newtonian liquids inline, thickening, droplets: one engine for rows and predict -----
+
+LAW_CELLS = {   # invented parameter values, inside the registry bounds
+    "power-law": {"liquid consistency [Pa*s]": "0.4", "liquid flow index [-]": "0.6"},
+    "carreau-yasuda": {"liquid zero shear viscosity [Pa*s]": "0.8",
+                       "liquid infinite shear viscosity [mPa*s]": "4",
+                       "liquid time constant [s]": "0.5", "liquid flow index [-]": "0.35",
+                       "liquid yasuda exponent [-]": "2"},
+    "cross": {"liquid zero shear viscosity [Pa*s]": "1.5",
+              "liquid infinite shear viscosity [mPa*s]": "10",
+              "liquid time constant [s]": "0.2", "liquid cross exponent [-]": "0.8"},
+    "bingham": {"liquid yield stress [Pa]": "3", "liquid plastic viscosity [Pa*s]": "0.05"},
+    "herschel-bulkley": {"liquid yield stress [Pa]": "5", "liquid consistency [Pa*s]": "0.7",
+                         "liquid flow index [-]": "0.5"},
+    "casson": {"liquid yield stress [Pa]": "2", "liquid casson viscosity [Pa*s]": "0.03"},
+    "newtonian": {"liquid viscosity [mPa*s]": "50"},
+}
+
+
+def _law_candidates(n: int, seed: int) -> pd.DataFrame:
+    rng = np.random.default_rng(seed)
+    laws = list(LAW_CELLS) + ["water", "glycerol-water"]
+    rows = []
+    for i in range(n):
+        law = laws[i % len(laws)]
+        row = {"candidate": f"invented {i}", "liquid law": "" if law in ("water", "glycerol-water")
+               else law, "liquid": law if law in ("water", "glycerol-water") else "",
+               "liquid density [kg/m3]": "1010", "glycerol [wt%]": "40",
+               "temperature [degC]": f"{rng.uniform(10, 50):.3f}",
+               "liquid activation temperature [K]": "" if i % 3 else "2500",
+               "thickening onset [Pa]": f"{10 ** rng.uniform(0, 2):.4g}" if i % 2 else "",
+               "ingredient 1": "filler", "ingredient 1 loading [vol%]":
+                   f"{rng.uniform(20, 58):.4f}" if i % 2 else f"{rng.uniform(5, 45):.4f}",
+               "ingredient 1 density [kg/m3]": "2600",
+               "ingredient 1 d50 [um]": f"{10 ** rng.uniform(-0.7, 1):.4g}",
+               "ingredient 1 spread [-]": "1.4",
+               "ingredient 2": "oil" if i % 4 == 1 else "",
+               "ingredient 2 kind": "droplet",
+               "ingredient 2 loading [vol%]": "8" if i % 4 == 1 else "",
+               "ingredient 2 density [kg/m3]": "900", "ingredient 2 d50 [um]": "3",
+               "window 1 shear rate [1/s]": f"{10 ** rng.uniform(-2, 1):.4g}",
+               "window 1 max viscosity [Pa*s]": f"{10 ** rng.uniform(0, 1.5):.4g}",
+               "window 2 shear rate [1/s]": f"{10 ** rng.uniform(1, 4):.4g}",
+               "window 2 max viscosity [Pa*s]": f"{10 ** rng.uniform(-1, 0.5):.4g}"}
+        for name in set().union(*LAW_CELLS.values()):
+            row[name] = LAW_CELLS.get(law, {}).get(name, "")
+        rows.append(row)
+    return pd.DataFrame(rows)
+
+
+def test_rows_with_every_liquid_law_thickening_and_droplets_equal_predict_and_max_loading():
+    # Outside check as above: each row against formulation.predict and max_loading of the
+    # same formulation, now with inline non-Newtonian liquids (Arrhenius-shifted in some
+    # rows), frictional thickening and droplets.
+    table = _law_candidates(36, seed=11)
+    with _quiet():
+        result = batch.screen(table)
+    assert (result["status"] == "ok").all(), result.loc[result["status"] != "ok", "error"]
+    laws = set()
+    for i, form in enumerate(_formulations(table)):
+        row = result.iloc[i]
+        laws.add(form.liquid.law if not form.liquid.preset else form.liquid.preset)
+        rates = [float(row[f"window {j} shear rate [1/s]"]) for j in (1, 2)]
+        with _quiet():
+            curve = fm.predict(form, rates)
+        for j in (1, 2):
+            eta = curve["viscosity_Pa_s"].iloc[j - 1]
+            assert row[f"window {j} viscosity [Pa*s]"] == pytest.approx(eta, rel=1e-9), i
+            assert row[f"window {j} regime"] == curve["regime"].iloc[j - 1]
+            limit = float(row[f"window {j} max viscosity [Pa*s]"])
+            with _quiet():
+                phi = fm.max_loading(form, limit, rates[j - 1])
+            assert row[f"window {j} max solids [vol%]"] == pytest.approx(100 * phi, abs=1e-7)
+    assert laws == set(LAW_CELLS) | {"water", "glycerol-water"}
+    assert any(f.thickening_onset_stress_Pa for f in _formulations(table))
+
+
+def test_a_bad_liquid_parameter_is_an_error_of_its_row_only():
+    table = _law_candidates(9, seed=3)
+    table.loc[0, "liquid flow index [-]"] = "7"        # power law: outside its bounds
+    with _quiet():
+        result = batch.screen(table)
+    assert result["status"].tolist().count("error") == 1
+    assert "flow_index" in result.loc[0, "error"] and "7" in result.loc[0, "error"]
