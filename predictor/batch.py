@@ -68,6 +68,7 @@ bisection vectorised over rows and windows (`engine.max_loading`, the solver of
 
 from __future__ import annotations
 
+import dataclasses
 import io
 import math
 import pathlib
@@ -221,11 +222,10 @@ def parse_header(headers) -> Layout:
     ingredients = tuple(sorted({c.index for c in cols if c.field.startswith("ingredient")}))
     windows = tuple(sorted({c.index for c in cols if c.field.startswith("window")}))
     layout = Layout(cols, ingredients, windows, tuple(unrecognised))
-    if layout.get("base scenario") is not None:
-        return layout     # the base scenario gives what the columns leave out
+    based = layout.get("base scenario") is not None   # the base gives what columns leave out
     for k in ingredients:
         for needed in ("loading", "density"):
-            if layout.get(f"ingredient {needed}", k) is None:
+            if layout.get(f"ingredient {needed}", k) is None and not based:
                 raise InputRangeError(f"column 'ingredient {k} {needed}'", "missing",
                                       f"a column 'ingredient {k} {needed} [unit]' for "
                                       f"ingredient {k}")
@@ -233,7 +233,7 @@ def parse_header(headers) -> Layout:
         if layout.get("window shear rate", j) is None:
             raise InputRangeError(f"column 'window {j} shear rate'", "missing",
                                   f"a column 'window {j} shear rate [1/s]' for window {j}")
-    if not ingredients:
+    if not ingredients and not based:
         raise InputRangeError("columns", "no ingredient", "at least the columns "
                               "'ingredient 1 loading [wt%]' and 'ingredient 1 density [kg/m3]'")
     return layout
@@ -588,6 +588,166 @@ class _Context:
     base_dir: pathlib.Path
     size_cache: dict = field(default_factory=dict)
     packing_cache: dict = field(default_factory=dict)
+    base_cache: dict = field(default_factory=dict)
+
+
+# -- the base scenario column -----------------------------------------------------------------
+
+#: Prefix of the columns a base scenario adds to a chunk (cannot occur in a readable header).
+_BASE = "\x00base "
+
+
+def _read_base(ctx: _Context, name: str):
+    """The Formulation of a base scenario file beside the table, or the error naming it."""
+    if name not in ctx.base_cache:
+        from .scenario import read_scenario
+
+        try:
+            base = ctx.base_dir.resolve()
+            path = (base / name).resolve()
+            if pathlib.Path(name).is_absolute() or base not in path.parents:
+                raise InputRangeError(f"base scenario '{name}'", name,
+                                      "a *.loadline.json file in the candidate table's own "
+                                      "folder (or below it)")
+            form = read_scenario(path)
+            if form.model_params:
+                raise InputRangeError(
+                    f"base scenario '{name}'", "calibrated relation parameters "
+                    f"({', '.join(sorted(form.model_params))})",
+                    "a scenario without them (the batch has no columns for them yet)")
+            ctx.base_cache[name] = form
+        except LoadlineError as err:
+            message = str(err)
+            ctx.base_cache[name] = ScenarioError(
+                message if name in message else f"base scenario '{name}': {message}")
+    return ctx.base_cache[name]
+
+
+def _base_fields(form: formulation.Formulation, key: str, ctx: _Context) -> dict:
+    """(field, index) -> (SI value or text, dimension, basis) of a base scenario."""
+    liq = form.liquid
+    kind = liq.preset or liq.law
+    out = {("liquid", 0): (kind, "text", ""),
+           ("temperature", 0): (liq.temperature_K, "temperature", ""),
+           ("liquid density", 0): (liq.density_kg_per_m3, "density", ""),
+           ("glycerol", 0): (liq.glycerol_mass_fraction, "loading", "mass"),
+           ("liquid reference temperature", 0): (liq.reference_temperature_K, "temperature", ""),
+           ("relation", 0): (form.model, "text", ""),
+           ("droplet relation", 0): (form.droplet_model, "text", "")}
+    if liq.activation_temperature_K is not None:
+        out[("liquid activation temperature", 0)] = (liq.activation_temperature_K,
+                                                     "temperature_difference", "")
+    if not liq.preset:
+        for name, value in liq.params.items():
+            target = "liquid viscosity" if name == "viscosity_Pa_s" else f"liquid param {name}"
+            out[(target, 0)] = (float(value), "number", "")
+    if form.thickening_onset_stress_Pa is not None:
+        out[("thickening onset", 0)] = (form.thickening_onset_stress_Pa, "stress", "")
+    if form.phi_max_frictional is not None:
+        out[("phi_max frictional", 0)] = (form.phi_max_frictional, "dimensionless", "")
+    for k, ing in enumerate(form.ingredients, start=1):
+        out[("ingredient", k)] = (ing.name, "text", "")
+        out[("ingredient kind", k)] = (ing.kind, "text", "")
+        out[("ingredient loading", k)] = (ing.loading, "loading", ing.basis)
+        out[("ingredient basis", k)] = (ing.basis, "text", "")
+        out[("ingredient density", k)] = (ing.density_kg_per_m3, "density", "")
+        table = f"{_BASE}{key} #{k}"     # the base's own size distribution, by reference
+        dist = ing.distribution()
+        for spread in (None, 1.0):
+            ctx.size_cache[(table, None, spread)] = dist
+        out[("ingredient size table", k)] = (table, "text", "")
+        out[("ingredient base d50", k)] = (dist.d50_m, "length", "")
+        for name, value in (("aspect ratio", ing.aspect_ratio),
+                            ("layer", ing.layer_thickness_m), ("phi_max", ing.phi_max),
+                            ("intrinsic viscosity", ing.intrinsic_viscosity),
+                            ("droplet viscosity", ing.droplet_viscosity_Pa_s)):
+            if value is not None:
+                out[(f"ingredient {name}", k)] = (float(value), "number", "")
+    return out
+
+
+def _with_base(chunk: pd.DataFrame, ctx: _Context, row_errors):
+    """The chunk with each row's base scenario filled in where its own cells are empty.
+
+    A row's non-empty cells override the base field by field; a row that gives its own
+    d50 or size table for an ingredient replaces the base's size distribution (its own
+    spread alone keeps the base's D50). Returns the chunk to compute, the context with the
+    chunk's layout, and the row errors (a missing or malformed base names itself).
+    """
+    col = ctx.layout.get("base scenario")
+    if col is None:
+        return chunk, ctx, row_errors
+    n = len(chunk)
+    errors = (np.full(n, "", dtype=object) if row_errors is None
+              else np.asarray(row_errors, dtype=object).copy())
+    names = chunk[col.header].astype(str).str.strip().to_numpy(dtype=object)
+    work = chunk.copy()
+    columns = list(ctx.layout.columns)
+    known = {(c.field, c.index): c for c in columns}
+    for name in pd.unique(names[names != ""]):
+        rows = names == name
+        form = _read_base(ctx, name)
+        if isinstance(form, LoadlineError):
+            errors[rows & (errors == "")] = str(form)
+            continue
+        fields = _base_fields(form, name, ctx)
+        for (fname, index), (value, dimension, basis) in fields.items():
+            if fname == "ingredient base d50":
+                continue
+            have = known.get((fname, index))
+            if have is None:
+                header = f"{_BASE}{fname} {index}"
+                have = Column(header, fname, index, "text" if dimension == "text" else
+                              "number", 1.0, 0.0, basis)
+                known[(fname, index)] = have
+                columns.append(have)
+                work[header] = ""
+            cells = work[have.header].astype(str).str.strip().to_numpy(dtype=object)
+            if isinstance(value, str):
+                text = value
+            else:
+                text = repr(float((value - have.offset) / (have.scale or 1.0)))
+            empty = rows & (cells == "")
+            if fname == "ingredient basis":
+                own = known.get(("ingredient loading", index))
+                given = own is not None and own.header in chunk.columns
+                if given:     # a row's own loading keeps its column's basis
+                    own_cells = chunk[own.header].astype(str).str.strip().to_numpy(object)
+                    empty &= own_cells == ""
+            work[have.header] = np.where(empty, text, cells)
+        for k in range(1, len(form.ingredients) + 1):   # the row's own sizes replace the base's
+            own = np.zeros(n, bool)
+            for fname in ("ingredient d50", "ingredient size table"):
+                c_own = ctx.layout.get(fname, k)
+                if c_own is not None:
+                    own |= chunk[c_own.header].astype(str).str.strip().to_numpy(object) != ""
+            spread = ctx.layout.get("ingredient spread", k)
+            own_spread = (chunk[spread.header].astype(str).str.strip().to_numpy(object) != ""
+                          if spread is not None else np.zeros(n, bool))
+            table = known[("ingredient size table", k)]
+            cells = work[table.header].to_numpy(dtype=object)
+            work[table.header] = np.where(rows & (own | own_spread) & np.char.startswith(
+                cells.astype(str), _BASE), "", cells)
+            d50 = known.get(("ingredient d50", k))
+            if d50 is None:
+                d50 = Column(f"{_BASE}ingredient d50 {k}", "ingredient d50", k, "length")
+                known[("ingredient d50", k)] = d50
+                columns.append(d50)
+                work[d50.header] = ""
+            base_d50 = fields[("ingredient base d50", k)][0]
+            cells = work[d50.header].astype(str).str.strip().to_numpy(dtype=object)
+            work[d50.header] = np.where(rows & own_spread & ~own,
+                                        repr(float((base_d50 - d50.offset) / d50.scale)), cells)
+    ingredients = tuple(sorted({c.index for c in columns if c.field.startswith("ingredient")}))
+    layout = Layout(tuple(columns), ingredients, ctx.layout.windows, ctx.layout.unrecognised)
+    for k in ingredients:
+        for needed in ("loading", "density"):
+            if layout.get(f"ingredient {needed}", k) is None:
+                header = f"{_BASE}ingredient {needed} {k}"
+                columns.append(Column(header, f"ingredient {needed}", k, "number"))
+                work[header] = ""
+    layout = Layout(tuple(columns), ingredients, ctx.layout.windows, ctx.layout.unrecognised)
+    return work, dataclasses.replace(ctx, layout=layout), errors
 
 
 def _distribution(ctx: _Context, table: str, d50: float, spread: float):
@@ -1523,7 +1683,8 @@ def _settling(c: _Chunk, st: _State, ctx: _Context) -> np.ndarray:
 
 def _predict_chunk(chunk: pd.DataFrame, ctx: _Context, viscosity_unit: str,
                    row_errors: np.ndarray | None = None) -> pd.DataFrame:
-    c = _resolve(chunk, ctx, row_errors)
+    work, ctx, row_errors = _with_base(chunk, ctx, row_errors)
+    c = _resolve(work, ctx, row_errors)
     rows = c.rows
     n = rows.n
     eta_l = _liquid_viscosity(c)

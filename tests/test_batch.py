@@ -483,3 +483,81 @@ def test_a_bad_liquid_parameter_is_an_error_of_its_row_only():
         result = batch.screen(table)
     assert result["status"].tolist().count("error") == 1
     assert "flow_index" in result.loc[0, "error"] and "7" in result.loc[0, "error"]
+
+
+# -- the base scenario column ------------------------------------------------------------------
+
+
+def _paint_folder(tmp_path):
+    """The demo paint scenario (invented; Carreau-Yasuda liquid) copied beside a table."""
+    import shutil
+
+    shutil.copy(DEMO / "mineral_coating.loadline.json", tmp_path / "paint.loadline.json")
+    return tmp_path
+
+
+def test_base_scenario_rows_equal_predict_of_the_scenario_with_the_overrides(tmp_path):
+    # Outside check: each row is the saved scenario (read by predictor.scenario) with the
+    # row's cells applied by hand (dataclasses.replace), predicted by formulation.predict.
+    import dataclasses
+
+    from predictor.scenario import read_scenario
+
+    folder = _paint_folder(tmp_path)
+    base = read_scenario(folder / "paint.loadline.json")
+    table = pd.DataFrame({
+        "candidate": ["as saved", "more filler", "warm, coarse pigment", "thickening"],
+        "base scenario": ["paint.loadline.json"] * 4,
+        "ingredient 1 loading [wt%]": ["", "40", "", ""],
+        "ingredient 2 d50 [um]": ["", "", "0.6", ""],
+        "temperature [degC]": ["", "", "35", ""],
+        "thickening onset [Pa]": ["", "", "", "20"],
+        "window 1 shear rate [1/s]": ["0.1", "1", "100", "1000"],
+        "window 1 max viscosity [Pa*s]": ["20", "5", "1", "0.5"],
+    })
+    with _quiet():
+        result = batch.screen(table, base_dir=folder)
+    assert (result["status"] == "ok").all(), result["error"].tolist()
+    ings = base.ingredients
+    pigment = dataclasses.replace(ings[1], size=sizes.SizeDistribution.single(0.6e-6))
+    forms = [
+        base,
+        dataclasses.replace(base, ingredients=(dataclasses.replace(ings[0], loading=0.40),
+                                               ings[1])),
+        dataclasses.replace(base, ingredients=(ings[0], pigment),
+                            liquid=dataclasses.replace(base.liquid, temperature_K=308.15)),
+        dataclasses.replace(base, thickening_onset_stress_Pa=20.0),
+    ]
+    for i, form in enumerate(forms):
+        rate = float(table["window 1 shear rate [1/s]"][i])
+        with _quiet():
+            eta = fm.predict(form, [rate])["viscosity_Pa_s"].iloc[0]
+            phi = fm.max_loading(form, float(table["window 1 max viscosity [Pa*s]"][i]), rate)
+        assert result["window 1 viscosity [Pa*s]"].iloc[i] == pytest.approx(eta, rel=1e-9), i
+        assert result["window 1 max solids [vol%]"].iloc[i] == pytest.approx(100 * phi,
+                                                                             abs=1e-7), i
+    # Columns the base filled in are not added to the output.
+    assert not any(str(c).startswith("\x00") for c in result.columns)
+
+
+def test_missing_or_malformed_base_scenario_is_named_with_its_row(tmp_path):
+    folder = _paint_folder(tmp_path)
+    (folder / "broken.loadline.json").write_text("{not json", encoding="utf-8")
+    table = pd.DataFrame({
+        "candidate": ["good", "missing", "broken", "outside", "no base"],
+        "base scenario": ["paint.loadline.json", "nowhere.loadline.json",
+                          "broken.loadline.json", "../paint.loadline.json", ""],
+        "ingredient 1 loading [wt%]": ["", "", "", "", "20"],
+        "ingredient 1 density [kg/m3]": ["", "", "", "", "2600"],
+        "ingredient 1 d50 [um]": ["", "", "", "", "2"],
+        "window 1 shear rate [1/s]": ["10"] * 5,
+    })
+    path = folder / "table.csv"
+    table.to_csv(path, index=False)
+    with _quiet():
+        summary, result = batch.screen_file(path, keep=-1)
+    assert result["status"].tolist() == ["ok", "error", "error", "error", "ok"]
+    assert "nowhere.loadline.json" in result["error"].iloc[1]
+    assert "broken.loadline.json" in result["error"].iloc[2]
+    assert "../paint.loadline.json" in result["error"].iloc[3]
+    assert [line for line, _, _ in summary.first_errors] == [3, 4, 5]
