@@ -80,7 +80,7 @@ from dataclasses import dataclass, field
 import numpy as np
 import pandas as pd
 
-from . import composition, engine, formulation, shear, sizes, suspension
+from . import composition, engine, formulation, packing, shear, sizes, suspension
 from .errors import InputRangeError, LoadlineError, ScenarioError, UnitError, ValidityWarning
 from .labdata import decimal_point, decode_text, looks_like_data, read_bytes
 from .registry import get_model
@@ -1242,50 +1242,98 @@ def _check_params(rows: _Rows, mask, spec, values: dict) -> None:
 
 
 def _packing(c: _Chunk, ctx: _Context, phi_eff: np.ndarray) -> tuple:
-    """phi_max, intrinsic viscosity and the packing notes per row: `formulation.mixture` once
-    per distinct blend (its validity warnings are kept as the notes)."""
+    """phi_max, intrinsic viscosity and the packing notes per row, as `formulation.mixture`.
+
+    Rows are grouped by their powders (size distributions, shapes, given packing limits);
+    the shares of the powders may differ in every row. Per group, each powder's shape
+    factor, intrinsic viscosity and size distribution are resolved once, and the packing
+    limits of all the group's blends come from one vectorised call,
+    `packing.max_packing_rows` (the estimate `packing.max_packing` gives each blend). The
+    validity warnings are kept as the notes.
+    """
     n = c.rows.n
     phi_max = np.full(n, np.nan)
     intrinsic = np.full(n, np.nan)
     notes = np.full(n, "", dtype=object)
-    ok = c.rows.ok
-    solid_eff = np.where(c.present & c.is_solid, np.nan_to_num(phi_eff), 0.0)
-    total = solid_eff.sum(axis=1, keepdims=True)
-    shares = np.where(total > 0, solid_eff / np.where(total > 0, total, 1.0), -1.0)
+    solid = c.present & c.is_solid
+    use = c.rows.ok & solid.any(axis=1)
+    without = c.rows.ok & ~solid.any(axis=1)       # as `formulation.mixture` without solids
+    phi_max[without], intrinsic[without] = formulation.RANDOM_CLOSE_SPHERES, 2.5
     keys = {}
     for j in range(c.present.shape[1]):
-        solid = c.present[:, j] & c.is_solid[:, j]
-        keys[f"t{j}"] = np.where(solid, c.table[:, j], "")
+        on = solid[:, j]
+        keys[f"p{j}"] = on
+        keys[f"t{j}"] = np.where(on, c.table[:, j], "")
         for name, arr in (("d", c.d50), ("s", c.spread), ("a", c.aspect), ("m", c.phi_max_given),
                           ("i", c.intrinsic_given)):
-            keys[f"{name}{j}"] = np.where(solid, arr[:, j], -1.0)
-        # shares rounded to 12 digits: rows differing only by float noise share one call
-        keys[f"w{j}"] = np.round(shares[:, j], 12)
-    frame = pd.DataFrame(keys)[ok]
+            keys[f"{name}{j}"] = np.where(on, arr[:, j], -1.0)
+    frame = pd.DataFrame(keys)[use]
     if frame.empty:
         return phi_max, intrinsic, notes
-    where = np.flatnonzero(ok)
+    where = np.flatnonzero(use)
+    solid_eff = np.where(solid, np.nan_to_num(phi_eff), 0.0)
     for key, pos in _groups(frame):
         rows_u = where[pos]
-        if key in ctx.packing_cache:
-            result = ctx.packing_cache[key]
-        else:
-            try:
-                with warnings_module.catch_warnings(record=True) as caught:
-                    warnings_module.simplefilter("always")
-                    mix = formulation.mixture(candidate_formulation(c, int(rows_u[0]), ctx))
-                text = "; ".join(dict.fromkeys(str(w.message) for w in caught))
-                result = (mix.phi_max, mix.intrinsic_viscosity, text)
-            except LoadlineError as err:
-                result = err
-            if len(ctx.packing_cache) < 100_000:
-                ctx.packing_cache[key] = result
-        if isinstance(result, LoadlineError):
+        cols = [j for j in range(c.present.shape[1]) if solid[rows_u[0], j]]
+        if key not in ctx.packing_cache:
+            ctx.packing_cache[key] = _powders(c, ctx, int(rows_u[0]), cols)
+        group = ctx.packing_cache[key]
+        if isinstance(group, LoadlineError):
             for i in rows_u:
-                _flag_row(c.rows, int(i), str(result))
+                _flag_row(c.rows, int(i), str(group))
+            continue
+        eff = solid_eff[np.ix_(rows_u, cols)]
+        total = eff.sum(axis=1, keepdims=True)
+        weights = np.where(total > 0, eff / np.where(total > 0, total, 1.0), 1.0 / len(cols))
+        row_notes = np.full(len(rows_u), "", dtype=object)
+        if group["own"] is not None:
+            phi_max[rows_u] = weights @ group["own"]
         else:
-            phi_max[rows_u], intrinsic[rows_u], notes[rows_u] = result
+            with warnings_module.catch_warnings():
+                warnings_module.simplefilter("ignore", ValidityWarning)
+                value, row_notes = packing.max_packing_rows(group["diameters"],
+                                                            weights @ group["fractions"])
+            phi_max[rows_u] = (weights @ group["shape"]) * value
+        eta = group["intrinsic"]
+        intrinsic[rows_u] = np.clip(weights @ eta, eta.min(), eta.max())
+        notes[rows_u] = _join([np.full(len(rows_u), group["notes"], dtype=object), row_notes])
     return phi_max, intrinsic, notes
+
+
+def _powders(c: _Chunk, ctx: _Context, i: int, cols: list[int]):
+    """What `formulation.mixture` resolves once per powder, for the solids `cols` of row i:
+    shape factors, intrinsic viscosities, own packing limits (when any is given), the size
+    distributions on one class grid, and the warnings given on the way; or the error."""
+    try:
+        with warnings_module.catch_warnings(record=True) as caught:
+            warnings_module.simplefilter("always")
+            dists = []
+            for j in cols:
+                dist = _distribution(ctx, c.table[i, j], float(c.d50[i, j]),
+                                     float(c.spread[i, j]))
+                if isinstance(dist, LoadlineError):
+                    raise dist
+                dists.append(dist)
+            sphere = packing.phi_max_for_aspect_ratio(1.0)
+            shape = np.array([packing.phi_max_for_aspect_ratio(float(c.aspect[i, j])) / sphere
+                              for j in cols])
+            eta = np.array([float(c.intrinsic_given[i, j]) if not math.isnan(
+                c.intrinsic_given[i, j]) else packing.intrinsic_viscosity_for_aspect_ratio(
+                float(c.aspect[i, j])) for j in cols])
+            own = None
+            if any(not math.isnan(c.phi_max_given[i, j]) for j in cols):
+                own = np.array([float(c.phi_max_given[i, j]) if not math.isnan(
+                    c.phi_max_given[i, j]) else shape[m] * packing.max_packing(
+                    dists[m].diameters_m, dists[m].fractions) for m, j in enumerate(cols)])
+            grid = np.unique(np.concatenate([x.diameters_m for x in dists]))
+            fractions = np.zeros((len(dists), grid.size))
+            for m, x in enumerate(dists):
+                fractions[m, np.searchsorted(grid, x.diameters_m)] = x.fractions
+        text = "; ".join(dict.fromkeys(str(w.message) for w in caught))
+        return {"shape": shape, "intrinsic": eta, "own": own, "diameters": grid,
+                "fractions": fractions, "notes": text}
+    except LoadlineError as err:
+        return err
 
 
 def _by_relation(names: np.ndarray, kind: str, call: Callable) -> np.ndarray:

@@ -250,9 +250,13 @@ def _rates(shear_rate_1_per_s, n: int) -> np.ndarray:
 
 def _groups(*labels: np.ndarray):
     """Row indices of each distinct combination of the label arrays."""
-    keys = np.array(["\x00".join(map(str, t)) for t in zip(*labels, strict=True)])
-    for key in np.unique(keys):
-        yield np.flatnonzero(keys == key)
+    codes = np.zeros(len(labels[0]), dtype=np.int64)
+    for lab in labels:
+        uniq, inverse = np.unique(np.asarray(lab).astype(str), return_inverse=True)
+        codes = codes * max(len(uniq), 1) + inverse.ravel()
+    order = np.argsort(codes, kind="stable")
+    cuts = np.flatnonzero(np.diff(codes[order])) + 1
+    yield from (part for part in np.split(order, cuts) if part.size)
 
 
 def _params(params: dict, rows: np.ndarray, spec) -> dict:

@@ -146,13 +146,25 @@ def volume_distribution(diameters_m, fractions, basis: str = "volume"):
 
 def _number_stats(d, f):
     """Number fractions, number-mean diameter, polydispersity delta and skewness S."""
+    n, mean, delta, skew = _number_stats_rows(d, f[None, :])
+    return n[0], float(mean[0, 0]), float(delta[0]), float(skew[0])
+
+
+def _number_stats_rows(d, f):
+    """`_number_stats` of many distributions on one class grid: f (m, K), d (K,).
+
+    Returns number fractions (m, K), mean (m, 1), delta (m,) and skewness (m,); classes
+    with zero fraction count for nothing.
+    """
     n = f / (d / d.max()) ** 3
-    n = n / n.sum()
-    mean = np.sum(n * d)
+    n = n / n.sum(axis=-1, keepdims=True)
+    mean = np.sum(n * d, axis=-1, keepdims=True)
     x = d / mean - 1.0
-    var = float(np.sum(n * x * x))
-    delta = math.sqrt(max(var, 0.0))
-    skew = float(np.sum(n * x**3) / var**1.5) if var > 1e-24 else 0.0
+    var = np.sum(n * x * x, axis=-1)
+    delta = np.sqrt(np.maximum(var, 0.0))
+    with np.errstate(divide="ignore", invalid="ignore"):
+        skew = np.where(var > 1e-24, np.sum(n * x**3, axis=-1)
+                        / np.where(var > 1e-24, var, 1.0) ** 1.5, 0.0)
     return n, mean, delta, skew
 
 
@@ -238,15 +250,21 @@ def ouchiyama_tanaka(diameters_m, fractions, phi_mono=0.64):
 
 
 def _ouchiyama_tanaka(d, f, phi0):
-    n, mean, _, _ = _number_stats(d, f)
+    return float(_ouchiyama_tanaka_rows(d, f[None, :], phi0)[0])
+
+
+def _ouchiyama_tanaka_rows(d, f, phi0, stats=None):
+    """`_ouchiyama_tanaka` of many distributions on one class grid: f (m, K) -> (m,)."""
+    n, mean, _, _ = stats or _number_stats_rows(d, f)
     x = d / mean  # scale-free
     above = x > 1.0
     cube_above = np.where(above, (x - 1.0) ** 3, 0.0)
     beta = 1.0 + (4.0 / 13.0) * (8.0 * phi0 - 1.0) * (
-        np.sum((x + 1.0) ** 2 * (1.0 - 0.375 / (x + 1.0)) * n)
-        / np.sum((x**3 - cube_above) * n))
-    denominator = np.sum(cube_above * n) + np.sum(((x + 1.0) ** 3 - cube_above) * n) / beta
-    return float(np.sum(x**3 * n) / denominator)
+        np.sum((x + 1.0) ** 2 * (1.0 - 0.375 / (x + 1.0)) * n, axis=-1)
+        / np.sum((x**3 - cube_above) * n, axis=-1))
+    denominator = (np.sum(cube_above * n, axis=-1)
+                   + np.sum(((x + 1.0) ** 3 - cube_above) * n, axis=-1) / beta)
+    return np.sum(x**3 * n, axis=-1) / denominator
 
 
 @model("packing", PHI_MONO,
@@ -480,11 +498,19 @@ def furnas(diameters_m, fractions, phi_mono=0.64):
 
 
 def _furnas(d, f, phi0):
-    y = f[::-1]  # coarse to fine
-    coarser = np.concatenate([[0.0], np.cumsum(y)[:-1]])
+    return float(_furnas_rows(d, f[None, :], phi0)[0])
+
+
+def _furnas_rows(d, f, phi0):
+    """`_furnas` of many distributions on one class grid: f (m, K) -> (m,); empty classes
+    bound nothing."""
+    y = f[:, ::-1]  # coarse to fine
+    coarser = np.concatenate([np.zeros((y.shape[0], 1)), np.cumsum(y, axis=-1)[:, :-1]],
+                             axis=-1)
     finer = 1.0 - coarser - y
-    gamma = phi0 / (1.0 - (1.0 - phi0) * coarser - finer)
-    return float(min(np.min(gamma), 1.0))
+    with np.errstate(divide="ignore", invalid="ignore"):
+        gamma = np.where(y > 0, phi0 / (1.0 - (1.0 - phi0) * coarser - finer), np.inf)
+    return np.minimum(np.min(gamma, axis=-1), 1.0)
 
 
 def _furnas_message(d, f) -> str | None:
@@ -1020,8 +1046,8 @@ FIT_SKEW_LIMIT = 6.5
 
 def _fit_features(delta, skew):
     """Terms of the correction of `simulation_fit`; all vanish for a single size."""
-    x = min(delta, FIT_DELTA_LIMIT)
-    return [x**2, min(skew, FIT_SKEW_LIMIT) * x**2, x**3]
+    x = np.minimum(delta, FIT_DELTA_LIMIT)
+    return [x**2, np.minimum(skew, FIT_SKEW_LIMIT) * x**2, x**3]
 
 
 #: Coefficients of `_fit_features`, least squares on predictor/data/packing_calibration.json
@@ -1097,19 +1123,29 @@ def simulation_fit(diameters_m, fractions, phi_mono=0.64):
 
 
 def _simulation_fit(d, f, phi0):
-    _, _, delta, skew = _number_stats(d, f)
-    base = _ouchiyama_tanaka(d, f, phi0)
+    return float(_simulation_fit_rows(d, f[None, :], phi0)[0])
+
+
+def _simulation_fit_rows(d, f, phi0):
+    """`_simulation_fit` of many distributions on one class grid: f (m, K) -> (m,)."""
+    stats = _number_stats_rows(d, f)
+    _, _, delta, skew = stats
+    base = _ouchiyama_tanaka_rows(d, f, phi0, stats)
     correction = sum(c * t for c, t in zip(SIMULATION_FIT_COEFFICIENTS,
                                            _fit_features(delta, skew), strict=True))
     # Interaction between classes only lowers the packing: never above the Furnas bound.
     # Random close packing of spheres rises with polydispersity (Desmond & Weeks 2014;
     # Farr & Groot 2009): never below the single-size value either (the fitted correction
     # can dip by ~1e-5 for a trace of fines).
-    return float(max(min(base + phi0 / PHI_RCP * correction, _furnas(d, f, phi0)), phi0))
+    return np.maximum(np.minimum(base + phi0 / PHI_RCP * correction,
+                                 _furnas_rows(d, f, phi0)), phi0)
 
 
 def _simulation_fit_message(d, f) -> str | None:
-    _, _, delta, _ = _number_stats(d, f)
+    return _calibration_note(_number_stats(d, f)[2])
+
+
+def _calibration_note(delta: float) -> str | None:
     if delta > 0.8:
         return (f"simulation-fit is used at polydispersity {delta:.3g}, beyond its calibration "
                 "(up to about 0.7)")
@@ -1176,6 +1212,58 @@ def max_packing(diameters_m, fractions=None, basis: str = "volume", method: str 
     if message:
         _warn(message)
     return float(spec.func(d, f, **values))
+
+
+@guarded
+def max_packing_rows(diameters_m, fractions, phi_mono=0.64):
+    """`max_packing` (default method) of many distributions sharing one class grid.
+
+    For a table of blends (one row each) of the same powders in different shares: the
+    simulation-fit estimate of every row at once, with the validity message
+    `max_packing` would warn.
+
+    Parameters
+    ----------
+    diameters_m : array_like
+        Class sizes (K,), ascending. [m]
+    fractions : array_like
+        Volume fractions (m, K) of the solids in each class, one row per distribution; each
+        row is normalised to total 1 (an all-zero row is refused). [-]
+    phi_mono : float, optional
+        Packing fraction of equal spheres in the reference state. [-]
+
+    Returns
+    -------
+    phi_max : numpy.ndarray
+        (m,) maximum packing fraction of each row. [-]
+    messages : numpy.ndarray
+        (m,) the validity message of each row ("" where none).
+
+    Examples
+    --------
+    Equal spheres, then equal volumes of 1 and 3 um spheres (`simulation_fit` of each):
+
+    >>> phi, notes = max_packing_rows([1e-6, 3e-6], [[1.0, 0.0], [0.5, 0.5]])
+    >>> phi.round(4).tolist(), round(simulation_fit([1e-6, 3e-6], [0.5, 0.5]), 4)
+    ([0.64, 0.7028], 0.7028)
+    """
+    d = np.atleast_1d(positive(diameters_m, "diameters_m")).ravel()
+    if np.any(np.diff(d) <= 0):
+        raise InputRangeError("diameters_m", d[1:][np.diff(d) <= 0][0], "ascending sizes")
+    f = np.atleast_2d(in_range(fractions, "fractions", 0.0, np.inf))
+    if f.ndim != 2 or f.shape[1] != d.size:
+        raise InputRangeError("fractions", f"an array of shape {f.shape}",
+                              f"(m, {d.size}): one fraction per class in each row")
+    total = f.sum(axis=1, keepdims=True)
+    if np.any(total <= 0):
+        raise InputRangeError("sum of fractions", 0.0, "a total > 0 in every row")
+    phi0 = _scalar(phi_mono, "phi_mono", *PHI_MONO.bounds)
+    f = f / total
+    phi = _simulation_fit_rows(d, f, phi0)
+    _, _, delta, _ = _number_stats_rows(d, f)
+    messages = np.array([_calibration_note(x) or "" if x > 0.8 else "" for x in delta],
+                        dtype=object)
+    return phi, messages
 
 
 @dataclass(frozen=True)
