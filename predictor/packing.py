@@ -156,14 +156,16 @@ def _number_stats_rows(d, f):
     Returns number fractions (m, K), mean (m, 1), delta (m,) and skewness (m,); classes
     with zero fraction count for nothing.
     """
-    n = f / (d / d.max()) ** 3
-    n = n / n.sum(axis=-1, keepdims=True)
-    mean = np.sum(n * d, axis=-1, keepdims=True)
+    scale = d.max() / d
+    n = f * (scale * scale * scale)
+    n /= n.sum(axis=-1, keepdims=True)
+    mean = np.einsum("ik,k->i", n, d)[:, None]
     x = d / mean - 1.0
-    var = np.sum(n * x * x, axis=-1)
+    nx2 = n * x * x
+    var = nx2.sum(axis=-1)
     delta = np.sqrt(np.maximum(var, 0.0))
     with np.errstate(divide="ignore", invalid="ignore"):
-        skew = np.where(var > 1e-24, np.sum(n * x**3, axis=-1)
+        skew = np.where(var > 1e-24, np.einsum("ik,ik->i", nx2, x)
                         / np.where(var > 1e-24, var, 1.0) ** 1.5, 0.0)
     return n, mean, delta, skew
 
@@ -257,14 +259,19 @@ def _ouchiyama_tanaka_rows(d, f, phi0, stats=None):
     """`_ouchiyama_tanaka` of many distributions on one class grid: f (m, K) -> (m,)."""
     n, mean, _, _ = stats or _number_stats_rows(d, f)
     x = d / mean  # scale-free
-    above = x > 1.0
-    cube_above = np.where(above, (x - 1.0) ** 3, 0.0)
+    xm = np.maximum(x - 1.0, 0.0)          # (x - 1) H(x - 1)
+    cube_above = xm * xm * xm
+    xp = x + 1.0
+    x3 = x * x * x
+
+    def dot(a):
+        return np.einsum("ik,ik->i", a, n)
+
+    above = dot(cube_above)
     beta = 1.0 + (4.0 / 13.0) * (8.0 * phi0 - 1.0) * (
-        np.sum((x + 1.0) ** 2 * (1.0 - 0.375 / (x + 1.0)) * n, axis=-1)
-        / np.sum((x**3 - cube_above) * n, axis=-1))
-    denominator = (np.sum(cube_above * n, axis=-1)
-                   + np.sum(((x + 1.0) ** 3 - cube_above) * n, axis=-1) / beta)
-    return np.sum(x**3 * n, axis=-1) / denominator
+        dot(xp * (xp - 0.375)) / (dot(x3) - above))
+    denominator = above + (dot(xp * xp * xp) - above) / beta
+    return dot(x3) / denominator
 
 
 @model("packing", PHI_MONO,
