@@ -21,9 +21,10 @@ import numpy as np
 
 from ._checks import guarded, in_range, positive
 from .errors import InputRangeError
-from .packing import reference_phi, volume_distribution
+from .packing import DEFAULT_METHOD, max_packing_rows, reference_phi, volume_distribution
 from .registry import get_model
 from .sizes import SizeDistribution
+from .suspension import krieger_dougherty
 
 
 @dataclass(frozen=True)
@@ -72,10 +73,11 @@ def share_grid(n_powders: int, n_points: int = 101) -> np.ndarray:
 
 
 def _krieger_dougherty(phi, phi_max, intrinsic_viscosity):
-    x = phi / phi_max
-    with np.errstate(divide="ignore", invalid="ignore"):
-        return np.where(x < 1.0, np.clip(1.0 - x, 0.0, None)
-                        ** (-intrinsic_viscosity * phi_max), np.inf)
+    """`suspension.krieger_dougherty`, ``inf`` where phi is past 1 (no room left)."""
+    phi = np.asarray(phi, dtype=float)
+    inside = np.isfinite(phi) & (phi <= 1.0)
+    eta = krieger_dougherty(np.where(inside, phi, 0.0), phi_max, intrinsic_viscosity)
+    return np.where(inside, eta, np.inf)
 
 
 @guarded
@@ -199,10 +201,13 @@ def optimise_blend(distributions, densities_kg_per_m3=None, phi_total: float | N
     for k, x in enumerate(dists):
         table[k, np.searchsorted(union, x.diameters_m)] = x.fractions
     mixed = grid @ table
-    phi_max = np.empty(grid.shape[0])
-    for row in range(grid.shape[0]):
-        d, f = volume_distribution(union, mixed[row])
-        phi_max[row] = spec.func(d, f, **values)
+    if spec.name == DEFAULT_METHOD:     # every blend at once
+        phi_max = max_packing_rows(union, mixed, values["phi_mono"])[0]
+    else:
+        phi_max = np.empty(grid.shape[0])
+        for row in range(grid.shape[0]):
+            d, f = volume_distribution(union, mixed[row])
+            phi_max[row] = spec.func(d, f, **values)
     # Interaction between powders only lowers the packing: cap by the no-interaction
     # (Furnas) bound with each powder packing at its own phi_max, coarse powders first.
     own = np.array([spec.func(x.diameters_m, x.fractions, **values) for x in dists])
