@@ -19,8 +19,26 @@ default shown. ``k`` numbers the ingredients (1, 2, ...) and ``j`` the target wi
 column                                  meaning
 ======================================  ======================================================
 ``candidate``                           name of the row (default: its row number)
-``liquid``                              ``water`` (default), ``glycerol-water`` or ``newtonian``
+``base scenario``                       a ``*.loadline.json`` (path relative to the table, in
+                                        its folder); the row's other cells override it field
+                                        by field (see below)
+``liquid``                              ``water`` (default), ``glycerol-water``, ``newtonian``
+                                        or a registry liquid law
+``liquid law``                          a registry liquid law (``carreau-yasuda``, ``cross``,
+                                        ``power-law``, ``bingham``, ``herschel-bulkley``,
+                                        ``casson``, ``newtonian``); replaces ``liquid``
+``liquid <parameter> [unit]``           a parameter of the liquid law, named after the
+                                        registry parameter without its unit suffix
+                                        (``liquid zero shear viscosity [Pa*s]``,
+                                        ``liquid time constant [s]``, ``liquid flow index [-]``,
+                                        ``liquid yield stress [Pa]``, ...) or by the registry
+                                        name itself; empty cells take the registry default
 ``liquid viscosity [Pa*s]``             viscosity of a ``newtonian`` liquid
+``liquid activation temperature [K]``   Arrhenius shift of a law's viscosities and time
+                                        constants (empty: none)
+``liquid reference temperature [degC]`` temperature of the law's parameters (default 25 degC)
+``thickening onset [Pa]``               onset stress of frictional thickening (empty: none)
+``phi_max frictional [-]``              frictional packing limit (default 0.58/0.64 phi_max)
 ``temperature [degC]``                  default 25 degC
 ``liquid density [kg/m3]``              default 997 kg/m3 for water; required otherwise
 ``glycerol [wt%]``                      glycerol share of a ``glycerol-water`` liquid
@@ -40,7 +58,9 @@ column                                  meaning
 ``ingredient k aspect ratio [-]``       default 1 (spheres)
 ``ingredient k layer [nm]``             adsorbed-layer thickness, default 0
 ``ingredient k phi_max [-]``            measured packing limit, replaces the estimate
+``ingredient k intrinsic viscosity [-]`` replaces the estimate from the aspect ratio
 ``ingredient k droplet viscosity [Pa*s]`` default: the liquid's viscosity
+``ingredient k basis``                  ``mass`` or ``volume``: overrides the loading column's
 ``window j``                            name of the window (e.g. ``pumping``)
 ``window j shear rate [1/s]``           shear rate of the window (required for a window)
 ``window j min viscosity [Pa*s]``       lower limit (optional)
@@ -49,6 +69,16 @@ column                                  meaning
 
 Columns the table has beyond these are passed through unchanged; a column whose name starts
 like one of ours (``ingredient``, ``window``, ``liquid``) but is not recognised is reported.
+
+With a ``base scenario`` column a table needs only the columns that vary: the scenario gives
+the liquid (law, parameters, temperatures, density), the relations, thickening and each
+ingredient (name, kind, loading and its basis, density, size distribution, shape, layer,
+packing limit, intrinsic and droplet viscosity); a non-empty cell of the row replaces the
+field. A row's own ``ingredient k d50`` or ``size table`` replaces the base's size
+distribution; its ``spread`` alone makes a lognormal around the base's D50. A missing,
+unreadable or malformed base scenario, or one outside the table's folder, is the error of
+each row naming it; rows with an empty ``base scenario`` cell read as without the column.
+A base scenario with calibrated relation parameters is refused (no columns for them yet).
 
 Output columns, appended to the input columns: ``status`` (``ok`` / ``error``), ``error``,
 ``phi solids [-]`` (effective, with adsorbed layers), ``phi droplets [-]``, ``phi_max [-]``,
