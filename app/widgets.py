@@ -146,6 +146,11 @@ def _open_demo() -> None:
     path = state.demo_files().get(st.session_state.get("demo_choice"))
     if path is None:
         return
+    open_demo_file(path)
+
+
+def open_demo_file(path) -> None:
+    """Open a demo scenario file as the whole scenario (a callback: sidebar and pages)."""
     try:
         state.apply_formulation(sc.read_scenario(path), source=path.name)
     except predictor.LoadlineError as err:

@@ -15,6 +15,12 @@ state.init()
 ss = st.session_state
 JAMMED = {"mason": "Mason et al.", "princen-kiss": "Princen & Kiss"}
 BRANCH_NAMES = {"direct": "as designed", "inverted": "inverted"}
+CREAM_DEMO = "hand_cream.loadline.json"
+
+
+def _open_cream() -> None:
+    widgets.open_demo_file(state.DEMO_DIR / CREAM_DEMO)
+    widgets.request_full_run()          # the sidebar shows the new scenario
 
 
 def controls(drops: list[dict]) -> None:
@@ -61,6 +67,8 @@ def body() -> None:
         st.info("This scenario has no droplet ingredient. Add one in the sidebar (kind: "
                 "Droplets) to explore phase ratios, or open the hand-cream demo.",
                 icon=":material/info:")
+        st.button("Open the hand-cream demo (invented)", key="drop_open_cream",
+                  on_click=_open_cream, icon=":material/science:")
         return
     metrics = st.container()
     left, right = st.columns([1, 3], gap="large")

@@ -83,6 +83,15 @@ def test_scenario_without_droplets_says_so():
     assert "no droplet ingredient" in messages(at)
 
 
+def test_scenario_without_droplets_opens_the_cream_demo_in_one_click():
+    at = page("droplets", scenario="ceramic_slip").run()
+    at.button(key="drop_open_cream").click().run()
+    assert not at.exception
+    assert at.session_state["sc_name"] == demo("hand_cream").name
+    assert metric(at, "Viscosity now")          # the explorer is shown, on the cream
+    assert "no droplet ingredient" not in messages(at)
+
+
 def test_missing_interfacial_tension_is_named():
     at = page("droplets", scenario="hand_cream", ing0_tension=None).run()
     assert not at.exception
