@@ -513,8 +513,8 @@ def cmd_demo(args) -> int:
         f"viscosity [{unit}]": from_si(sweep["viscosity_Pa_s"].to_numpy(), unit,
                                        "viscosity")})) + "\n\n")
     rows = []
-    for label, rate, limit in (("brushing", 1e4, 0.1), ("pumping", 100.0, 0.5),
-                               ("levelling", 0.1, 5.0)):
+    for label, rate, limit in (("brushing", 1e4, 0.2), ("pumping", 100.0, 1.0),
+                               ("levelling", 0.1, 10.0)):
         phi = max_loading(form, limit, rate)
         rows.append({"window": label, "shear rate [1/s]": rate,
                      f"limit [{unit}]": from_si(limit, unit, "viscosity"),
