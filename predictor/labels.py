@@ -122,6 +122,7 @@ INFINITE_WORDS = {
     "settling time": "never (held by a yield stress, or no density difference)",
     "time to a clear layer": "never (held by a yield stress, or no density difference)",
     "onset": "none in this range",
+    "aicc": "not defined (too few points)",
 }
 #: Words for a missing value (NaN), by quantity.
 MISSING_WORDS = {"phi_max": "not computed", "onset": "none in this range",

@@ -180,8 +180,9 @@ def blend_section(dist_json: str | None, solids: list[dict]) -> None:
     if res["best_farris_shares"] is not None:
         farris = ", ".join(f"{n} {100 * s:.0f} %" for n, s in
                            zip(chosen, res["best_farris_shares"], strict=True))
+        eta_r = widgets.number_text(res["best_relative_viscosity_farris"], "relative viscosity")
         st.caption(f"Lowest viscosity in the multimodal (Farris) view: {farris}, relative "
-                   f"viscosity {res['best_relative_viscosity_farris']:.4g}.")
+                   f"viscosity {eta_r}.")
     widgets.show_warnings(result["warnings"])
 
 
