@@ -1278,7 +1278,7 @@ def _packing(c: _Chunk, ctx: _Context, phi_eff: np.ndarray) -> tuple:
     the shares of the powders may differ in every row. Per group, each powder's shape
     factor, intrinsic viscosity and size distribution are resolved once, and the packing
     limits of all the group's blends come from one vectorised call,
-    `packing.max_packing_rows` (the estimate `packing.max_packing` gives each blend). The
+    `packing.max_packing_blends` (the estimate `packing.max_packing` gives each blend). The
     validity warnings are kept as the notes.
     """
     n = c.rows.n
@@ -1321,8 +1321,8 @@ def _packing(c: _Chunk, ctx: _Context, phi_eff: np.ndarray) -> tuple:
         else:
             with warnings_module.catch_warnings():
                 warnings_module.simplefilter("ignore", ValidityWarning)
-                value, row_notes = packing.max_packing_rows(group["diameters"],
-                                                            weights @ group["fractions"])
+                value, row_notes = packing.max_packing_blends(group["diameters"],
+                                                              group["fractions"], weights)
             phi_max[rows_u] = (weights @ group["shape"]) * value
         eta = group["intrinsic"]
         intrinsic[rows_u] = np.clip(weights @ eta, eta.min(), eta.max())

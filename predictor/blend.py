@@ -21,7 +21,7 @@ import numpy as np
 
 from ._checks import guarded, in_range, positive
 from .errors import InputRangeError
-from .packing import DEFAULT_METHOD, max_packing_rows, reference_phi, volume_distribution
+from .packing import DEFAULT_METHOD, max_packing_blends, reference_phi, volume_distribution
 from .registry import get_model
 from .sizes import SizeDistribution
 from .suspension import krieger_dougherty
@@ -202,7 +202,7 @@ def optimise_blend(distributions, densities_kg_per_m3=None, phi_total: float | N
         table[k, np.searchsorted(union, x.diameters_m)] = x.fractions
     mixed = grid @ table
     if spec.name == DEFAULT_METHOD:     # every blend at once
-        phi_max = max_packing_rows(union, mixed, values["phi_mono"])[0]
+        phi_max = max_packing_blends(union, table, grid, values["phi_mono"])[0]
     else:
         phi_max = np.empty(grid.shape[0])
         for row in range(grid.shape[0]):

@@ -146,28 +146,60 @@ def volume_distribution(diameters_m, fractions, basis: str = "volume"):
 
 def _number_stats(d, f):
     """Number fractions, number-mean diameter, polydispersity delta and skewness S."""
-    n, mean, delta, skew = _number_stats_rows(d, f[None, :])
-    return n[0], float(mean[0, 0]), float(delta[0]), float(skew[0])
+    sums = _Blends(d, f[None, :], np.ones((1, 1)))
+    mean, delta, skew = sums.stats()
+    n = f * (d.max() / d) ** 3
+    return n / n.sum(), float(mean[0]), float(delta[0]), float(skew[0])
 
 
-def _number_stats_rows(d, f):
-    """`_number_stats` of many distributions on one class grid: f (m, K), d (K,).
+class _Blends:
+    """Class sums of blends: rows `shares` (m, J) of powders `components` (J, K) on classes
+    `d` (K,), volume basis, each powder's fractions summing to 1.
 
-    Returns number fractions (m, K), mean (m, 1), delta (m,) and skewness (m,); classes
-    with zero fraction count for nothing.
+    The estimators below need only sums over classes of the number distribution, whole
+    (``moments``: sum f d**(k-3), k = 0..3) or over the classes coarser than the
+    number-mean diameter (``coarse``), and the coarse-side cumulative volume (Furnas). They
+    are linear in the fractions, so a blend's sums are its shares times each powder's:
+    every blend of a table costs O(J), not O(K). One distribution is J = 1.
     """
-    scale = d.max() / d
-    n = f * (scale * scale * scale)
-    n /= n.sum(axis=-1, keepdims=True)
-    mean = np.einsum("ik,k->i", n, d)[:, None]
-    x = d / mean - 1.0
-    nx2 = n * x * x
-    var = nx2.sum(axis=-1)
-    delta = np.sqrt(np.maximum(var, 0.0))
-    with np.errstate(divide="ignore", invalid="ignore"):
-        skew = np.where(var > 1e-24, np.einsum("ik,ik->i", nx2, x)
-                        / np.where(var > 1e-24, var, 1.0) ** 1.5, 0.0)
-    return n, mean, delta, skew
+
+    def __init__(self, d, components, shares):
+        self.d = d
+        self.g = np.asarray(components, dtype=float)
+        self.w = np.asarray(shares, dtype=float)
+        scale = d / d.max()                      # scale-free powers: no overflow for nm sizes
+        self.powers = np.stack([scale ** (k - 3) for k in range(4)])     # (4, K)
+        self.moments = self.w @ (self.g @ self.powers.T)                 # (m, 4)
+        self.mean = self.moments[:, 1] / self.moments[:, 0]              # in units of d.max()
+
+    def stats(self):
+        """Number-mean diameter [m], polydispersity delta and skewness S of each blend."""
+        a = self.moments
+        m = self.mean
+        e2, e3 = a[:, 2] / a[:, 0] / m**2, a[:, 3] / a[:, 0] / m**3
+        var = e2 - 1.0
+        delta = np.sqrt(np.maximum(var, 0.0))
+        with np.errstate(divide="ignore", invalid="ignore"):
+            skew = np.where(var > 1e-24, (e3 - 3.0 * e2 + 2.0)
+                            / np.where(var > 1e-24, var, 1.0) ** 1.5, 0.0)
+        return m * self.d.max(), delta, skew
+
+    def coarse(self):
+        """Sums f d**(k-3) over the classes coarser than each blend's mean, (m, 4)."""
+        terms = self.g[:, None, :] * self.powers[None, :, :]             # (J, 4, K)
+        suffix = np.concatenate([np.cumsum(terms[:, :, ::-1], axis=-1)[:, :, ::-1],
+                                 np.zeros(terms.shape[:2] + (1,))], axis=-1)
+        first = np.searchsorted(self.d / self.d.max(), self.mean, side="right")
+        return np.einsum("mj,jkm->mk", self.w, suffix[:, :, first])
+
+    def furnas(self, phi0):
+        """The Furnas bound of each blend (no interaction between size classes)."""
+        y = self.w @ self.g                                              # (m, K)
+        coarser = self.w @ (np.cumsum(self.g[:, ::-1], axis=-1)[:, ::-1] - self.g)
+        # 1 - (1 - phi0) coarser - finer, with finer = 1 - coarser - y; empty classes
+        # bound nothing.
+        worst = np.max(np.where(y > 0, phi0 * coarser + y, 0.0), axis=-1)
+        return np.minimum(phi0 / worst, 1.0)
 
 
 def _scalar(value, field: str, low: float, high: float) -> float:
@@ -254,26 +286,21 @@ def ouchiyama_tanaka(diameters_m, fractions, phi_mono=0.64):
 
 
 def _ouchiyama_tanaka(d, f, phi0):
-    return float(_ouchiyama_tanaka_rows(d, f[None, :], phi0)[0])
+    return float(_ouchiyama_tanaka_blends(_Blends(d, f[None, :], np.ones((1, 1))), phi0)[0])
 
 
-def _ouchiyama_tanaka_rows(d, f, phi0, stats=None):
-    """`_ouchiyama_tanaka` of many distributions on one class grid: f (m, K) -> (m,)."""
-    n, mean, _, _ = stats or _number_stats_rows(d, f)
-    x = d / mean  # scale-free
-    xm = np.maximum(x - 1.0, 0.0)          # (x - 1) H(x - 1)
-    cube_above = xm * xm * xm
-    xp = x + 1.0
-    x3 = x * x * x
-
-    def dot(a):
-        return np.einsum("ik,ik->i", a, n)
-
-    above = dot(cube_above)
-    beta = 1.0 + (4.0 / 13.0) * (8.0 * phi0 - 1.0) * (
-        dot(xp * (xp - 0.375)) / (dot(x3) - above))
-    denominator = above + (dot(xp * xp * xp) - above) / beta
-    return dot(x3) / denominator
+def _ouchiyama_tanaka_blends(sums: _Blends, phi0):
+    """`_ouchiyama_tanaka` from the class sums of blends (see `_Blends`), (m,)."""
+    a, m = sums.moments, sums.mean
+    n0 = a[:, 0]
+    e2, e3 = a[:, 2] / n0 / m**2, a[:, 3] / n0 / m**3
+    p = sums.coarse()
+    # sum of n (x - 1)**3 H(x - 1), x = d/mean, expanded over the coarse classes
+    above = np.maximum((p[:, 3] - 3 * m * p[:, 2] + 3 * m**2 * p[:, 1] - m**3 * p[:, 0])
+                       / (n0 * m**3), 0.0)
+    # sum n (x + 1)**2 (1 - 0.375/(x + 1)) = e2 + 2.25 and sum n (x + 1)**3 = e3 + 3 e2 + 4
+    beta = 1.0 + (4.0 / 13.0) * (8.0 * phi0 - 1.0) * (e2 + 2.25) / (e3 - above)
+    return e3 / (above + (e3 + 3.0 * e2 + 4.0 - above) / beta)
 
 
 @model("packing", PHI_MONO,
@@ -507,19 +534,7 @@ def furnas(diameters_m, fractions, phi_mono=0.64):
 
 
 def _furnas(d, f, phi0):
-    return float(_furnas_rows(d, f[None, :], phi0)[0])
-
-
-def _furnas_rows(d, f, phi0):
-    """`_furnas` of many distributions on one class grid: f (m, K) -> (m,); empty classes
-    bound nothing."""
-    y = f[:, ::-1]  # coarse to fine
-    coarser = np.concatenate([np.zeros((y.shape[0], 1)), np.cumsum(y, axis=-1)[:, :-1]],
-                             axis=-1)
-    finer = 1.0 - coarser - y
-    with np.errstate(divide="ignore", invalid="ignore"):
-        gamma = np.where(y > 0, phi0 / (1.0 - (1.0 - phi0) * coarser - finer), np.inf)
-    return np.minimum(np.min(gamma, axis=-1), 1.0)
+    return float(_Blends(d, f[None, :], np.ones((1, 1))).furnas(phi0)[0])
 
 
 def _furnas_message(d, f) -> str | None:
@@ -1132,22 +1147,21 @@ def simulation_fit(diameters_m, fractions, phi_mono=0.64):
 
 
 def _simulation_fit(d, f, phi0):
-    return float(_simulation_fit_rows(d, f[None, :], phi0)[0])
+    return float(_simulation_fit_blends(_Blends(d, f[None, :], np.ones((1, 1))), phi0)[0])
 
 
-def _simulation_fit_rows(d, f, phi0):
-    """`_simulation_fit` of many distributions on one class grid: f (m, K) -> (m,)."""
-    stats = _number_stats_rows(d, f)
-    _, _, delta, skew = stats
-    base = _ouchiyama_tanaka_rows(d, f, phi0, stats)
+def _simulation_fit_blends(sums: _Blends, phi0):
+    """`_simulation_fit` from the class sums of blends (see `_Blends`), (m,)."""
+    _, delta, skew = sums.stats()
+    base = _ouchiyama_tanaka_blends(sums, phi0)
     correction = sum(c * t for c, t in zip(SIMULATION_FIT_COEFFICIENTS,
                                            _fit_features(delta, skew), strict=True))
     # Interaction between classes only lowers the packing: never above the Furnas bound.
     # Random close packing of spheres rises with polydispersity (Desmond & Weeks 2014;
     # Farr & Groot 2009): never below the single-size value either (the fitted correction
     # can dip by ~1e-5 for a trace of fines).
-    return np.maximum(np.minimum(base + phi0 / PHI_RCP * correction,
-                                 _furnas_rows(d, f, phi0)), phi0)
+    return np.maximum(np.minimum(base + phi0 / PHI_RCP * correction, sums.furnas(phi0)),
+                      phi0)
 
 
 def _simulation_fit_message(d, f) -> str | None:
@@ -1224,52 +1238,62 @@ def max_packing(diameters_m, fractions=None, basis: str = "volume", method: str 
 
 
 @guarded
-def max_packing_rows(diameters_m, fractions, phi_mono=0.64):
-    """`max_packing` (default method) of many distributions sharing one class grid.
+def max_packing_blends(diameters_m, components, shares, phi_mono=0.64):
+    """`max_packing` (default method) of many blends of the same powders, in one call.
 
-    For a table of blends (one row each) of the same powders in different shares: the
-    simulation-fit estimate of every row at once, with the validity message
-    `max_packing` would warn.
+    For a table of formulations (one row each) mixing the same powders in different
+    shares: the simulation-fit estimate of every blend, with the validity message
+    `max_packing` would warn. The estimate of one blend equals `max_packing` of that blend
+    (`sizes.SizeDistribution.blend`) to rounding; its cost per blend does not grow with
+    the number of size classes.
 
     Parameters
     ----------
     diameters_m : array_like
-        Class sizes (K,), ascending. [m]
-    fractions : array_like
-        Volume fractions (m, K) of the solids in each class, one row per distribution; each
-        row is normalised to total 1 (an all-zero row is refused). [-]
+        Class sizes (K,) shared by the powders, ascending. [m]
+    components : array_like
+        Volume fractions (J, K) of each powder in each class; each row sums to 1. [-]
+    shares : array_like
+        Volume shares (m, J) of the powders in each blend; each row sums to 1. [-]
     phi_mono : float, optional
         Packing fraction of equal spheres in the reference state. [-]
 
     Returns
     -------
     phi_max : numpy.ndarray
-        (m,) maximum packing fraction of each row. [-]
+        (m,) maximum packing fraction of each blend. [-]
     messages : numpy.ndarray
-        (m,) the validity message of each row ("" where none).
+        (m,) the validity message of each blend ("" where none).
 
     Examples
     --------
-    Equal spheres, then equal volumes of 1 and 3 um spheres (`simulation_fit` of each):
+    Spheres of 1 and 3 um alone, then equal volumes of both (`simulation_fit` of the mix):
 
-    >>> phi, notes = max_packing_rows([1e-6, 3e-6], [[1.0, 0.0], [0.5, 0.5]])
+    >>> phi, notes = max_packing_blends([1e-6, 3e-6], [[1.0, 0.0], [0.0, 1.0]],
+    ...                                 [[1.0, 0.0], [0.5, 0.5]])
     >>> phi.round(4).tolist(), round(simulation_fit([1e-6, 3e-6], [0.5, 0.5]), 4)
     ([0.64, 0.7028], 0.7028)
     """
     d = np.atleast_1d(positive(diameters_m, "diameters_m")).ravel()
     if np.any(np.diff(d) <= 0):
         raise InputRangeError("diameters_m", d[1:][np.diff(d) <= 0][0], "ascending sizes")
-    f = np.atleast_2d(in_range(fractions, "fractions", 0.0, np.inf))
-    if f.ndim != 2 or f.shape[1] != d.size:
-        raise InputRangeError("fractions", f"an array of shape {f.shape}",
-                              f"(m, {d.size}): one fraction per class in each row")
-    total = f.sum(axis=1, keepdims=True)
-    if np.any(total <= 0):
-        raise InputRangeError("sum of fractions", 0.0, "a total > 0 in every row")
+    g = np.atleast_2d(in_range(components, "components", 0.0, np.inf))
+    w = np.atleast_2d(in_range(shares, "shares", 0.0, np.inf))
+    if g.ndim != 2 or g.shape[1] != d.size:
+        raise InputRangeError("components", f"an array of shape {g.shape}",
+                              f"(J, {d.size}): one fraction per class for each powder")
+    if w.ndim != 2 or w.shape[1] != g.shape[0]:
+        raise InputRangeError("shares", f"an array of shape {w.shape}",
+                              f"(m, {g.shape[0]}): one share per powder in each blend")
+    for name, arr in (("components", g), ("shares", w)):
+        total = arr.sum(axis=1)
+        if np.any(np.abs(total - 1.0) > 1e-6):
+            raise InputRangeError(f"sum of {name}", total[np.abs(total - 1.0) > 1e-6][0],
+                                  "1 in every row")
     phi0 = _scalar(phi_mono, "phi_mono", *PHI_MONO.bounds)
-    f = f / total
-    phi = _simulation_fit_rows(d, f, phi0)
-    _, _, delta, _ = _number_stats_rows(d, f)
+    sums = _Blends(d, g, w)
+    phi = _simulation_fit_blends(sums, phi0)
+    _, delta, _ = sums.stats()
     messages = np.array([_calibration_note(x) or "" if x > 0.8 else "" for x in delta],
                         dtype=object)
     return phi, messages

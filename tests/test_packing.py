@@ -255,25 +255,22 @@ def test_intrinsic_viscosity_limits():
     assert np.all(np.diff(vals[grid >= 1]) > 0) and np.all(np.diff(vals[grid <= 1]) < 0)
 
 
-def test_max_packing_rows_equals_max_packing_of_each_blend():
+def test_max_packing_blends_equals_max_packing_of_each_blend():
     # One estimate: the vectorised form over blends of the same powders in different
     # shares gives `max_packing` of each blend (whose published checks are above).
-    from predictor.packing import max_packing, max_packing_rows
+    from predictor.packing import max_packing, max_packing_blends
     from predictor.sizes import SizeDistribution
 
     coarse = SizeDistribution.lognormal(5e-6, 1.8)
     fine = SizeDistribution.lognormal(0.3e-6, 1.45)
     grid = np.unique(np.concatenate([coarse.diameters_m, fine.diameters_m]))
-    rows = []
-    shares = np.linspace(0.0, 1.0, 11)
-    for w in shares:
-        f = np.zeros(grid.size)
-        f[np.searchsorted(grid, coarse.diameters_m)] += w * coarse.fractions
-        f[np.searchsorted(grid, fine.diameters_m)] += (1 - w) * fine.fractions
-        rows.append(f)
-    phi, notes = max_packing_rows(grid, np.array(rows))
-    for k, w in enumerate(shares):
-        blend = SizeDistribution.blend([coarse, fine], [w, 1 - w])
+    parts = np.zeros((2, grid.size))
+    parts[0, np.searchsorted(grid, coarse.diameters_m)] = coarse.fractions
+    parts[1, np.searchsorted(grid, fine.diameters_m)] = fine.fractions
+    w = np.linspace(0.0, 1.0, 11)
+    phi, notes = max_packing_blends(grid, parts, np.column_stack([w, 1 - w]))
+    for k, share in enumerate(w):
+        blend = SizeDistribution.blend([coarse, fine], [share, 1 - share])
         assert phi[k] == pytest.approx(max_packing(blend), rel=1e-12)
     assert phi.max() > phi[0] and phi.max() > phi[-1]      # a blend packs better
     assert notes.shape == (11,)
