@@ -107,6 +107,7 @@ DEFAULTS: dict[str, object] = {
     **{f"param_{k}": v for k, v in RELATION_PARAM_DEFAULTS.items()},
     **{f"auto_{k}": True for k in AUTO_PARAMS},
     "extra_params_json": "{}",          # model_params not tied to a widget (kept on save)
+    "droplet_params_json": "{}",        # droplet_model_params (kept on save)
     "thick_onset": None, "phi_max_frictional": None,   # frictional shear thickening
     # liquid
     "liq_name": "water", "liq_preset": "water", "liq_law": "newtonian",
@@ -338,6 +339,7 @@ def document(ss: MutableMapping | None = None) -> dict:
         "name": ss["sc_name"], "description": ss["sc_description"],
         "relations": {"solids": ss["model"], "droplets": ss["droplet_model"],
                       "parameters": model_params(ss),
+                      "droplet_parameters": json.loads(ss.get("droplet_params_json") or "{}"),
                       "thickening_onset_stress": _q(ss.get("thick_onset"), "Pa"),
                       "phi_max_frictional": ss.get("phi_max_frictional")},
         "liquid": liquid, "ingredients": ingredients,
@@ -384,6 +386,8 @@ def values_from_formulation(formulation, ss: MutableMapping | None = None) -> di
         if f"param_{name}" in DEFAULTS:
             values[f"param_{name}"] = float(params.pop(name))
     values["extra_params_json"] = json.dumps(params, sort_keys=True)
+    values["droplet_params_json"] = json.dumps(doc["relations"]["droplet_parameters"],
+                                               sort_keys=True)
     for i, ing in enumerate(doc["ingredients"]):
         droplet = ing["kind"] == "droplet"
         values.update({

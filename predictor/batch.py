@@ -640,10 +640,10 @@ def _read_base(ctx: _Context, name: str):
                                       "a *.loadline.json file in the candidate table's own "
                                       "folder (or below it)")
             form = read_scenario(path)
-            if form.model_params:
+            if form.model_params or form.droplet_model_params:
                 raise InputRangeError(
                     f"base scenario '{name}'", "calibrated relation parameters "
-                    f"({', '.join(sorted(form.model_params))})",
+                    f"({', '.join(sorted({**form.model_params, **form.droplet_model_params}))})",
                     "a scenario without them (the batch has no columns for them yet)")
             ctx.base_cache[name] = form
         except LoadlineError as err:

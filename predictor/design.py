@@ -295,10 +295,11 @@ class WindowsAnswer:
 
 def calibrated(formulation: fm.Formulation, fit_result) -> fm.Formulation:
     """A copy of `formulation` using a calibrated relation (`fitting.FitResult`)."""
-    params = {**formulation.model_params, **fit_result.all_params}
     if fit_result.kind == "emulsion":
+        params = {**formulation.droplet_model_params, **fit_result.all_params}
         return dataclasses.replace(formulation, droplet_model=fit_result.model,
-                                   model_params=params)
+                                   droplet_model_params=params)
+    params = {**formulation.model_params, **fit_result.all_params}
     if fit_result.kind != "suspension":
         raise InputRangeError("fit_result.kind", fit_result.kind,
                               "a fit of a suspension or emulsion relation")

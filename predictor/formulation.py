@@ -118,8 +118,9 @@ class Formulation:
     name: str = ""
     description: str = ""
     model: str = "krieger-dougherty"          # suspension relation for the solids
-    model_params: dict = field(default_factory=dict)  # overrides, e.g. from a calibration
+    model_params: dict = field(default_factory=dict)  # solids' overrides, e.g. a calibration
     droplet_model: str = "phan-thien-pham"    # emulsion relation for the droplets
+    droplet_model_params: dict = field(default_factory=dict)  # the droplets' own overrides
     thickening_onset_stress_Pa: float | None = None   # frictional thickening; None: off
     phi_max_frictional: float | None = None   # None: FRICTIONAL_RATIO * phi_max
 
@@ -286,7 +287,7 @@ def droplet_relation(formulation: Formulation, mix: Mixture) -> tuple[str, dict]
                           else mix.liquid_viscosity_Pa_s for _, i in drops])
         params["viscosity_ratio"] = float(volume @ eta_d / volume.sum()) / \
             mix.liquid_viscosity_Pa_s
-    params.update({k: v for k, v in formulation.model_params.items()
+    params.update({k: v for k, v in formulation.droplet_model_params.items()
                    if k in spec.param_names()})
     return spec.name, params
 

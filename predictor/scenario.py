@@ -19,6 +19,7 @@ import warnings
 from . import sizes
 from .errors import LoadlineError, ScenarioError
 from .formulation import Formulation, Ingredient, Liquid
+from .registry import get_model
 from .units import parse_quantity
 
 SCHEMA_VERSION = 1
@@ -108,6 +109,8 @@ def scenario_to_dict(formulation: Formulation) -> dict:
         "description": formulation.description,
         "relations": {"solids": formulation.model, "droplets": formulation.droplet_model,
                       "parameters": {k: float(v) for k, v in formulation.model_params.items()},
+                      "droplet_parameters": {k: float(v) for k, v in
+                                             formulation.droplet_model_params.items()},
                       "thickening_onset_stress": _quantity(
                           formulation.thickening_onset_stress_Pa, "Pa"),
                       "phi_max_frictional": formulation.phi_max_frictional},
@@ -210,10 +213,25 @@ def _from_dict(doc: dict, source: str) -> Formulation:
         model=str(relations.get("solids", "krieger-dougherty")),
         droplet_model=str(relations.get("droplets", "phan-thien-pham")),
         model_params={k: float(v) for k, v in relations.get("parameters", {}).items()},
+        droplet_model_params=_droplet_parameters(relations),
         thickening_onset_stress_Pa=_read_quantity(relations.get("thickening_onset_stress"),
                                                   "stress", "relations.thickening_onset_stress"),
         phi_max_frictional=(None if relations.get("phi_max_frictional") is None
                             else float(relations["phi_max_frictional"])))
+
+
+def _droplet_parameters(relations: dict) -> dict:
+    """The droplets' relation parameters; files before they had their own space kept one
+    space for both relations, so the shared parameters that the droplet relation takes are
+    read as its own (what those files meant)."""
+    if "droplet_parameters" in relations:
+        return {k: float(v) for k, v in (relations["droplet_parameters"] or {}).items()}
+    try:
+        names = get_model(str(relations.get("droplets", "phan-thien-pham")),
+                          kind="emulsion").param_names()
+    except LoadlineError:
+        return {}
+    return {k: float(v) for k, v in relations.get("parameters", {}).items() if k in names}
 
 
 def _read_distribution(raw, field: str):

@@ -112,3 +112,38 @@ def test_demo_scenarios_predict_finite_viscosity(name):
     frame = fm.predict(f, [1.0, 100.0])
     assert np.all(np.isfinite(frame["viscosity_Pa_s"]))
     assert np.all(frame["viscosity_Pa_s"] > frame["liquid_viscosity_Pa_s"])
+
+
+def test_solids_and_droplets_have_separate_parameter_spaces():
+    # phi_max of the solids' relation must not leak into a droplet relation that also has a
+    # phi_max (Pal's), and the droplets' own value must not change the solids' packing.
+    import dataclasses
+
+    ings = (fm.Ingredient("filler", 2600.0, 0.3, diameter_m=4e-6),
+            fm.Ingredient("oil", 900.0, 0.15, kind="droplet", diameter_m=2e-6,
+                          droplet_viscosity_Pa_s=0.01))
+    base = fm.Formulation(ingredients=ings, droplet_model="pal")
+    solids = dataclasses.replace(base, model_params={"phi_max": 0.55})
+    droplets = dataclasses.replace(base, droplet_model_params={"phi_max": 0.55})
+    mix = fm.mixture(base)
+    assert fm.mixture(solids).phi_max == 0.55 and fm.mixture(droplets).phi_max == mix.phi_max
+    assert fm.droplet_factor(solids, mix) == fm.droplet_factor(base, mix)
+    # Pal's relation with phi_max 0.55 instead of its default 0.64 (Pal, J. Rheol. 2001)
+    assert fm.droplet_factor(droplets, mix) > fm.droplet_factor(base, mix)
+
+
+def test_scenario_keeps_both_parameter_spaces_and_reads_older_files():
+    import dataclasses
+    import json
+
+    from predictor import scenario
+
+    f = dataclasses.replace(fm.Formulation(droplet_model="pal"), model_params={"phi_max": 0.6},
+                            droplet_model_params={"phi_max": 0.7})
+    back = scenario.loads(scenario.dumps(f))
+    assert back.model_params == {"phi_max": 0.6}
+    assert back.droplet_model_params == {"phi_max": 0.7}
+    doc = json.loads(scenario.dumps(f))
+    del doc["relations"]["droplet_parameters"]       # a file written before the split
+    old = scenario.loads(json.dumps(doc))
+    assert old.droplet_model_params == {"phi_max": 0.6}   # what the shared space meant
