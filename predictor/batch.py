@@ -590,7 +590,7 @@ def _text(rows: _Rows, field_name: str, index: int = 0, default: str = "") -> np
     value = rows.texts.get((field_name, index))
     if value is None:
         return np.full(rows.n, default, dtype=object)
-    value = np.asarray([v.lower() if isinstance(v, str) else "" for v in value], dtype=object)
+    value = pd.Series(value, dtype=object).str.lower().fillna("").to_numpy(dtype=object)
     return np.where(value == "", default, value)
 
 

@@ -193,12 +193,17 @@ class _Blends:
         return np.einsum("mj,jkm->mk", self.w, suffix[:, :, first])
 
     def furnas(self, phi0):
-        """The Furnas bound of each blend (no interaction between size classes)."""
-        y = self.w @ self.g                                              # (m, K)
-        coarser = self.w @ (np.cumsum(self.g[:, ::-1], axis=-1)[:, ::-1] - self.g)
-        # 1 - (1 - phi0) coarser - finer, with finer = 1 - coarser - y; empty classes
-        # bound nothing.
-        worst = np.max(np.where(y > 0, phi0 * coarser + y, 0.0), axis=-1)
+        """The Furnas bound of each blend (no interaction between size classes).
+
+        gamma_i = phi0 / (1 - (1 - phi0) coarser_i - finer_i) = phi0 / (phi0 coarser_i + f_i)
+        (finer_i = 1 - coarser_i - f_i), minimised over the classes: one linear function of
+        the shares per class. Empty classes need no mask: their value never exceeds that of
+        the next finer filled class, nor phi0 when none is finer.
+        """
+        h = phi0 * (np.cumsum(self.g[:, ::-1], axis=-1)[:, ::-1] - self.g) + self.g
+        worst = np.empty(self.w.shape[0])
+        for start in range(0, worst.size, 4096):      # bounded memory: (4096, K) at a time
+            worst[start:start + 4096] = (self.w[start:start + 4096] @ h).max(axis=-1)
         return np.minimum(phi0 / worst, 1.0)
 
 
