@@ -1695,21 +1695,39 @@ def duration_text(seconds: float) -> str:
 
 
 
+#: Shear rate of settling at which a liquid law's viscosity is taken (the default of
+#: `design.storage_check`; sedimentation is about 1e-6 to 1e-3 1/s, common practice).
+SETTLING_SHEAR_RATE_1_PER_S = 1e-4
+
+
 def _settling(c: _Chunk, st: _State, ctx: _Context) -> np.ndarray:
     """Storage verdict per row: `stability.storage_reasons` for each sized ingredient.
 
     The same inputs as `design.storage_check`: per ingredient its D90 (the coarse end), its
-    density, the liquid's density, Newtonian viscosity and temperature, and the total
-    dispersed volume fraction for hindrance. One vectorised call per ingredient column
+    density, the liquid's density, its viscosity at `SETTLING_SHEAR_RATE_1_PER_S` (the
+    Newtonian viscosity, or the liquid law there), its yield stress and temperature, and
+    the total dispersed volume fraction for hindrance. One vectorised call per ingredient column
     over all its rows (the D90 once per distinct size distribution). The row shows the
     first ingredient that separates, else "stable" with the reason.
     """
     from . import stability
 
+    from . import liquids
+
     n = c.rows.n
     verdict = np.full(n, "", dtype=object)
     ok = c.rows.ok
     phi_total = np.minimum(st.phi_solids + st.phi_droplets, 0.99)
+    eta = st.eta_l.copy()
+    for name, params in _laws(c, _shift(c)).items():
+        on = np.flatnonzero((c.liquid == name) & ok)
+
+        def call(part, name=name, params=params):
+            return liquids.liquid_viscosity(SETTLING_SHEAR_RATE_1_PER_S, name,
+                                            **{k: v[part] for k, v in params.items()})
+
+        for part, value in _guarded(call, on, c.rows):
+            eta[part] = value
     stable_reason = np.full(n, "", dtype=object)
     for j in range(c.present.shape[1]):
         sized = ok & c.present[:, j] & ((c.table[:, j] != "") | ~np.isnan(c.d50[:, j]))
@@ -1726,7 +1744,7 @@ def _settling(c: _Chunk, st: _State, ctx: _Context) -> np.ndarray:
         rows = np.flatnonzero(sized & np.isfinite(d90))
         if rows.size == 0:
             continue
-        args = (d90[rows], c.density[rows, j], c.liquid_density[rows], st.eta_l[rows],
+        args = (d90[rows], c.density[rows, j], c.liquid_density[rows], eta[rows],
                 phi_total[rows], np.nan_to_num(c.law_params.get("yield_stress_Pa",
                                                                 np.zeros(n))[rows]))
         try:

@@ -561,3 +561,32 @@ def test_missing_or_malformed_base_scenario_is_named_with_its_row(tmp_path):
     assert "broken.loadline.json" in result["error"].iloc[2]
     assert "../paint.loadline.json" in result["error"].iloc[3]
     assert [line for line, _, _ in summary.first_errors] == [3, 4, 5]
+
+
+def test_demo_paint_variants_table_equals_predict_and_storage_check():
+    # The bundled (invented) variants of the demo paint: every row against predict of the
+    # formulation the batch read, and the first row's settling against design.storage_check.
+    from predictor import design
+
+    with _quiet():
+        summary, result = batch.screen_file(DEMO / "paint_variants.csv", keep=-1)
+    assert summary.errors == 0
+    table = pd.read_csv(DEMO / "paint_variants.csv", dtype=str, keep_default_na=False)
+    ctx = batch._Context(batch.parse_header(table.columns), DEMO)
+    work, ctx, errors = batch._with_base(table, ctx, None)
+    resolved = batch._resolve(work, ctx, errors)
+    for i in range(len(table)):
+        form = batch.candidate_formulation(resolved, i, ctx)
+        rates = [float(table[f"window {j} shear rate [1/s]"][i]) for j in (1, 2)]
+        with _quiet():
+            eta = fm.predict(form, rates)["viscosity_Pa_s"].to_numpy()
+        for j in (1, 2):
+            assert result[f"window {j} viscosity [Pa*s]"].iloc[i] == pytest.approx(
+                eta[j - 1], rel=1e-9)
+    with _quiet():
+        check = design.storage_check(fm.Formulation(**{
+            **{f: getattr(form, f) for f in ("liquid", "model", "droplet_model")},
+            "ingredients": batch.candidate_formulation(resolved, 0, ctx).ingredients,
+            "liquid": batch.candidate_formulation(resolved, 0, ctx).liquid}))
+    hours = check["clear_layer_time_s"].iloc[0] / 3600
+    assert f"1 mm layer in {hours:.3g} h" in result["settling"].iloc[0]
