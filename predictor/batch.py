@@ -1710,9 +1710,7 @@ def _settling(c: _Chunk, st: _State, ctx: _Context) -> np.ndarray:
     over all its rows (the D90 once per distinct size distribution). The row shows the
     first ingredient that separates, else "stable" with the reason.
     """
-    from . import stability
-
-    from . import liquids
+    from . import liquids, stability
 
     n = c.rows.n
     verdict = np.full(n, "", dtype=object)

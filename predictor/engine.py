@@ -389,23 +389,62 @@ def max_loading(fs: FormulationSet, viscosity_limit_Pa_s, shear_rate_1_per_s=1.0
                               "phase-ratio questions in predictor.phase_ratio)")
     rates = rate[:, None]
 
-    def too_thick(phi):
+    def excess(phi, rows):
+        """ln(eta / limit) of the rows at phi; +inf where jammed or not a number."""
         with warnings.catch_warnings():
             warnings.simplefilter("ignore", ValidityWarning)
-            res = evaluate(fs.at_loading(phi), rates)
+            res = evaluate(fs.take(rows).at_loading(phi), rates[rows])
         eta = res.viscosity_Pa_s[:, 0]
-        return ~(eta < limit)           # nan or inf count as too thick
+        with np.errstate(divide="ignore", invalid="ignore"):
+            out = np.log(eta / limit[rows])
+        return np.where(np.isnan(out), np.inf, out)    # too thick: excess >= 0
 
+    every = np.arange(n)
     top_phi = fs.phi_max if upper is None else np.broadcast_to(np.asarray(upper, float), (n,))
-    low, high = np.zeros(n), np.array(top_phi, dtype=float)
-    thick0 = too_thick(low)
-    top = too_thick(high * (1.0 - 1e-9))
-    for _ in range(200):
-        if not np.any(high - low > tolerance):
+    top = np.array(top_phi, dtype=float) * (1.0 - 1e-9)
+    r_low = excess(np.zeros(n), every)
+    r_high = excess(top, every)
+    thick0, roomy = r_low >= 0, r_high < 0
+    phi = np.where(thick0, 0.0, top)
+    reason = np.where(thick0, "liquid", np.where(roomy, "packing", "viscosity")).astype(str)
+    # Regula falsi (Illinois) on the bracket [ok, too thick], interpolating in
+    # u = -ln(1 - phi/phi_top), where ln(eta) of a relation diverging at phi_top is nearly
+    # straight; each step evaluates the two points half a tolerance either side of the
+    # estimate, so an accurate estimate closes the bracket at once; a bisection step after
+    # a step that did not halve the bracket (a jump in the curve) and where the excess is
+    # not finite. The answer is the lower end.
+    rows = np.flatnonzero(~thick0 & ~roomy)
+    low, high = np.zeros(n), top.copy()
+    side = np.zeros(n, int)
+    slow = np.zeros(n, bool)
+    end_all = np.asarray(top_phi, dtype=float)
+    for _ in range(300):
+        rows = rows[high[rows] - low[rows] > tolerance]
+        if rows.size == 0:
             break
-        mid = 0.5 * (low + high)
-        over = too_thick(mid)
-        low, high = np.where(over, low, mid), np.where(over, mid, high)
-    phi = np.where(thick0, 0.0, low)
-    reason = np.where(thick0, "liquid", np.where(top, "viscosity", "packing")).astype(str)
+        lo, hi, f_lo, f_hi = low[rows], high[rows], r_low[rows], r_high[rows]
+        ok = np.isfinite(f_lo) & np.isfinite(f_hi) & (f_hi > f_lo) & ~slow[rows]
+        end = end_all[rows]
+        u_lo, u_hi = -np.log1p(-lo / end), -np.log1p(-hi / end)
+        with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
+            u = u_lo - f_lo * (u_hi - u_lo) / np.where(ok, f_hi - f_lo, 1.0)
+            x = np.where(ok, -end * np.expm1(-u), 0.5 * (lo + hi))
+        width = hi - lo
+        step = np.minimum(0.49 * tolerance, 0.25 * width)
+        pair = np.stack([np.clip(x - step, lo + step, hi - 3 * step),
+                         np.clip(x + step, lo + 3 * step, hi - step)])       # (2, r)
+        f_pair = excess(pair.ravel(), np.concatenate([rows, rows])).reshape(2, -1)
+        thick = f_pair >= 0
+        new_hi = np.where(thick[0], pair[0], np.where(thick[1], pair[1], hi))
+        new_lo = np.where(thick[0], lo, np.where(thick[1], pair[0], pair[1]))
+        f_new_hi = np.where(thick[0], f_pair[0], np.where(thick[1], f_pair[1], f_hi))
+        f_new_lo = np.where(thick[0], f_lo, np.where(thick[1], f_pair[0], f_pair[1]))
+        moved = np.where(thick[0], 1, np.where(thick[1], 0, -1))   # 1: high only, -1: low
+        s = side[rows]
+        # Illinois: halve the stale end's excess when the same end alone moves twice.
+        r_low[rows] = np.where((moved == 1) & (s == 1), 0.5 * f_new_lo, f_new_lo)
+        r_high[rows] = np.where((moved == -1) & (s == -1), 0.5 * f_new_hi, f_new_hi)
+        slow[rows] = ok & (new_hi - new_lo > 0.5 * width)
+        low[rows], high[rows], side[rows] = new_lo, new_hi, moved
+    phi = np.where(reason == "viscosity", low, phi)
     return phi, reason
