@@ -92,7 +92,7 @@ The viscosity at a window's shear rate and the highest loading come from the one
 formulation engine (`predictor.engine`): every row of a chunk is one row of a
 `FormulationSet`, solved at its window shear rates in one vectorised call
 (`engine.evaluate`, the solve `formulation.predict` uses) and the highest loadings by one
-bisection vectorised over rows and windows (`engine.max_loading`, the solver of
+search vectorised over rows and windows (`engine.max_loading`, the solver of
 `formulation.max_loading`), so a batch row equals them for the same inputs.
 """
 

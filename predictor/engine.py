@@ -345,7 +345,9 @@ def max_loading(fs: FormulationSet, viscosity_limit_Pa_s, shear_rate_1_per_s=1.0
     The one solver of the question "how much can I load": each row's solids are scaled
     along their shares (droplets stay, `FormulationSet.at_loading`), and the viscosity at
     the shear rate comes from `evaluate`, so thinning, thickening and non-Newtonian
-    liquids count. A bisection vectorised over rows narrows [0, phi_max] to `tolerance`.
+    liquids count. A bracketing search vectorised over rows (regula falsi with bisection
+    steps, see the comments) narrows [0, phi_max] to `tolerance`; packing-limited rows
+    answer phi_max (1 - 1e-9).
 
     Parameters
     ----------

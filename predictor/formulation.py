@@ -568,7 +568,7 @@ def max_loading(formulation: Formulation, viscosity_limit_Pa_s: float,
 
     The solids are scaled along their shares (droplets stay); the viscosity at the shear
     rate comes from the full flow curve, so thinning, thickening and a non-Newtonian
-    liquid count. The one solver `engine.max_loading` (bisection to 1e-9 in phi, which
+    liquid count. The one solver `engine.max_loading` (a bracketing search to 1e-9 in phi, which
     also gives the limiting reason); returns 0 when the liquid alone (with its droplets)
     already exceeds the limit.
 
