@@ -79,6 +79,26 @@ class FormulationSet:
                                if isinstance(value, dict) else value[rows])
         return FormulationSet(**changes)
 
+    def distinct(self, *extra) -> tuple[np.ndarray, np.ndarray]:
+        """Indices of the distinct rows (with `extra` per-row arrays) and the inverse map.
+
+        ``fs.take(first)`` holds each distinct row once; ``inverse`` maps every row to its
+        position there. Tables of designed experiments repeat formulations many times.
+        """
+        columns = []
+        for f in dataclasses.fields(self):
+            value = getattr(self, f.name)
+            for v in (value.values() if isinstance(value, dict) else (value,)):
+                v = np.asarray(v)
+                if v.dtype.kind in "OUS":
+                    v = np.unique(v.astype(str), return_inverse=True)[1].ravel()
+                columns.append(np.asarray(v, dtype=float))
+        columns += [np.asarray(e, dtype=float).reshape(len(self), -1).T for e in extra]
+        table = np.column_stack([c.T if c.ndim == 2 else c for c in columns])
+        table = np.where(np.isnan(table), -np.inf, table)      # NaN rows compare equal
+        _, first, inverse = np.unique(table, axis=0, return_index=True, return_inverse=True)
+        return first, inverse.ravel()
+
     def at_loading(self, phi) -> FormulationSet:
         """The set with each row's solids scaled, along their shares, to effective `phi`.
 
@@ -296,6 +316,13 @@ def evaluate(fs: FormulationSet, shear_rate_1_per_s) -> Result:
     """
     n = len(fs)
     rates = _rates(shear_rate_1_per_s, n)
+    if n > 64:                              # each distinct row (and its rates) solved once
+        first, inverse = fs.distinct(*(() if rates.ndim == 1 else (rates,)))
+        if first.size < 0.9 * n:
+            res = evaluate(fs.take(first), rates if rates.ndim == 1 else rates[first])
+            return Result(res.shear_rate_1_per_s if rates.ndim == 1 else rates,
+                          *(getattr(res, f.name)[inverse]
+                            for f in dataclasses.fields(Result)[1:]))
     m = rates.shape[-1]
     medium = medium_factor(fs)
     full = np.full((n, m), np.inf)
@@ -389,6 +416,13 @@ def max_loading(fs: FormulationSet, viscosity_limit_Pa_s, shear_rate_1_per_s=1.0
         raise InputRangeError("ingredients", "no solid",
                               "at least one solid ingredient to scale (for droplets, use the "
                               "phase-ratio questions in predictor.phase_ratio)")
+    if n > 64:                              # each distinct (row, limit, rate) solved once
+        first, inverse = fs.distinct(limit, rate)
+        if first.size < 0.9 * n:
+            phi, reason = max_loading(fs.take(first), limit[first], rate[first],
+                                      tolerance, None if upper is None else
+                                      np.broadcast_to(np.asarray(upper, float), (n,))[first])
+            return phi[inverse], reason[inverse]
     rates = rate[:, None]
 
     def excess(phi, rows):

@@ -139,3 +139,22 @@ def test_max_loading_rows_equal_the_single_formulation_solver_with_reasons():
     thick = _formulation(fm.Liquid(preset="", law="newtonian", params={"viscosity_Pa_s": 2.0}))
     phi, reason = engine.max_loading(engine.stack([thick]), limit, 10.0)
     assert phi[0] == 0.0 and reason[0] == "liquid"
+
+
+def test_repeated_rows_are_solved_once_with_the_same_answers():
+    forms = [_formulation(LIQUIDS[k % 3], 0.3 + 0.05 * (k % 2), thickening=k % 3 == 1)
+             for k in range(6)]
+    fs = engine.stack(forms)
+    many = fs.take(np.arange(300) % 6)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", ValidityWarning)
+        one = engine.evaluate(fs, RATES)
+        rep = engine.evaluate(many, RATES)
+        phi1, why1 = engine.max_loading(fs, 1.0, 10.0)
+        phi2, why2 = engine.max_loading(many, 1.0, 10.0)
+    first, inverse = many.distinct()
+    assert first.size == 6 and np.array_equal(many.take(first).phi[inverse], many.phi)
+    assert np.array_equal(rep.viscosity_Pa_s, one.viscosity_Pa_s[np.arange(300) % 6])
+    assert np.array_equal(rep.regime, one.regime[np.arange(300) % 6])
+    assert np.allclose(phi2, phi1[np.arange(300) % 6], rtol=0, atol=1e-12)
+    assert list(why2) == list(why1[np.arange(300) % 6])
