@@ -925,7 +925,8 @@ def slip_correction(curves: dict, shear_stress_Pa=None) -> pd.DataFrame:
 
     so a straight line of the apparent rates against 1/h at each stress gives the true rate
     (intercept) and the slip velocity (half the slope). Each curve is interpolated in
-    log-log at the chosen stresses; with more than two gaps the line is a least-squares fit.
+    log-log (monotone cubic) at the chosen stresses; with more than two gaps the line is a
+    least-squares fit.
 
     Parameters
     ----------
@@ -1007,13 +1008,18 @@ def slip_correction(curves: dict, shear_stress_Pa=None) -> pd.DataFrame:
         tau = tau[(tau >= low * (1 - 1e-12)) & (tau <= high * (1 + 1e-12))]
     else:
         tau = np.atleast_1d(in_range(shear_stress_Pa, "shear_stress_Pa", low, high))
-    rates = np.stack([np.exp(np.interp(np.log(tau), s, r)) for s, r in data])   # (gaps, tau)
+    from scipy.interpolate import PchipInterpolator
+
+    # Monotone cubic (PCHIP) in log-log: no overshoot, and far closer than straight lines
+    # where the curve bends sharply near a yield stress.
+    rates = np.stack([np.exp(PchipInterpolator(s, r)(np.log(tau))) if s.size > 2
+                      else np.exp(np.interp(np.log(tau), s, r)) for s, r in data])
     x = 1.0 / gaps
     xm = x.mean()
     slope = np.sum((x - xm)[:, None] * (rates - rates.mean(axis=0)), axis=0) / np.sum(
         (x - xm) ** 2)
     intercept = rates.mean(axis=0) - slope * xm
-    slip_only = intercept <= 0
+    slip_only = intercept <= 1e-9 * rates.max(axis=0)     # zero within rounding
     return pd.DataFrame({"shear_stress_Pa": tau,
                          "shear_rate_1_per_s": np.where(slip_only, 0.0, intercept),
                          "slip_velocity_m_per_s": slope / 2.0,

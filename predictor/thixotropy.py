@@ -329,8 +329,7 @@ def stress_history(time_s, shear_rate_1_per_s, params: dict, initial_structure=N
 
 
 @guarded
-def recovery_time(fraction, params: dict, process_shear_rate_1_per_s,
-                  process_time_s=np.inf):
+def recovery_time(fraction, params: dict, process_shear_rate_1_per_s, process_time_s=None):
     r"""Time at rest after a process step until the structure regains a fraction of its full value.
 
     The process step (pumping, brushing, mixing) shears the product at a rate for a time
@@ -345,7 +344,8 @@ def recovery_time(fraction, params: dict, process_shear_rate_1_per_s,
     process_shear_rate_1_per_s : float or array_like
         Shear rate of the process step, >= 0. [1/s]
     process_time_s : float or array_like, optional
-        Duration of the process step (default: long enough to reach equilibrium). [s]
+        Duration of the process step, from a rested sample (default None: long enough to
+        reach the equilibrium at the process rate). [s]
 
     Returns
     -------
@@ -376,17 +376,19 @@ def recovery_time(fraction, params: dict, process_shear_rate_1_per_s,
     >>> p = {"infinite_shear_viscosity_Pa_s": 0.1, "structure_viscosity_Pa_s": 10.0,
     ...      "build_up_rate_1_per_s": 0.05, "breakdown_coefficient": 0.05}
     >>> round(recovery_time(0.9, p, 100.0), 3)
-    45.099
+    45.853
     """
     f = in_range(fraction, "fraction", 0.0, 1.0, low_open=True, high_open=True)
     _, _, a, b = _params(params)
     rate = in_range(process_shear_rate_1_per_s, "process_shear_rate_1_per_s", 0.0, np.inf)
-    tp = in_range(process_time_s, "process_time_s", 0.0, np.inf)
     k = a + b * rate
     lam_e = a / k
-    with np.errstate(over="ignore", invalid="ignore"):
-        lam_p = np.where(np.isinf(tp), lam_e, lam_e + (1.0 - lam_e) * np.exp(-k * np.where(
-            np.isinf(tp), 0.0, tp)))
+    if process_time_s is None:
+        lam_p, tp = lam_e, 0.0
+    else:
+        tp = in_range(process_time_s, "process_time_s", 0.0, np.inf)
+        lam_p = lam_e + (1.0 - lam_e) * np.exp(-k * tp)
+    with np.errstate(divide="ignore"):      # lam_p = 1 (never broken): no recovery needed
         t = np.where(lam_p < f, np.log((1.0 - lam_p) / (1.0 - f)) / a, 0.0)
     return scalar_or_array(t, f, rate, tp)
 
@@ -511,8 +513,11 @@ def fit_moore(step_tests=(), loops=(), confidence: float = CONFIDENCE,
     def model_log(u):
         params = dict(zip(PARAMS, np.exp(u), strict=True))
         parts = []
-        for t, rate, _, lam0 in runs:
-            s = stress_history(t, rate, params, initial_structure=lam0)
+        for t, rate, stress, lam0 in runs:
+            try:
+                s = stress_history(t, rate, params, initial_structure=lam0)
+            except InputRangeError:          # constants under- or overflowed: no fit there
+                s = np.full(t.size, np.nan)
             parts.append(s[1:] if lam0 is None else s)
         with np.errstate(divide="ignore"):
             return np.log(np.concatenate(parts))
