@@ -714,7 +714,8 @@ class SeriesFits:
                                                       if series in self.warnings else []))
             rows.append(row)
         for series, reason in self.failed.items():
-            rows.append({"series": series, "phi": self.phi[series], "note": f"not fitted: {reason}"})
+            rows.append({"series": series, "phi": self.phi[series],
+                         "note": f"not fitted: {reason}"})
         return pd.DataFrame(rows)
 
     def parameter(self, name: str) -> tuple[np.ndarray, np.ndarray, np.ndarray]:

@@ -513,7 +513,7 @@ def fit_moore(step_tests=(), loops=(), confidence: float = CONFIDENCE,
     def model_log(u):
         params = dict(zip(PARAMS, np.exp(u), strict=True))
         parts = []
-        for t, rate, stress, lam0 in runs:
+        for t, rate, _, lam0 in runs:
             try:
                 s = stress_history(t, rate, params, initial_structure=lam0)
             except InputRangeError:          # constants under- or overflowed: no fit there

@@ -1,0 +1,21 @@
+"""Cao, Liao, Breedveld & Weeks, arXiv:2011.11806 (Soft Matter 2021), Fig. 2(a) and 2(b): two
+droplet sizes across the glass and jamming transitions.
+
+Run as a user would: the digitised file as it is
+(`data/emulsion_flowcurves_Cao2021_fig2a.csv, ..._fig2b.csv`), a Herschel-Bulkley fit of
+every series, then Mason et al.'s yield stress against phi with phi_c free. Tolerances (our
+choice, stated): rms error of the fits at most 0.10 in ln(stress) (digitising error of a few
+% plus the misfit of the law); fitted phi_c within 0.05 of the value the paper reports (see
+`common.EMULSIONS`); shear thinning (n < 1) in every series more than 0.02 above the fitted
+phi_c (common practice, no source).
+"""
+
+from tests.validation import common
+
+
+def test_import_fit_and_critical_fraction():
+    common.check_emulsion("Cao2021a", series=12, rms_max=0.10)
+
+
+def test_second_panel():
+    common.check_emulsion("Cao2021b", series=10, rms_max=0.10)

@@ -1,0 +1,17 @@
+"""Mason, Bibette & Weitz, J. Colloid Interface Sci. 179, 439 (1996), Fig. 5: monodisperse
+emulsions, phi 0.55-0.65.
+
+Run as a user would: the digitised file as it is
+(`data/emulsion_flowcurves_Mason1996_fig5.csv`), a Herschel-Bulkley fit of every series,
+then Mason et al.'s yield stress against phi with phi_c free. Tolerances (our choice,
+stated): rms error of the fits at most 0.10 in ln(stress) (digitising error of a few % plus
+the misfit of the law); fitted phi_c within 0.05 of the value the paper reports (see
+`common.EMULSIONS`); shear thinning (n < 1) in every series more than 0.02 above the fitted
+phi_c (common practice, no source).
+"""
+
+from tests.validation import common
+
+
+def test_import_fit_and_critical_fraction():
+    common.check_emulsion("Mason1996", series=6, rms_max=0.10)

@@ -1,0 +1,17 @@
+"""Paredes, Michels & Bonn, Phys. Rev. Lett. 111, 015701 (2013), Fig. 1: emulsions across
+jamming, phi 0.65-0.80.
+
+Run as a user would: the digitised file as it is
+(`data/emulsion_flowcurves_Paredes2013_fig1.csv`), a Herschel-Bulkley fit of every series,
+then Mason et al.'s yield stress against phi with phi_c free. Tolerances (our choice,
+stated): rms error of the fits at most 0.10 in ln(stress) (digitising error of a few % plus
+the misfit of the law); fitted phi_c within 0.05 of the value the paper reports (see
+`common.EMULSIONS`); shear thinning (n < 1) in every series more than 0.02 above the fitted
+phi_c (common practice, no source).
+"""
+
+from tests.validation import common
+
+
+def test_import_fit_and_critical_fraction():
+    common.check_emulsion("Paredes2013", series=10, rms_max=0.10)
