@@ -627,3 +627,34 @@ def blend_curve(frame: pd.DataFrame, *, names: list[str], big: bool = False):
     ).properties(height=_height(big, 320), width="container",
                  title=f"Rest of the solids: {names[2]}")
     return fig.spec(chart, big)
+
+
+def points_and_lines(points: pd.DataFrame, lines_: pd.DataFrame, *, x: str, y: str,
+                     series: str, x_title: str, y_title: str, series_title: str,
+                     x_log: bool = True, y_log: bool = True, title: str = "",
+                     big: bool = False) -> dict:
+    """Measured points and fitted lines, one colour per series (flow curves, step tests,
+    slip at several gaps, a parameter against loading)."""
+    fig = Figure()
+    names = list(dict.fromkeys([*points[series], *(lines_[series] if len(lines_) else [])]))
+    colour = alt.Color(f"{series}:N", title=series_title, scale=_palette(names), sort=names)
+    xs = alt.X(f"{x}:Q", title=x_title, scale=alt.Scale(type="log" if x_log else "linear"))
+    ys = alt.Y(f"{y}:Q", title=y_title, scale=alt.Scale(type="log" if y_log else "linear"))
+    tips = [alt.Tooltip(f"{series}:N", title=series_title),
+            alt.Tooltip(f"{x}:Q", format=".4g", title=x_title),
+            alt.Tooltip(f"{y}:Q", format=".4g", title=y_title)]
+    keep = np.isfinite(points[x]) & np.isfinite(points[y])
+    if x_log:
+        keep &= points[x] > 0
+    if y_log:
+        keep &= points[y] > 0
+    dots = fig.chart(points[keep]).mark_point(filled=True, size=55 if not big else 90,
+                                              opacity=0.85).encode(
+        x=xs, y=ys, color=colour, tooltip=tips)
+    parts = [dots]
+    if len(lines_):
+        parts.append(fig.chart(lines_).mark_line(strokeWidth=2.2).encode(
+            x=xs, y=ys, color=colour, tooltip=tips))
+    chart = fig.layer(*parts, height=_height(big, 340), width="container",
+                      **({"title": title} if title else {}))
+    return fig.spec(chart, big)

@@ -440,3 +440,107 @@ def solid_distributions(scenario: str) -> list[dict]:
              "phi": float(mix.phi[k]),
              "dist_json": json.dumps(ing.distribution().to_dict(), sort_keys=True)}
             for k, ing in enumerate(form.ingredients) if ing.kind == fm.SOLID]
+
+
+# --- lab data as it comes: several flow curves, wall slip, thixotropy ------------------------
+
+
+def _flow_curves(text: str, source: str):
+    import io
+
+    from predictor import labdata
+
+    with reading(source):
+        return labdata.read_flow_curves(io.StringIO(text), name=source)
+
+
+@st.cache_data(**CACHE)
+def flow_curve_fits(text: str, source: str, model: str, branch: str) -> dict:
+    """Every series of a rheometer export fitted with `model`, and the yield-stress trend."""
+    from predictor import labdata
+
+    def run():
+        curves = _flow_curves(text, source)
+        fits = labdata.fit_flow_curves(curves, model, branch=branch)
+        table = curves.table
+        lines = []
+        for series, fit in fits.fits.items():
+            rate = np.logspace(np.log10(fit.x.min()), np.log10(fit.x.max()), 60)
+            lines.append(pd.DataFrame({"series": series, "shear_rate_1_per_s": rate,
+                                       "shear_stress_Pa": fit.predict(rate) * rate}))
+        trend, trend_error, trend_line = None, "", pd.DataFrame()
+        phi, tau_y, _ = fits.parameter("yield_stress_Pa")
+        if np.isfinite(tau_y).sum() >= 3:
+            try:
+                fitted = labdata.fit_yield_stress_trend(phi, tau_y, "mason")
+                grid = np.linspace(float(phi.min()), float(phi.max()), 80)
+                trend = {"params": fitted.params, "intervals": fitted.intervals}
+                trend_line = pd.DataFrame({"series": "Mason et al., fitted", "phi": grid,
+                                           "yield_stress_Pa": fitted.predict(grid)})
+            except predictor.LoadlineError as err:
+                trend_error = str(err)
+        return {"table": fits.table(), "points": table[["series", "branch",
+                                                        "shear_rate_1_per_s",
+                                                        "shear_stress_Pa", "phi"]],
+                "lines": pd.concat(lines, ignore_index=True) if lines else pd.DataFrame(),
+                "n_series": len(curves.series()), "n_fitted": len(fits.fits),
+                "slip_warnings": dict(fits.warnings), "notes": list(curves.notes),
+                "trend": trend, "trend_error": trend_error, "trend_line": trend_line,
+                "trend_points": pd.DataFrame({"series": "fitted yield stress", "phi": phi,
+                                              "yield_stress_Pa": tau_y})}
+    return dict(zip(("value", "warnings"), _captured(run), strict=True))
+
+
+@st.cache_data(**CACHE)
+def slip_corrected(text: str, source: str) -> dict:
+    """Apparent curves at two or more gaps and the Yoshimura-Prud'homme corrected curve."""
+    from predictor import labdata
+
+    def run():
+        curves = _flow_curves(text, source)
+        corrected = labdata.slip_correction(curves.by_gap())
+        apparent = curves.table[curves.table["branch"] == "up"][
+            ["series", "shear_rate_1_per_s", "shear_stress_Pa"]]
+        flowing = corrected[~corrected["slip_only"]]
+        line = pd.DataFrame({"series": "slip-corrected",
+                             "shear_rate_1_per_s": flowing["shear_rate_1_per_s"],
+                             "shear_stress_Pa": flowing["shear_stress_Pa"]})
+        return {"apparent": apparent, "corrected": corrected, "line": line,
+                "gaps_mm": sorted(1e3 * g for g in curves.by_gap())}
+    return dict(zip(("value", "warnings"), _captured(run), strict=True))
+
+
+@st.cache_data(**CACHE)
+def thixotropy_fit(text: str, source: str, fraction: float, process_rate_1_per_s: float,
+                   view_rate_1_per_s: float) -> dict:
+    """Moore's model fitted to step tests; recovery after a process step; eta(t) at a rate."""
+    from predictor import thixotropy
+
+    def run():
+        curves = _flow_curves(text, source)
+        tests = curves.step_tests()
+        fit = thixotropy.fit_moore(tests)
+        points, lines = [], []
+        for name, (t, rate, stress, before) in zip(curves.series(), tests, strict=True):
+            points.append(pd.DataFrame({"series": name, "time_s": t, "shear_stress_Pa": stress}))
+            grid = np.linspace(float(t.min()), float(t.max()), 120)
+            model = thixotropy.stress_history(np.r_[grid[0] - 1e12, grid],
+                                              np.r_[before, np.full(grid.size, rate[0])],
+                                              fit.params)[1:]
+            lines.append(pd.DataFrame({"series": name, "time_s": grid,
+                                       "shear_stress_Pa": model}))
+        recovery = float(thixotropy.recovery_time(fraction, fit.params, process_rate_1_per_s))
+        start = float(thixotropy.equilibrium_structure(
+            process_rate_1_per_s, fit.params["build_up_rate_1_per_s"],
+            fit.params["breakdown_coefficient"]))
+        horizon = max(3.0 * recovery, 10.0 / fit.params["build_up_rate_1_per_s"])
+        time = np.linspace(0.0, horizon, 150)
+        history = pd.DataFrame({"series": f"at {view_rate_1_per_s:g} 1/s after the step",
+                                "time_s": time,
+                                "viscosity_Pa_s": thixotropy.viscosity_history(
+                                    time, view_rate_1_per_s, fit.params, start)})
+        return {"params": fit.params, "intervals": fit.intervals, "rmse": fit.rmse,
+                "n_points": fit.n_points, "points": pd.concat(points, ignore_index=True),
+                "lines": pd.concat(lines, ignore_index=True), "recovery_s": recovery,
+                "structure_after_step": start, "history": history}
+    return dict(zip(("value", "warnings"), _captured(run), strict=True))

@@ -133,6 +133,11 @@ DEFAULTS: dict[str, object] = {
     # Calibration (JSON of the fit that set the relation; "" = none)
     "calibration_json": "", "cal_text": "", "cal_source": "", "cal_message": "",
     "cal_rate": None, "cal_model": "krieger-dougherty", "cal_compare": True,
+    # Calibrate page, lab data as it comes (exports, slip at several gaps, step tests)
+    "lab_curves_text": "", "lab_curves_source": "", "lab_model": "herschel-bulkley",
+    "lab_branch": "up", "lab_slip_text": "", "lab_slip_source": "", "lab_step_text": "",
+    "lab_step_source": "", "lab_message": "", "lab_fraction": 90.0,
+    "lab_process_rate": 1000.0, "lab_view_rate": 1.0,
     # Batch screen page
     "batch_files": {}, "batch_table_name": "", "batch_message": "", "batch_result": None,
     "batch_summary": {}, "batch_unit": "Pa*s",

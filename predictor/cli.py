@@ -435,6 +435,10 @@ def cmd_pack(args) -> int:
 
 def cmd_fit(args) -> int:
     labdata = _need("labdata", "read_lab_csv")
+    from .registry import get_model
+
+    if get_model(args.model).kind == "liquid":
+        return _fit_flow_curves(args, labdata)
     options = {}
     if args.scenario:
         options["formulation"] = _scenario(args.scenario)
@@ -463,6 +467,41 @@ def cmd_fit(args) -> int:
     for note in result.notes:
         head += f"\nnote: {note}"
     _emit(args, pd.DataFrame(rows), meta, head)
+    return EXIT_OK
+
+
+def _fit_flow_curves(args, labdata) -> int:
+    """`loadline fit EXPORT --model <liquid law>`: every series of a rheometer export."""
+    curves = labdata.read_flow_curves(args.data)
+    fits = labdata.fit_flow_curves(curves, args.model, branch=args.branch)
+    frame = fits.table()
+    trends = {}
+    phi, tau_y, _ = fits.parameter("yield_stress_Pa")
+    if np.isfinite(tau_y).sum() >= 3:
+        for relation in labdata.YIELD_TRENDS:
+            try:
+                trend = labdata.fit_yield_stress_trend(phi, tau_y, relation)
+            except LoadlineError as err:
+                trends[relation] = {"error": str(err)}
+                continue
+            trends[relation] = {"params": trend.params,
+                                "intervals": {k: list(v) for k, v in trend.intervals.items()},
+                                "rmse_sqrt_Pa": trend.rmse_sqrt, "aic": trend.aic}
+    meta = {"model": fits.model, "branch": fits.branch, "series": len(curves.series()),
+            "points": int(len(curves.table)), "controlled": curves.controlled,
+            "notes": list(curves.notes), "slip_warnings": fits.warnings, "trends": trends}
+    head = [f"fit of {fits.model} to every series of {args.data} ({meta['series']} series, "
+            f"{meta['points']} points, {fits.branch} branch; 95 % intervals)"]
+    for series, text in fits.warnings.items():
+        head.append(f"warning, {series}: {text}")
+    for relation, trend in trends.items():
+        if "error" in trend:
+            head.append(f"yield stress against phi, {relation}: not fitted ({trend['error']})")
+        else:
+            head.append(f"yield stress against phi, {relation}: " + ", ".join(
+                f"{k} = {v:.4g} ({trend['intervals'][k][0]:.4g} to "
+                f"{trend['intervals'][k][1]:.4g})" for k, v in trend["params"].items()))
+    _emit(args, frame, meta, "\n".join(head))
     return EXIT_OK
 
 
@@ -568,7 +607,14 @@ The size table has a 'size [um]' column and 'passing [vol%]' (cumulative), 'amou
 examples:
   loadline fit data_demo/lab_loading_series.csv --particle-density "2700 kg/m3" \\
       --liquid-density "997 kg/m3" --liquid-viscosity "0.89 mPa*s"
-  loadline fit lab.csv --scenario paint.loadline.json --model maron-pierce --json""",
+  loadline fit lab.csv --scenario paint.loadline.json --model maron-pierce --json
+  loadline fit data_demo/lab_emulsion_series.csv --model herschel-bulkley
+
+With a relation of loadings (krieger-dougherty, ...) the file holds viscosities at several
+loadings. With a liquid law (herschel-bulkley, power-law, bingham, ...) it is a rheometer
+export with one or several flow curves (a sample column, or blocks one after another):
+every series is fitted, and the yield stress against phi with the jammed-emulsion
+relations.""",
     "report": """\
 examples:
   loadline report data_demo/mineral_coating.loadline.json -o coating_report.html
@@ -660,8 +706,8 @@ def build_parser() -> argparse.ArgumentParser:
                    help="also run the jamming simulation (takes seconds)")
     _add_output(p, viscosity=False)
 
-    p = add("fit", "calibrate a relation to lab viscosities (CSV)", cmd_fit)
-    p.add_argument("data", help="lab CSV (units in the headers)")
+    p = add("fit", "calibrate a relation to lab viscosities or flow curves (CSV)", cmd_fit)
+    p.add_argument("data", help="lab CSV or rheometer export (units in the headers)")
     p.add_argument("--model", default="krieger-dougherty", help="relation to fit")
     p.add_argument("--scenario", help="scenario giving the densities and the liquid")
     p.add_argument("--particle-density", metavar="DENSITY", help='e.g. "2700 kg/m3"')
@@ -669,6 +715,8 @@ def build_parser() -> argparse.ArgumentParser:
     p.add_argument("--liquid-viscosity", metavar="VISCOSITY", help='e.g. "0.89 mPa*s"')
     p.add_argument("--shear-rate", metavar="RATE",
                    help="use the rows measured at this shear rate")
+    p.add_argument("--branch", choices=["up", "down"], default="up",
+                   help="with a liquid law: the branch of each flow curve to fit (default up)")
     _add_output(p, viscosity=False)
 
     p = add("report", "write an HTML (and optionally PDF) report of a scenario", cmd_report)

@@ -396,7 +396,10 @@ _PHI_LABEL = re.compile(r"(?:phi|vol\s*%?|volume\s*fraction)\s*[_=:]?\s*([0-9]*\
 _UNIT_SUFFIX = re.compile(r"_per_", re.I)
 _TITLE = re.compile(r"^\s*(?:sample|series|curve|specimen|test|name)\s*[:=]\s*(.+?)\s*$", re.I)
 FLOW_ROLES = ("shear_rate", "shear_stress", "viscosity", "loading_volume", "temperature",
-              "time")
+              "time", "gap", "preshear_rate")
+#: Extra columns of an export: role -> (dimension for units.to_si, SI column name).
+_EXTRA_ROLES = {"time": ("time", "time_s"), "gap": ("length", "gap_m"),
+                "preshear_rate": ("shear_rate", "preshear_rate_1_per_s")}
 
 
 def classify_export_header(header: str) -> tuple[str | None, str | None]:
@@ -421,8 +424,14 @@ def classify_export_header(header: str) -> tuple[str | None, str | None]:
         return "series", None
     name = _BRACKET.match(text)
     base = (name.group(1) if name else text).lower().replace("_", " ").strip()
-    if base in ("time", "t [s]", "elapsed time", "step time"):
-        return ("time", name.group(2) if name else None)
+    unit = name.group(2) if name else None
+    if base in ("time", "elapsed time", "step time", "time since step"):
+        return "time", unit
+    if base in ("gap", "plate gap", "measuring gap"):
+        return "gap", unit
+    if base.replace("-", "").replace(" ", "") in ("preshearrate", "rapidshearrate",
+                                                  "ratebefore", "ratebeforestep"):
+        return "preshear_rate", unit
     role, unit = classify_header(text)
     if role is not None and (unit is not None or role.startswith("loading")
                              or role == "relative_viscosity" and "_" not in text):
@@ -458,6 +467,31 @@ class FlowCurves:
     def series(self) -> list[str]:
         """Series names in file order."""
         return list(dict.fromkeys(self.table["series"]))
+
+    def by_gap(self, branch: str = "up") -> dict:
+        """``{gap_m: (apparent_shear_rate_1_per_s, shear_stress_Pa)}`` for `slip_correction`."""
+        rows = self.table[self.table["branch"] == branch]
+        if rows["gap_m"].isna().any():
+            raise ScenarioError(f"{self.source}: no gap for every row; add a 'gap [mm]' column")
+        return {float(g): (part["shear_rate_1_per_s"].to_numpy(),
+                           part["shear_stress_Pa"].to_numpy())
+                for g, part in rows.groupby("gap_m", sort=True)}
+
+    def step_tests(self) -> list:
+        """Each series as a step test ``(time_s, shear_rate_1_per_s, shear_stress_Pa,
+        rate_before)`` for `thixotropy.fit_moore` (needs time and pre-shear rate columns)."""
+        out = []
+        for name in self.series():
+            rows = self.table[self.table["series"] == name]
+            for column, header in (("time_s", "time [s]"),
+                                   ("preshear_rate_1_per_s", "pre-shear rate [1/s]")):
+                if rows[column].isna().any():
+                    raise ScenarioError(f"{self.source}: series {name!r} has no {column}; add "
+                                        f"a '{header}' column")
+            out.append((rows["time_s"].to_numpy(), rows["shear_rate_1_per_s"].to_numpy(),
+                        rows["shear_stress_Pa"].to_numpy(),
+                        float(rows["preshear_rate_1_per_s"].iloc[0])))
+        return out
 
     def curve(self, name: str, branch: str | None = "up") -> pd.DataFrame:
         """The points of one series (one branch, or both with ``branch=None``)."""
@@ -606,8 +640,10 @@ def read_flow_curves(source, *, name: str | None = None) -> FlowCurves:
                     raise ScenarioError(f"{name}, line {lines[bad[0]]}, column '{h}': empty "
                                         "cell; every row needs its series name")
                 continue
-            if role == "time":
-                data["time_s"] = _convert_time([r[j] for _, r in rows], lines, h, unit, name)
+            if role in _EXTRA_ROLES:
+                dimension, column = _EXTRA_ROLES[role]
+                data[column] = _convert_extra([r[j] for _, r in rows], lines, h, unit, name,
+                                              dimension)
                 continue
             data[ROLES[role][1]] = _convert_column([r[j] for _, r in rows], lines, h, role,
                                                    unit, name)
@@ -632,7 +668,10 @@ def read_flow_curves(source, *, name: str | None = None) -> FlowCurves:
         elif mode != controlled:
             notes.append(f"block at line {header_line} is {mode.replace('_', '-')}-controlled")
         phi = block["phi"].to_numpy() if "phi" in block else np.full(len(block), np.nan)
-        if "series" not in block:
+        if "series" not in block and "gap_m" in block:
+            block["series"] = [f"{title + ', ' if title else ''}gap {1e3 * g:g} mm"
+                               for g in block["gap_m"]]
+        elif "series" not in block:
             label = title or (f"block {b + 1}" if "phi" not in block else None)
             block["series"] = [label or f"phi {p:g}" for p in phi]
         elif title:
@@ -642,7 +681,9 @@ def read_flow_curves(source, *, name: str | None = None) -> FlowCurves:
                                for s, p in zip(block["series"], phi, strict=True)]
         labelled = np.array([_phi_from_label(s) for s in block["series"]])
         block["phi"] = np.where(np.isnan(phi), labelled, phi)
-        block["time_s"] = block["time_s"] if "time_s" in block else np.nan
+        for column in ("time_s", "gap_m", "preshear_rate_1_per_s"):
+            if column not in block:
+                block[column] = np.nan
         block["line"] = lines
         frames.append(block)
     table = pd.concat(frames, ignore_index=True)
@@ -651,7 +692,7 @@ def read_flow_curves(source, *, name: str | None = None) -> FlowCurves:
     for _, index in table.groupby("series", sort=False).groups.items():
         table.loc[index, "branch"] = _branches(table.loc[index, x_column].to_numpy())
     columns = ["series", "phi", "branch", "shear_rate_1_per_s", "shear_stress_Pa",
-               "viscosity_Pa_s", "time_s", "line"]
+               "viscosity_Pa_s", "time_s", "gap_m", "preshear_rate_1_per_s", "line"]
     n_series = table["series"].nunique()
     notes.insert(0, f"{n_series} series, {len(table)} points, {controlled.replace('_', ' ')} "
                  "controlled")
@@ -672,7 +713,7 @@ def _phi_from_label(label: str) -> float:
     return value if 0 < value < 1 else float("nan")
 
 
-def _convert_time(values, lines, header, unit, source) -> np.ndarray:
+def _convert_extra(values, lines, header, unit, source, dimension) -> np.ndarray:
     out = np.empty(len(values))
     for k, (cell, line) in enumerate(zip(values, lines, strict=True)):
         text = (cell or "").strip()
@@ -682,9 +723,14 @@ def _convert_time(values, lines, header, unit, source) -> np.ndarray:
             raise ScenarioError(f"{source}, line {line}, column '{header}': {text!r} is not a "
                                 "number") from None
     if unit is None:
+        example = {"time": "s", "length": "mm", "shear_rate": "1/s"}[dimension]
         raise UnitError(f"{source}, column '{header}': no unit; write it in brackets, e.g. "
-                        f"'{header} [s]'")
-    return out * to_si(1.0, unit, "time", header)
+                        f"'{header} [{example}]'")
+    if not np.all(np.isfinite(out)) or np.any(out < 0):
+        k = int(np.argmax(~np.isfinite(out) | (out < 0)))
+        raise ScenarioError(f"{source}, line {lines[k]}, column '{header}': {values[k]!r} "
+                            "must be a finite number >= 0")
+    return out * to_si(1.0, unit, dimension, header)
 
 
 # --- fitting every series at once ----------------------------------------------------------
