@@ -486,7 +486,7 @@ def _fit_flow_curves(args, labdata) -> int:
                 continue
             trends[relation] = {"params": trend.params,
                                 "intervals": {k: list(v) for k, v in trend.intervals.items()},
-                                "rmse_sqrt_Pa": trend.rmse_sqrt, "aic": trend.aic}
+                                "rmse_sqrt": trend.rmse_sqrt, "aic": trend.aic}
     meta = {"model": fits.model, "branch": fits.branch, "series": len(curves.series()),
             "points": int(len(curves.table)), "controlled": curves.controlled,
             "notes": list(curves.notes), "slip_warnings": fits.warnings, "trends": trends}
