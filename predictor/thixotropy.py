@@ -207,7 +207,15 @@ def structure(time_s, shear_rate_1_per_s, initial_structure, build_up_rate_1_per
     return scalar_or_array(lam_e + (lam0 - lam_e) * np.exp(-k * t), t, rate, lam0, a, b)
 
 
+def _scalar(value, field: str, low: float, high: float, **open_ends) -> float:
+    if np.ndim(value) != 0:
+        raise InputRangeError(field, f"an array of shape {np.shape(value)}", "a single number")
+    return float(in_range(value, field, low, high, **open_ends))
+
+
 def _params(params: dict) -> tuple[float, float, float, float]:
+    if not isinstance(params, dict):
+        raise InputRangeError("params", type(params).__name__, f"a dict with {', '.join(PARAMS)}")
     missing = [k for k in PARAMS if k not in params]
     if missing:
         raise InputRangeError("params", sorted(params), f"a dict with {', '.join(PARAMS)}")
@@ -317,8 +325,8 @@ def stress_history(time_s, shear_rate_1_per_s, params: dict, initial_structure=N
     if np.any(np.diff(t) < 0):
         raise InputRangeError("time_s", "decreasing", "increasing sample times")
     lam = np.empty_like(t)
-    lam[0] = a / (a + b * rate[0]) if initial_structure is None else float(
-        in_range(initial_structure, "initial_structure", 0.0, 1.0))
+    lam[0] = a / (a + b * rate[0]) if initial_structure is None else _scalar(
+        initial_structure, "initial_structure", 0.0, 1.0)
     k = a + b * rate[:-1]
     decay = np.exp(-k * np.diff(t))
     lam_e = a / k
@@ -491,15 +499,14 @@ def fit_moore(step_tests=(), loops=(), confidence: float = CONFIDENCE,
     """
     from scipy import optimize, stats
 
-    confidence = float(in_range(confidence, "confidence", 0.0, 1.0, low_open=True,
-                                high_open=True))
+    confidence = _scalar(confidence, "confidence", 0.0, 1.0, low_open=True, high_open=True)
     steps = _tests(step_tests, "step_tests")
     runs = []
     for t, rate, stress, before in steps:
         if before is None:
             raise InputRangeError("step_tests", "no rate_before", "the pre-shear rate of each "
                                   "step test")
-        before = float(in_range(before, "rate_before", 0.0, np.inf))
+        before = _scalar(before, "rate_before", 0.0, np.inf)
         runs.append((np.r_[t[0] - 1e12, t], np.r_[before, rate], stress, None))
     for t, rate, stress, lam0 in _tests(loops, "loops"):
         runs.append((t, rate, stress, 1.0 if lam0 is None else lam0))

@@ -29,12 +29,14 @@ from predictor import (
     sizes,
     stability,
     suspension,
+    thixotropy,
     viscosity,
 )
 from predictor.errors import LoadlineError, ValidityWarning
 from tests.conftest import FUZZ_CASES, FUZZ_EXAMPLES
 
-MODULES = [suspension, emulsion, liquids, shear, stability, composition, viscosity, packing]
+MODULES = [suspension, emulsion, liquids, shear, stability, composition, viscosity, packing,
+           thixotropy]
 # Slow by design (seconds per call): fuzzed with few cases in their own tests.
 SLOW = {"jamming_simulation", "simulation", "simulation_fit", "max_packing_simulation"}
 

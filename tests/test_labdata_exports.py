@@ -5,10 +5,12 @@ import io
 import numpy as np
 import pandas as pd
 import pytest
+from hypothesis import given, settings
+from hypothesis import strategies as st
 
 import predictor  # noqa: F401
 from predictor import emulsion, labdata
-from predictor.errors import FitError, InputRangeError, ScenarioError, UnitError
+from predictor.errors import FitError, InputRangeError, LoadlineError, ScenarioError, UnitError
 
 BLOCKS = """\
 # invented export: two samples, up and down sweeps, ';' and decimal commas
@@ -203,3 +205,22 @@ def test_fit_flow_curves_attaches_the_slip_warning():
     curves = labdata.read_flow_curves(buffer, name="one gap")
     fits = labdata.fit_flow_curves(curves, "herschel-bulkley")
     assert "block 1" in fits.warnings
+
+
+@given(st.lists(st.sampled_from(["shear rate [1/s]", "shear_rate_1/s", "stress_Pa",
+                                 "viscosity [mPa*s]", "Sample: A", "sample", "phi", "0,5",
+                                 "1", "-2", "abc", "", ";", ",", '"', "1e400", "nan",
+                                 "time [s]", "gap [mm]", "\t"]), max_size=40))
+@settings(max_examples=150, deadline=None, derandomize=True)
+def test_fuzzed_exports_parse_or_fail_with_a_named_reason(pieces):
+    # Random exports built from header, title and cell fragments: either read, with finite
+    # positive values, or refused with a LoadlineError (never another exception).
+    text = "".join(p + (", " if i % 3 else "\n") for i, p in enumerate(pieces))
+    try:
+        curves = labdata.read_flow_curves_text(text, "fuzz.csv")
+    except LoadlineError as err:
+        assert str(err).strip()
+        return
+    t = curves.table
+    for column in ("shear_rate_1_per_s", "shear_stress_Pa", "viscosity_Pa_s"):
+        assert np.all(np.isfinite(t[column])) and np.all(t[column] > 0)
