@@ -16,7 +16,7 @@ from app import charts, compute, state, widgets
 ss = st.session_state
 
 #: Demo files loaded by "Use the demo lab data" (invented; each file says so).
-DEMO_FILES = {"cal": "lab_loading_series.csv", "lab_curves": "lab_emulsion_series.csv",
+DEMO_FILES = {"cal": "lab_loading_series_relative.csv", "lab_curves": "lab_emulsion_series.csv",
               "lab_slip": "lab_slip_gaps.csv", "lab_step": "lab_step_test.csv"}
 LAWS = ("herschel-bulkley", "power-law", "bingham", "casson")
 HEADERS = {"yield_stress_Pa": "yield stress [Pa]", "consistency_Pa_s": "consistency K [Pa·sⁿ]",

@@ -988,8 +988,11 @@ def slip_correction(curves: dict, shear_stress_Pa=None) -> pd.DataFrame:
     -------
     pandas.DataFrame
         Columns ``shear_stress_Pa``, ``shear_rate_1_per_s`` (slip-corrected),
-        ``slip_velocity_m_per_s``, and ``slip_only`` (True where the corrected rate is not
-        above zero: the sample moves as a plug on its slip layers; the rate is then 0).
+        ``slip_velocity_m_per_s`` with its 95 % interval (``slip_velocity_low_m_per_s``,
+        ``slip_velocity_high_m_per_s``; NaN with two gaps, where no scatter is left to
+        estimate it), and ``slip_only`` (True where the corrected rate is not
+        above zero, or with three or more gaps where its 95 % interval reaches zero: the
+        sample moves as a plug on its slip layers; the rate is then 0).
 
     Raises
     ------
@@ -1067,9 +1070,24 @@ def slip_correction(curves: dict, shear_stress_Pa=None) -> pd.DataFrame:
         (x - xm) ** 2)
     intercept = rates.mean(axis=0) - slope * xm
     slip_only = intercept <= 1e-9 * rates.max(axis=0)     # zero within rounding
+    if x.size >= 3:
+        # With three or more gaps the scatter about the line gives the intercept's 95 %
+        # interval: a true rate whose interval reaches zero is not told apart from slip.
+        from scipy import stats
+
+        resid = rates - (intercept + slope * x[:, None])
+        s2 = np.sum(resid**2, axis=0) / (x.size - 2)
+        se = np.sqrt(s2 * (1.0 / x.size + xm**2 / np.sum((x - xm) ** 2)))
+        t95 = stats.t.ppf(0.975, x.size - 2)
+        slip_only |= intercept - t95 * se <= 0
+        half = t95 * np.sqrt(s2 / np.sum((x - xm) ** 2)) / 2.0      # of v_s = slope / 2
+    else:
+        half = np.full(tau.size, np.nan)
     return pd.DataFrame({"shear_stress_Pa": tau,
                          "shear_rate_1_per_s": np.where(slip_only, 0.0, intercept),
                          "slip_velocity_m_per_s": slope / 2.0,
+                         "slip_velocity_low_m_per_s": slope / 2.0 - half,
+                         "slip_velocity_high_m_per_s": slope / 2.0 + half,
                          "slip_only": slip_only})
 
 

@@ -224,3 +224,18 @@ def test_fuzzed_exports_parse_or_fail_with_a_named_reason(pieces):
     t = curves.table
     for column in ("shear_rate_1_per_s", "shear_stress_Pa", "viscosity_Pa_s"):
         assert np.all(np.isfinite(t[column])) and np.all(t[column] > 0)
+
+
+def test_slip_velocity_intervals_hold_the_truth_with_noise():
+    # Three gaps, 1 % noise on the apparent rates (seeded): the 95 % interval of the slip
+    # velocity holds the invented slip law at most stresses (at least 80 % of them).
+    rng = np.random.default_rng(7)
+    curves = {}
+    tau = np.logspace(np.log10(21.0), np.log10(60.0), 25)
+    for h in (0.5e-3, 1e-3, 2e-3):
+        apparent = _true_rate(tau) + 2 * _slip_velocity(tau) / h
+        curves[h] = (apparent * np.exp(rng.normal(0, 0.01, tau.size)), tau)
+    out = labdata.slip_correction(curves)
+    v = _slip_velocity(out["shear_stress_Pa"].to_numpy())
+    inside = (out["slip_velocity_low_m_per_s"] <= v) & (v <= out["slip_velocity_high_m_per_s"])
+    assert inside.mean() >= 0.8

@@ -21,7 +21,7 @@ def _demo(at):
 
 
 def test_demo_lab_data_fills_every_panel_with_predictors_numbers():
-    at = _demo(page("calibrate", scenario="ceramic_slip").run())
+    at = _demo(page("calibrate").run())         # the paint: a thickened, non-Newtonian liquid
     assert at.session_state["lab_curves_source"] == "lab_emulsion_series.csv"
     curves = labdata.read_flow_curves(DEMO / "lab_emulsion_series.csv")
     fits = labdata.fit_flow_curves(curves, "herschel-bulkley")
@@ -37,7 +37,8 @@ def test_demo_lab_data_fills_every_panel_with_predictors_numbers():
     assert metric(at, "Recovery to 90") == widgets.fmt(expected) + " s"
     assert np.isfinite(expected) and expected > 0
     # the loading-series part got the demo file too
-    assert at.session_state["cal_source"] == "lab_loading_series.csv"
+    assert at.session_state["cal_source"] == "lab_loading_series_relative.csv"
+    assert not at.error          # the loading series calibrates whatever scenario is open
 
 
 def test_changing_the_law_and_the_step_inputs_refits():
