@@ -114,13 +114,20 @@ def emulsion_result(key: str) -> dict:
             failed[relation] = str(err)
     residuals = np.concatenate([f.residuals for f in fits.fits.values()])
     mason = trends["mason"]
+    # The other law that applies to every series: a power law (no yield stress). Delta AIC
+    # = AIC(power law) - AIC(Herschel-Bulkley); above 2 the yield stress is supported.
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", ValidityWarning)
+        power = labdata.fit_flow_curves(curves, "power-law")
+    delta_aic = {s: power.fits[s].aic - f.aic for s, f in fits.fits.items() if s in power.fits}
     return {"spec": spec, "curves": curves, "fits": fits, "phi": phi, "yield_stress_Pa": tau_y,
             "flow_index": n, "trends": trends, "trend_failed": failed,
             "points": int(len(curves.table)), "series": len(curves.series()),
             "rms_ln": float(np.sqrt(np.mean(residuals**2))),
             "max_abs_ln": float(np.max(np.abs(residuals))),
             "phi_c": mason.params["phi_c"], "phi_c_interval": mason.intervals["phi_c"],
-            "phi_c_difference": mason.params["phi_c"] - spec.reported_phi_c}
+            "phi_c_difference": mason.params["phi_c"] - spec.reported_phi_c,
+            "delta_aic": delta_aic, "power_failed": dict(power.failed)}
 
 
 @functools.cache
@@ -196,7 +203,16 @@ def check_emulsion(key: str, series: int, rms_max: float) -> dict:
     assert lo < r["phi_c"] < hi
     jammed = r["phi"] > r["phi_c"] + 0.02
     assert jammed.any() and np.all(r["flow_index"][jammed] < 1.0), r["flow_index"]
+    # Above phi_c the yield stress is real: Herschel-Bulkley beats a power law by more than
+    # 2 in AIC in every such series (Burnham & Anderson's rule of thumb, from memory).
+    fits = r["fits"]
+    above = [s for s in fits.fits if fits.phi[s] > r["phi_c"] + 0.02]
+    assert not r["power_failed"] and all(r["delta_aic"][s] > 2 for s in above), r["delta_aic"]
     return r
+
+
+def _preferred(r) -> int:
+    return sum(d > 2 for d in r["delta_aic"].values())
 
 
 def _verdict_fits(fits) -> str:
@@ -224,7 +240,9 @@ def readme_section() -> str:
             f"et al.'s yield stress against phi | {r['points']} | rms {r['rms_ln']:.3f} "
             f"(max {r['max_abs_ln']:.3f}) in ln(stress); fitted phi_c {r['phi_c']:.3f} "
             f"({lo:.3f}-{hi:.3f}) vs {spec.reported_phi_c:g} reported: "
-            f"{r['phi_c_difference']:+.3f} | {_verdict_fits(r['fits'])}; phi_c "
+            f"{r['phi_c_difference']:+.3f}; Herschel-Bulkley preferred to a power law "
+            f"(AIC lower by more than 2) in {_preferred(r)} of {len(r['delta_aic'])} series "
+            f"| {_verdict_fits(r['fits'])}; phi_c "
             f"{_verdict_phi_c(r)} "
             f"within {PHI_C_TOLERANCE:g} |")
     g = glass_result()

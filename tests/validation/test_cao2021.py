@@ -8,6 +8,8 @@ choice, stated): rms error of the fits at most 0.10 in ln(stress) (digitising er
 % plus the misfit of the law); fitted phi_c within 0.05 of the value the paper reports (see
 `common.EMULSIONS`); shear thinning (n < 1) in every series more than 0.02 above the fitted
 phi_c (common practice, no source).
+Herschel-Bulkley beats a power law (no yield stress) by more than 2 in AIC in every
+series above phi_c (Burnham & Anderson's rule of thumb, from memory).
 """
 
 from tests.validation import common
