@@ -518,15 +518,22 @@ def thixotropy_fit(text: str, source: str, fraction: float, process_rate_1_per_s
 
     def run():
         curves = _flow_curves(text, source)
-        tests = curves.step_tests()
-        fit = thixotropy.fit_moore(tests)
+        steps, loops = curves.thixotropy_tests()
+        fit = thixotropy.fit_moore(steps, loops)
         points, lines = [], []
-        for name, (t, rate, stress, before) in zip(curves.series(), tests, strict=True):
-            points.append(pd.DataFrame({"series": name, "time_s": t, "shear_stress_Pa": stress}))
-            grid = np.linspace(float(t.min()), float(t.max()), 120)
-            model = thixotropy.stress_history(np.r_[grid[0] - 1e12, grid],
-                                              np.r_[before, np.full(grid.size, rate[0])],
-                                              fit.params)[1:]
+        for name in curves.series():
+            rows = curves.table[curves.table["series"] == name]
+            t, rate = rows["time_s"].to_numpy(), rows["shear_rate_1_per_s"].to_numpy()
+            before = float(rows["preshear_rate_1_per_s"].iloc[0])
+            points.append(pd.DataFrame({"series": name, "time_s": t,
+                                        "shear_stress_Pa": rows["shear_stress_Pa"]}))
+            if np.isnan(before):          # a loop or other history from a rested sample
+                grid, model = t, thixotropy.stress_history(t, rate, fit.params, 1.0)
+            else:                         # a step test after a pre-shear
+                grid = np.linspace(float(t.min()), float(t.max()), 120)
+                model = thixotropy.stress_history(np.r_[grid[0] - 1e12, grid],
+                                                  np.r_[before, np.full(grid.size, rate[0])],
+                                                  fit.params)[1:]
             lines.append(pd.DataFrame({"series": name, "time_s": grid,
                                        "shear_stress_Pa": model}))
         recovery = float(thixotropy.recovery_time(fraction, fit.params, process_rate_1_per_s))

@@ -162,10 +162,11 @@ def slip_panel() -> None:
 def thixotropy_panel() -> None:
     left, right = st.columns([1, 3], gap="large")
     with left:
-        have = _upload("lab_step", "Step tests (CSV)",
+        have = _upload("lab_step", "Step tests or loops (CSV)",
                        "Step-down tests after a pre-shear: columns 'test', 'pre-shear rate "
-                       "[1/s]', 'time [s]', 'shear rate [1/s]', 'shear stress [Pa]'. Two or "
-                       "more final rates are needed.")
+                       "[1/s]', 'time [s]', 'shear rate [1/s]', 'shear stress [Pa]'; two or "
+                       "more final rates are needed. A test with empty pre-shear cells is a "
+                       "rate history from a rested sample, such as a hysteresis loop.")
         st.number_input("Structure to regain [%]", 1.0, 99.9, key="lab_fraction", step=5.0)
         st.number_input("Process shear rate [1/s]", 0.0, 1e7, key="lab_process_rate",
                         help="Pumping, brushing or mixing before the rest.")
@@ -173,8 +174,9 @@ def thixotropy_panel() -> None:
                         help="The viscosity against time is shown at this rate.")
     if not have:
         with right:
-            st.info("Upload step-down tests to fit Moore's structure kinetics and see how "
-                    "long the product takes to rebuild after a process step.",
+            st.info("Upload step-down tests (and hysteresis loops) to fit Moore's structure "
+                    "kinetics and see how long the product takes to rebuild after a process "
+                    "step.",
                     icon=":material/upload_file:")
         return
     try:
@@ -200,8 +202,8 @@ def thixotropy_panel() -> None:
         chart = charts.points_and_lines(
             value["points"], value["lines"], x="time_s", y="shear_stress_Pa", series="series",
             x_title="Time since the step [s]", y_title="Shear stress [Pa]",
-            series_title="Step test", x_log=False, title="Step tests (points) and Moore's "
-            "model fitted to all of them (lines)", big=ss["presentation"])
+            series_title="Test", x_log=False, title="Step tests and loops (points) and "
+            "Moore's model fitted to all of them (lines)", big=ss["presentation"])
         widgets.chart_block(chart, value["points"], "step-tests", "labstep")
         history = charts.points_and_lines(
             value["history"].iloc[:0], value["history"], x="time_s", y="viscosity_Pa_s",

@@ -477,21 +477,40 @@ class FlowCurves:
                            part["shear_stress_Pa"].to_numpy())
                 for g, part in rows.groupby("gap_m", sort=True)}
 
-    def step_tests(self) -> list:
-        """Each series as a step test ``(time_s, shear_rate_1_per_s, shear_stress_Pa,
-        rate_before)`` for `thixotropy.fit_moore` (needs time and pre-shear rate columns)."""
-        out = []
+    def thixotropy_tests(self) -> tuple[list, list]:
+        """(step tests, loops) for `thixotropy.fit_moore`, one per series.
+
+        A series with a pre-shear rate is a step test ``(time_s, shear_rate_1_per_s,
+        shear_stress_Pa, rate_before)``; one without (empty pre-shear cells, or no such
+        column) is a rate history such as a hysteresis loop from a rested sample
+        ``(time_s, shear_rate_1_per_s, shear_stress_Pa, 1.0)``. Every series needs times.
+        """
+        steps, loops = [], []
         for name in self.series():
             rows = self.table[self.table["series"] == name]
-            for column, header in (("time_s", "time [s]"),
-                                   ("preshear_rate_1_per_s", "pre-shear rate [1/s]")):
-                if rows[column].isna().any():
-                    raise ScenarioError(f"{self.source}: series {name!r} has no {column}; add "
-                                        f"a '{header}' column")
-            out.append((rows["time_s"].to_numpy(), rows["shear_rate_1_per_s"].to_numpy(),
-                        rows["shear_stress_Pa"].to_numpy(),
-                        float(rows["preshear_rate_1_per_s"].iloc[0])))
-        return out
+            if rows["time_s"].isna().any():
+                raise ScenarioError(f"{self.source}: series {name!r} has no time for every "
+                                    "row; add a 'time [s]' column")
+            data = (rows["time_s"].to_numpy(), rows["shear_rate_1_per_s"].to_numpy(),
+                    rows["shear_stress_Pa"].to_numpy())
+            before = rows["preshear_rate_1_per_s"]
+            if before.notna().all():
+                steps.append((*data, float(before.iloc[0])))
+            elif before.isna().all():
+                loops.append((*data, 1.0))
+            else:
+                k = int(np.argmax(before.isna().to_numpy()))
+                raise ScenarioError(f"{self.source}, line {int(rows['line'].iloc[k])}: series "
+                                    f"{name!r} has a pre-shear rate on some rows only")
+        return steps, loops
+
+    def step_tests(self) -> list:
+        """The step tests of `thixotropy_tests` (refused if a series has no pre-shear rate)."""
+        steps, loops = self.thixotropy_tests()
+        if loops:
+            raise ScenarioError(f"{self.source}: {len(loops)} series without a pre-shear rate; "
+                                "add a 'pre-shear rate [1/s]' column")
+        return steps
 
     def curve(self, name: str, branch: str | None = "up") -> pd.DataFrame:
         """The points of one series (one branch, or both with ``branch=None``)."""
@@ -717,6 +736,9 @@ def _convert_extra(values, lines, header, unit, source, dimension) -> np.ndarray
     out = np.empty(len(values))
     for k, (cell, line) in enumerate(zip(values, lines, strict=True)):
         text = (cell or "").strip()
+        if not text:                       # optional per row (e.g. no pre-shear in a loop)
+            out[k] = np.nan
+            continue
         try:
             out[k] = float(text)
         except ValueError:
@@ -726,8 +748,8 @@ def _convert_extra(values, lines, header, unit, source, dimension) -> np.ndarray
         example = {"time": "s", "length": "mm", "shear_rate": "1/s"}[dimension]
         raise UnitError(f"{source}, column '{header}': no unit; write it in brackets, e.g. "
                         f"'{header} [{example}]'")
-    if not np.all(np.isfinite(out)) or np.any(out < 0):
-        k = int(np.argmax(~np.isfinite(out) | (out < 0)))
+    if np.any(np.isinf(out)) or np.any(out < 0):
+        k = int(np.argmax(np.isinf(out) | (out < 0)))
         raise ScenarioError(f"{source}, line {lines[k]}, column '{header}': {values[k]!r} "
                             "must be a finite number >= 0")
     return out * to_si(1.0, unit, dimension, header)

@@ -239,3 +239,19 @@ def test_slip_velocity_intervals_hold_the_truth_with_noise():
     v = _slip_velocity(out["shear_stress_Pa"].to_numpy())
     inside = (out["slip_velocity_low_m_per_s"] <= v) & (v <= out["slip_velocity_high_m_per_s"])
     assert inside.mean() >= 0.8
+
+
+def test_step_tests_and_loops_are_told_apart_by_the_pre_shear_column():
+    head = "test,pre-shear rate [1/s],time [s],shear rate [1/s],shear stress [Pa]\n"
+    steps_and_loop = head + ("step,300,0,1,2\nstep,300,10,1,3\nstep,300,20,1,3.5\n"
+                             "loop,,0,1,10\nloop,,10,50,40\nloop,,20,1,4\n")
+    curves = labdata.read_flow_curves_text(steps_and_loop)
+    steps, loops = curves.thixotropy_tests()
+    assert [s[3] for s in steps] == [300.0] and [lp[3] for lp in loops] == [1.0]
+    assert loops[0][1].tolist() == [1.0, 50.0, 1.0]
+    with pytest.raises(ScenarioError, match="without a pre-shear rate"):
+        curves.step_tests()
+    partial = head + "step,300,0,1,2\nstep,,10,1,3\n"
+    with pytest.raises(ScenarioError, match="line 3: series 'step' has a pre-shear rate on "
+                                            "some rows only"):
+        labdata.read_flow_curves_text(partial).thixotropy_tests()

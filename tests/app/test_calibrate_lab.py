@@ -32,7 +32,9 @@ def test_demo_lab_data_fills_every_panel_with_predictors_numbers():
     gaps = labdata.read_flow_curves(DEMO / "lab_slip_gaps.csv").by_gap()
     corrected = labdata.slip_correction(gaps)
     assert metric(at, "Slip-corrected points") == str(int((~corrected["slip_only"]).sum()))
-    fit = thixotropy.fit_moore(labdata.read_flow_curves(DEMO / "lab_step_test.csv").step_tests())
+    steps, loops = labdata.read_flow_curves(DEMO / "lab_step_test.csv").thixotropy_tests()
+    assert len(steps) == 3 and len(loops) == 1
+    fit = thixotropy.fit_moore(steps, loops)
     expected = thixotropy.recovery_time(0.9, fit.params, 1000.0)
     assert metric(at, "Recovery to 90") == widgets.fmt(expected) + " s"
     assert np.isfinite(expected) and expected > 0
