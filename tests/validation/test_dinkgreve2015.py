@@ -10,6 +10,9 @@ the misfit of the law); fitted phi_c within 0.05 of the value the paper reports 
 phi_c (common practice, no source).
 Herschel-Bulkley beats a power law (no yield stress) by more than 2 in AIC in every
 series above phi_c (Burnham & Anderson's rule of thumb, from memory).
+Predicted (not fitted) with Loadline's jammed-emulsion flow curve from the fitted Laplace
+pressure and phi_c (continuous phase 1 mPa*s assumed): the median of measured / predicted
+stress above phi_c within a factor 3 (screening estimate; our choice).
 """
 
 from tests.validation import common
