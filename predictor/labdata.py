@@ -455,7 +455,8 @@ class FlowCurves:
 
     `table` columns: series (name), phi (NaN where unknown), branch ("up" or "down": the
     direction of the controlled variable), shear_rate_1_per_s, shear_stress_Pa,
-    viscosity_Pa_s, time_s (NaN where absent), line (the file line). `controlled` is
+    viscosity_Pa_s, and where the file has them (else NaN) time_s, gap_m (plate gap) and
+    preshear_rate_1_per_s (step tests), then line (the file line). `controlled` is
     "shear_rate" or "shear_stress": the first of the two columns in the file.
     """
 
@@ -595,7 +596,10 @@ def read_flow_curves(source, *, name: str | None = None) -> FlowCurves:
     rate, shear stress and viscosity; the third is computed. The first of rate and stress
     in the file is taken as the controlled variable; each series is split into an
     ascending ("up") and a descending ("down") branch where the controlled variable turns.
-    A series label such as ``phi_0.8`` gives its volume fraction.
+    A series label such as ``phi_0.8`` gives its volume fraction. Optional columns: ``time
+    [s]``, ``gap [mm]`` (each gap its own series, for `slip_correction` through
+    `FlowCurves.by_gap`) and ``pre-shear rate [1/s]`` (step tests, for
+    `thixotropy.fit_moore` through `FlowCurves.thixotropy_tests`).
 
     Parameters
     ----------
