@@ -1,6 +1,7 @@
 """Rheometer exports: several curves per file, units in headers, branches, slip, trends."""
 
 import io
+import pathlib
 
 import numpy as np
 import pandas as pd
@@ -255,3 +256,20 @@ def test_step_tests_and_loops_are_told_apart_by_the_pre_shear_column():
     with pytest.raises(ScenarioError, match="line 3: series 'step' has a pre-shear rate on "
                                             "some rows only"):
         labdata.read_flow_curves_text(partial).thixotropy_tests()
+
+
+CORPUS = sorted((pathlib.Path(__file__).parent / "corpus").glob("*"))
+
+
+@pytest.mark.parametrize("path", CORPUS, ids=[p.name for p in CORPUS])
+def test_malformed_file_corpus_is_read_or_refused_by_name(path):
+    # The project's corpus of spoiled files (BOM, delimiters, decimal commas, empty, binary,
+    # Latin-1, truncated, mixed units): read as flow curves, each is either a clean table or a
+    # LoadlineError naming the file; never another exception.
+    try:
+        curves = labdata.read_flow_curves(path)
+    except LoadlineError as err:
+        assert path.name in str(err)
+        return
+    t = curves.table
+    assert len(t) and np.all(t["shear_rate_1_per_s"] > 0) and np.all(t["shear_stress_Pa"] > 0)
