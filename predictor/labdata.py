@@ -1017,8 +1017,9 @@ def slip_correction(curves: dict, shear_stress_Pa=None) -> pd.DataFrame:
         ``slip_velocity_m_per_s`` with its 95 % interval (``slip_velocity_low_m_per_s``,
         ``slip_velocity_high_m_per_s``; NaN with two gaps, where no scatter is left to
         estimate it), and ``slip_only`` (True where the corrected rate is not
-        above zero, or with three or more gaps where its 95 % interval reaches zero: the
-        sample moves as a plug on its slip layers; the rate is then 0).
+        above zero, or with three or more gaps where its 95 % interval reaches zero, and at
+        every lower stress: the sample moves as a plug on its slip layers; the rate is then
+        0).
 
     Raises
     ------
@@ -1109,6 +1110,9 @@ def slip_correction(curves: dict, shear_stress_Pa=None) -> pd.DataFrame:
         half = t95 * np.sqrt(s2 / np.sum((x - xm) ** 2)) / 2.0      # of v_s = slope / 2
     else:
         half = np.full(tau.size, np.nan)
+    # The true rate rises with the stress: below a stress that is slip only, all is slip only.
+    order = np.argsort(tau)
+    slip_only[order] = np.logical_or.accumulate(slip_only[order][::-1])[::-1]
     return pd.DataFrame({"shear_stress_Pa": tau,
                          "shear_rate_1_per_s": np.where(slip_only, 0.0, intercept),
                          "slip_velocity_m_per_s": slope / 2.0,
