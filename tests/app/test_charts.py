@@ -138,3 +138,18 @@ def test_every_builder_writes_valid_vega_lite(big):
     for spec in specs:
         _valid(spec)  # schema validation; raises on an invalid spec
         assert "vega-lite" in spec.get("$schema", "")
+
+
+@pytest.mark.parametrize("big", [False, True])
+def test_points_and_lines_writes_valid_vega_lite(big):
+    points = pd.DataFrame({"series": ["a", "a", "b"], "x": [0.1, 1.0, 10.0],
+                           "y": [1.0, 2.0, -1.0]})          # a non-positive y is left out
+    lines = pd.DataFrame({"series": ["a", "a"], "x": [0.1, 10.0], "y": [1.0, 3.0]})
+    for line_frame in (lines, lines.iloc[:0]):
+        spec = charts.points_and_lines(points, line_frame, x="x", y="y", series="series",
+                                       x_title="Shear rate [1/s]", y_title="Shear stress [Pa]",
+                                       series_title="Series", title="t", big=big)
+        _valid(spec)
+        frames = list(spec["datasets"].values())
+        assert all((np.asarray(f["y"]) > 0).all() for f in frames)
+        assert {"Shear rate [1/s]", "Shear stress [Pa]"} <= set(_titles(spec))
