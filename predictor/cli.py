@@ -503,11 +503,26 @@ def _fit_flow_curves(args, labdata) -> int:
         if "error" in trend:
             head.append(f"yield stress against phi, {relation}: not fitted ({trend['error']})")
         else:
+            words = {"laplace_pressure_Pa": ("Laplace pressure Γ/R", " Pa"),
+                     "phi_c": ("critical fraction φc", "")}
             head.append(f"yield stress against phi, {relation}: " + ", ".join(
-                f"{k} = {v:.4g} ({trend['intervals'][k][0]:.4g} to "
-                f"{trend['intervals'][k][1]:.4g})" for k, v in trend["params"].items()))
+                f"{words[k][0]} = {v:.4g}{words[k][1]} ({trend['intervals'][k][0]:.4g} to "
+                f"{trend['intervals'][k][1]:.4g}, 95 %)" for k, v in trend["params"].items()))
+    if not (args.json or args.csv):           # a table for people: parameters in words
+        frame = frame.rename(columns=lambda c: _series_column(c, fits.model))
     _emit(args, frame, meta, "\n".join(head))
     return EXIT_OK
+
+
+def _series_column(column: str, model: str) -> str:
+    """'yield_stress_Pa low' -> 'yield stress τy, 95 % low [Pa]'; other columns as they are."""
+    name, _, end = column.partition(" ")
+    if column in ("series", "phi", "points", "note"):
+        return {"phi": "phi [-]", "rmse_ln": "rms error (ln)"}.get(column, column)
+    if column == "rmse_ln":
+        return "rms error (ln)"
+    words, unit = name_label(name, ("liquid",), model)
+    return f"{words}{', 95 % ' + end if end else ''} [{unit}]"
 
 
 def _param_meaning(name: str, model: str) -> str:

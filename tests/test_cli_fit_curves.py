@@ -17,7 +17,8 @@ def test_table_names_every_series_and_the_trend(capsys):
     assert cli.main(["fit", str(DEMO), "--model", "herschel-bulkley"]) == 0
     out = capsys.readouterr().out
     assert "5 series" in out and "cream base, phi 0.80" in out
-    assert "yield stress against phi, mason: " in out and "phi_c = " in out
+    assert "yield stress against phi, mason: " in out and "critical fraction φc = " in out
+    assert "yield stress τy [Pa]" in out and "flow index n, 95 % low [–]" in out
 
 
 def test_json_matches_predictor_and_its_schema(capsys):
