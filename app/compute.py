@@ -560,3 +560,11 @@ def thixotropy_fit(text: str, source: str, fraction: float, process_rate_1_per_s
                 "lines": pd.concat(lines, ignore_index=True), "recovery_s": recovery,
                 "structure_after_step": start, "history": history}
     return dict(zip(("value", "warnings"), _captured(run), strict=True))
+
+
+def param_words(name: str, kind: str, model: str) -> str:
+    """A parameter in words with its unit, e.g. 'build-up rate at rest a [1/s]'."""
+    from predictor.labels import name_label
+
+    words, unit = name_label(name, (kind,), model)
+    return f"{words} [{unit}]"

@@ -211,8 +211,9 @@ def thixotropy_panel() -> None:
             y_title="Viscosity [Pa·s]", series_title="", x_log=False,
             title="Viscosity against time after the process step", big=ss["presentation"])
         widgets.chart_block(history, value["history"], "viscosity-recovery", "labhist")
-        table = pd.DataFrame([{"constant": k, "value": v, "95 % low": iv[k][0],
-                               "95 % high": iv[k][1]} for k, v in p.items()])
+        table = pd.DataFrame([{"constant": compute.param_words(k, "thixotropy", "moore"),
+                               "value": v, "95 % low": iv[k][0], "95 % high": iv[k][1]}
+                              for k, v in p.items()])
         st.dataframe(table, hide_index=True, width="stretch")
         widgets.show_warnings(result["warnings"])
 

@@ -516,11 +516,11 @@ def _fit_flow_curves(args, labdata) -> int:
 
 def _series_column(column: str, model: str) -> str:
     """'yield_stress_Pa low' -> 'yield stress τy, 95 % low [Pa]'; other columns as they are."""
+    fixed = {"series": "series", "phi": "phi [-]", "points": "points", "note": "note",
+             "rmse_ln": "rms error (ln)"}
+    if column in fixed:
+        return fixed[column]
     name, _, end = column.partition(" ")
-    if column in ("series", "phi", "points", "note"):
-        return {"phi": "phi [-]", "rmse_ln": "rms error (ln)"}.get(column, column)
-    if column == "rmse_ln":
-        return "rms error (ln)"
     words, unit = name_label(name, ("liquid",), model)
     return f"{words}{', 95 % ' + end if end else ''} [{unit}]"
 

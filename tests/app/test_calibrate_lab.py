@@ -74,3 +74,10 @@ def test_bad_export_names_file_line_and_column():
                                                         "text/csv")).run()
     assert not at.exception
     assert "two or more gaps" in messages(at)
+
+
+def test_tables_name_parameters_in_words():
+    at = _demo(page("calibrate", scenario="ceramic_slip").run())
+    cells = " ".join(str(v) for frame in at.dataframe for v in frame.value.to_numpy().ravel())
+    assert "build-up rate at rest a [1/s]" in cells
+    assert "infinite_shear_viscosity_Pa_s" not in cells
