@@ -463,6 +463,10 @@ def _flow_curves(text: str, source: str):
         return labdata.read_flow_curves(io.StringIO(text), name=source)
 
 
+TREND_WORDS = {"laplace_pressure_Pa": "Laplace pressure Γ/R [Pa]",
+               "phi_c": "critical fraction φc [–]"}
+
+
 @st.cache_data(**CACHE)
 def flow_curve_fits(text: str, source: str, model: str, branch: str) -> dict:
     """Every series of a rheometer export fitted with `model`, and the yield-stress trend."""
@@ -477,24 +481,37 @@ def flow_curve_fits(text: str, source: str, model: str, branch: str) -> dict:
             rate = np.logspace(np.log10(fit.x.min()), np.log10(fit.x.max()), 60)
             lines.append(pd.DataFrame({"series": series, "shear_rate_1_per_s": rate,
                                        "shear_stress_Pa": fit.predict(rate) * rate}))
-        trend, trend_error, trend_line = None, "", pd.DataFrame()
+        trend, trend_line, candidates = None, pd.DataFrame(), []
         phi, tau_y, _ = fits.parameter("yield_stress_Pa")
+        names = {"mason": "Mason et al.", "princen-kiss": "Princen & Kiss"}
+        lines_trend = []
         if np.isfinite(tau_y).sum() >= 3:
-            try:
-                fitted = labdata.fit_yield_stress_trend(phi, tau_y, "mason")
-                grid = np.linspace(float(phi.min()), float(phi.max()), 80)
-                trend = {"params": fitted.params, "intervals": fitted.intervals}
-                trend_line = pd.DataFrame({"series": "Mason et al., fitted", "phi": grid,
-                                           "yield_stress_Pa": fitted.predict(grid)})
-            except predictor.LoadlineError as err:
-                trend_error = str(err)
+            grid = np.linspace(float(phi.min()), float(phi.max()), 80)
+            for relation in labdata.YIELD_TRENDS:
+                try:
+                    fitted = labdata.fit_yield_stress_trend(phi, tau_y, relation)
+                except predictor.LoadlineError as err:
+                    candidates.append(f"{names[relation]}: not fitted ({err})")
+                    continue
+                lines_trend.append(pd.DataFrame({"series": f"{names[relation]}, fitted",
+                                                 "phi": grid,
+                                                 "yield_stress_Pa": fitted.predict(grid)}))
+                candidates.append(f"{names[relation]}: " + ", ".join(
+                    f"{TREND_WORDS[k]} = {v:.4g} "
+                    f"({fitted.intervals[k][0]:.4g} to {fitted.intervals[k][1]:.4g})"
+                    for k, v in fitted.params.items()) + f"; AIC {fitted.aic:.1f}")
+                if relation == "mason":
+                    trend = {"params": fitted.params, "intervals": fitted.intervals}
+            if lines_trend:
+                trend_line = pd.concat(lines_trend, ignore_index=True)
         return {"table": fits.table(), "points": table[["series", "branch",
                                                         "shear_rate_1_per_s",
                                                         "shear_stress_Pa", "phi"]],
                 "lines": pd.concat(lines, ignore_index=True) if lines else pd.DataFrame(),
                 "n_series": len(curves.series()), "n_fitted": len(fits.fits),
                 "slip_warnings": dict(fits.warnings), "notes": list(curves.notes),
-                "trend": trend, "trend_error": trend_error, "trend_line": trend_line,
+                "trend": trend, "trend_line": trend_line,
+                "candidates": candidates,
                 "trend_points": pd.DataFrame({"series": "fitted yield stress", "phi": phi,
                                               "yield_stress_Pa": tau_y})}
     return dict(zip(("value", "warnings"), _captured(run), strict=True))

@@ -116,8 +116,8 @@ def flow_curves_panel() -> None:
                 series_title="", x_log=False, y_log=False, big=ss["presentation"],
                 title="Yield stress against loading")
             widgets.chart_block(trend, value["trend_points"], "yield-stress-trend", "labtr")
-        elif value["trend_error"]:
-            st.caption(f"Yield stress against φ not fitted: {value['trend_error']}")
+        for line in value["candidates"]:
+            st.caption(f"Yield stress against φ, {line}")
         widgets.show_warnings(list(value["slip_warnings"].values()) + result["warnings"])
 
 
