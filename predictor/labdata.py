@@ -524,14 +524,22 @@ class FlowCurves:
         return rows.reset_index(drop=True)
 
 
+_UNIT_CELL = re.compile(r"^\s*[\[(][^\])]*[\])]\s*$")
+
+
 def _export_blocks(text: str, name: str):
-    """Split an export into blocks: (title, header cells, header line, [(line, cells)])."""
+    """Split an export into blocks: (title, header cells, header line, [(line, cells)]).
+
+    Also returns notes. Lines that look like data before the first header (instrument
+    metadata such as 'Temperature;25') are skipped with a note; a row of bracketed units
+    right under a header ('[1/s];[Pa]') is joined to it.
+    """
     lines = [(i + 1, ln) for i, ln in enumerate(text.splitlines())
              if ln.strip() and not ln.lstrip().startswith("#")]
     if len(lines) < 2:
         raise ScenarioError(f"{name}: needs a header line and at least one data row")
     delimiter = max(",;\t", key=lambda d: sum(ln.count(d) for _, ln in lines[:50]))
-    blocks, title, current = [], None, None
+    blocks, title, current, preamble, notes = [], None, None, [], []
     for number, line in lines:
         try:
             rows = list(csv.reader([line], delimiter=delimiter, strict=True))
@@ -543,11 +551,15 @@ def _export_blocks(text: str, name: str):
         filled = [c.strip() for c in cells if c.strip()]
         if looks_like_data(cells):
             if current is None:
-                raise ScenarioError(f"{name}, line {number}: {line[:60]!r} looks like data, "
-                                    "but no header line came before it; the header names the "
-                                    "columns with their units, e.g. 'shear rate [1/s],shear "
-                                    "stress [Pa]'")
-            current[3].append((number, cells))
+                preamble.append((number, line))
+            else:
+                current[3].append((number, cells))
+            continue
+        if current is not None and not current[3] and filled and all(
+                _UNIT_CELL.match(c) for c in filled):
+            units = list(cells) + [""] * (len(current[1]) - len(cells))
+            current[1] = [f"{h.strip()} {u.strip()}".strip() if u.strip() else h
+                          for h, u in zip(current[1], units, strict=False)]
             continue
         roles = [classify_export_header(c)[0] for c in filled]
         if len(filled) >= 2 and sum(r is not None for r in roles) >= 2:
@@ -557,10 +569,19 @@ def _export_blocks(text: str, name: str):
         else:
             match = _TITLE.match(line.replace(delimiter, " "))
             title = (match.group(1) if match else " ".join(filled)).strip()
+    if preamble and not blocks:
+        number, line = preamble[0]
+        raise ScenarioError(f"{name}, line {number}: {line[:60]!r} looks like data, but no "
+                            "header line came before it; the header names the columns with "
+                            "their units, e.g. 'shear rate [1/s],shear stress [Pa]'")
+    if preamble:
+        notes.append(f"{len(preamble)} line(s) before the first header skipped as instrument "
+                     f"notes (line {preamble[0][0]}"
+                     f"{'' if len(preamble) == 1 else f' to {preamble[-1][0]}'})")
     blocks = [b for b in blocks if b[3]]
     if not blocks:
         raise ScenarioError(f"{name}: no data rows under a header line")
-    return blocks
+    return blocks, notes
 
 
 def _branches(x: np.ndarray) -> np.ndarray:
@@ -591,8 +612,10 @@ def read_flow_curves(source, *, name: str | None = None) -> FlowCurves:
     Several curves come either as a series column (``sample``, ``sample_id``, ``series``,
     ...; a loading column such as ``phi`` also separates series), or as blocks one after
     another, each with its own header line and optionally a title line above it
-    (``Sample: cream A``). Units are in the headers, in brackets (``shear rate [1/s]``) or
-    after an underscore (``shear_rate_1/s``, ``stress_Pa``). Each block needs two of shear
+    (``Sample: cream A``). Units are in the headers, in brackets (``shear rate [1/s]``),
+    after an underscore (``shear_rate_1/s``, ``stress_Pa``) or in a row of bracketed units
+    under the header (``[1/s];[Pa]``); instrument notes with numbers before the first header
+    are skipped with a note. Each block needs two of shear
     rate, shear stress and viscosity; the third is computed. The first of rate and stress
     in the file is taken as the controlled variable; each series is split into an
     ascending ("up") and a descending ("down") branch where the controlled variable turns.
@@ -627,8 +650,9 @@ def read_flow_curves(source, *, name: str | None = None) -> FlowCurves:
         text = decode_text(source.read(), name, what)
     else:
         text = decode_text(read_bytes(source, name, "a rheometer export"), name, what)
-    frames, controlled, notes = [], None, []
-    for b, (title, header, header_line, rows) in enumerate(_export_blocks(text, name)):
+    frames, controlled = [], None
+    blocks, notes = _export_blocks(text, name)
+    for b, (title, header, header_line, rows) in enumerate(blocks):
         roles: dict[str, tuple[int, str, str | None]] = {}
         for j, h in enumerate(header):
             if not h.strip():

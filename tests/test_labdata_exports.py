@@ -273,3 +273,15 @@ def test_malformed_file_corpus_is_read_or_refused_by_name(path):
         return
     t = curves.table
     assert len(t) and np.all(t["shear_rate_1_per_s"] > 0) and np.all(t["shear_stress_Pa"] > 0)
+
+
+def test_instrument_notes_before_the_header_and_a_units_row_are_understood():
+    # A layout many instruments write: metadata lines, a header of names, a row of units.
+    text = ("Project;demo (invented)\nTemperature;25\nSample: gel A\n"
+            "Meas. Pts.;Shear Rate;Shear Stress;Viscosity\n;[1/s];[Pa];[mPa*s]\n"
+            "1;0,1;5;50000\n2;1;6;6000\n3;10;9;900\n")
+    curves = labdata.read_flow_curves_text(text, "instrument.csv")
+    assert curves.series() == ["gel A"]
+    assert curves.table["shear_stress_Pa"].tolist() == pytest.approx([5.0, 6.0, 9.0])
+    assert curves.table["viscosity_Pa_s"].tolist() == pytest.approx([50.0, 6.0, 0.9])
+    assert any("line 2" in n and "skipped" in n for n in curves.notes)
