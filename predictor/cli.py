@@ -24,11 +24,14 @@ import textwrap
 import time
 import warnings
 
-import numpy as np
-import pandas as pd
-
+from . import __version__
+from ._lazy import LazyModule
 from .errors import LoadlineError, UnitError
-from .units import from_si, parse_quantity
+
+# Imported on first use: `loadline --help` and `loadline models` never load the numeric stack.
+np = LazyModule("numpy")
+pd = LazyModule("pandas")
+units = LazyModule("predictor.units")
 
 CAUTIONS = (
     "Predictions are screening estimates for idealised particles and droplets. Confirm them "
@@ -95,7 +98,7 @@ def unit_columns(frame: pd.DataFrame, viscosity_unit: str = "Pa*s") -> pd.DataFr
             if name.endswith(suffix) and pd.api.types.is_numeric_dtype(values):
                 unit = viscosity_unit if dimension == "viscosity" else _SHOWN_UNITS[dimension]
                 label = name[: -len(suffix)].replace("_", " ")
-                out[f"{label} [{unit}]"] = from_si(values.to_numpy(dtype=float), unit,
+                out[f"{label} [{unit}]"] = units.from_si(values.to_numpy(dtype=float), unit,
                                                    dimension)
                 break
         else:
@@ -170,12 +173,12 @@ def _json_default(value):
 
 
 def _quantity(text: str, dimension: str, option: str) -> float:
-    return parse_quantity(text, dimension, option)
+    return units.parse_quantity(text, dimension, option)
 
 
 def _check_viscosity_unit(unit: str) -> str:
     try:
-        from_si(1.0, unit, "viscosity")
+        units.from_si(1.0, unit, "viscosity")
     except Exception:  # pint raises several kinds; one message for all
         raise UnitError(f"--viscosity-unit = {unit!r} is not a viscosity unit; write e.g. "
                         "'Pa*s', 'mPa*s' or 'cP'.") from None
@@ -276,7 +279,7 @@ def cmd_sweep(args) -> int:
         "phi solids [-]": sweep["phi"].to_numpy(),
         "solids [wt%]": 100 * sweep["mass_fraction"].to_numpy(),
         "relative viscosity [-]": sweep["relative_viscosity"].to_numpy(),
-        f"viscosity [{unit}]": from_si(sweep["viscosity_Pa_s"].to_numpy(), unit, "viscosity"),
+        f"viscosity [{unit}]": units.from_si(sweep["viscosity_Pa_s"].to_numpy(), unit, "viscosity"),
     })
     meta = {"scenario": form.name, **{k: _plain(v) for k, v in sweep.attrs.items()}}
     head = (f"scenario: {form.name or '(unnamed)'}\n"
@@ -321,7 +324,7 @@ def cmd_max_load(args) -> int:
         phi = max_loading(form, limit, rate)
         rows.append({
             "shear rate [1/s]": rate,
-            f"viscosity limit [{args.viscosity_unit}]": from_si(limit, args.viscosity_unit,
+            f"viscosity limit [{args.viscosity_unit}]": units.from_si(limit, args.viscosity_unit,
                                                                 "viscosity"),
             "max phi solids [-]": phi,
             "max solids [wt%]": 100 * float(solid_mass_fraction(form, phi, mix)[0]),
@@ -334,28 +337,52 @@ def cmd_max_load(args) -> int:
     return EXIT_OK
 
 
-def cmd_models(args) -> int:
-    from .registry import models
+def relations_snapshot(kind: str | None = None) -> list[dict]:
+    """The registry's relations from the static snapshot `predictor/data/models.json`.
 
-    rows = []
-    for spec in models(args.kind):
-        defaults = spec.defaults()
-        params = "; ".join(
-            f"{p.name}={defaults.get(p.name, '')} [{p.unit}] ({p.bounds[0]:g}..{p.bounds[1]:g})"
-            for p in spec.params)
-        rows.append({"name": spec.name, "kind": spec.kind, "parameters": params or "-",
-                     "validity": spec.validity, "source": spec.source})
-    frame = pd.DataFrame(rows, columns=["name", "kind", "parameters", "validity", "source"])
-    if not (args.json or args.csv):
-        for row in rows:
-            print(f"{row['name']}  ({row['kind']})  source: {row['source']}")
-            print(textwrap.fill(f"parameters: {row['parameters']}", 100,
-                                initial_indent="    ", subsequent_indent="      "))
-            print(textwrap.fill(f"validity: {row['validity']}", 100, initial_indent="    ",
-                                subsequent_indent="      "))
-        print(f"\n{len(rows)} relations.")
+    The snapshot is generated from the registry (``python -m predictor.registry
+    --snapshot``; tests/test_registry.py fails when it is stale), so listing the relations
+    imports no numeric library.
+    """
+    from .registry import SNAPSHOT
+
+    path = pathlib.Path(__file__).resolve().parent / SNAPSHOT
+    relations = json.loads(path.read_text(encoding="utf-8"))
+    return [r for r in relations if kind is None or r["kind"] == kind]
+
+
+def _parameters_text(relation: dict) -> str:
+    def bound(x):
+        return "inf" if x is None else f"{x:g}"
+
+    return "; ".join(
+        f"{p['name']}={'' if p['default'] is None else format(p['default'], 'g')} "
+        f"[{p['unit']}] ({bound(p['bounds'][0])}..{bound(p['bounds'][1])})"
+        for p in relation["parameters"]) or "-"
+
+
+def cmd_models(args) -> int:
+    relations = relations_snapshot(args.kind)
+    if args.json:
+        print(json.dumps({"count": len(relations), "rows": relations}, indent=1,
+                         ensure_ascii=False))
         return EXIT_OK
-    _emit(args, frame, {"count": len(rows)})
+    if args.csv:
+        import csv
+
+        writer = csv.writer(sys.stdout, lineterminator="\n")
+        writer.writerow(["name", "kind", "parameters", "validity", "source"])
+        for r in relations:
+            writer.writerow([r["name"], r["kind"], _parameters_text(r), r["validity"],
+                             r["source"]])
+        return EXIT_OK
+    for r in relations:
+        print(f"{r['name']}  ({r['kind']})  source: {r['source']}")
+        print(textwrap.fill(f"parameters: {_parameters_text(r)}", 100,
+                            initial_indent="    ", subsequent_indent="      "))
+        print(textwrap.fill(f"validity: {r['validity']}", 100, initial_indent="    ",
+                            subsequent_indent="      "))
+    print(f"\n{len(relations)} relations.")
     return EXIT_OK
 
 
@@ -499,14 +526,14 @@ def cmd_demo(args) -> int:
       + ")\n" + table_text(pd.DataFrame({
         "phi solids [-]": sweep["phi"], "solids [wt%]": 100 * sweep["mass_fraction"],
         "relative viscosity [-]": sweep["relative_viscosity"],
-        f"viscosity [{unit}]": from_si(sweep["viscosity_Pa_s"].to_numpy(), unit,
+        f"viscosity [{unit}]": units.from_si(sweep["viscosity_Pa_s"].to_numpy(), unit,
                                        "viscosity")})) + "\n\n")
     rows = []
     for label, rate, limit in (("brushing", 1e4, 0.1), ("pumping", 100.0, 0.5),
                                ("levelling", 0.1, 5.0)):
         phi = max_loading(form, limit, rate)
         rows.append({"window": label, "shear rate [1/s]": rate,
-                     f"limit [{unit}]": from_si(limit, unit, "viscosity"),
+                     f"limit [{unit}]": units.from_si(limit, unit, "viscosity"),
                      "max phi solids [-]": phi,
                      "max solids [wt%]": 100 * float(solid_mass_fraction(form, phi, mix)[0])})
     w("Highest solids loading under a viscosity limit (example windows, invented limits)\n"
@@ -601,13 +628,7 @@ def build_parser() -> argparse.ArgumentParser:
         epilog="commands: predict, sweep, max-load, screen, pack, fit, report, models, demo. "
                "Run 'loadline COMMAND --help' for examples.\n\n" + _EPILOG,
         formatter_class=argparse.RawDescriptionHelpFormatter)
-    from importlib import metadata
-
-    try:
-        version = metadata.version("loadline")
-    except metadata.PackageNotFoundError:
-        version = "unknown"
-    parser.add_argument("--version", action="version", version=f"loadline {version}")
+    parser.add_argument("--version", action="version", version=f"loadline {__version__}")
     sub = parser.add_subparsers(dest="command", metavar="COMMAND")
 
     def add(name, help_text, func):

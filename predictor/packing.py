@@ -33,11 +33,9 @@ from concurrent.futures import ThreadPoolExecutor
 from dataclasses import dataclass, field
 
 import numpy as np
-from numba import njit
-from scipy.optimize import brentq
-from scipy.spatial import cKDTree
 
 from ._checks import as_array, guarded, in_range, positive, scalar_or_array
+from ._jit import lazy_njit
 from .errors import InputRangeError, LoadlineError, ValidityWarning
 from .registry import Param, get_model, model, models
 from .sizes import SizeDistribution
@@ -314,7 +312,7 @@ def _desmond_weeks(d, f, phi0):
     return float(phi0 / star * (star + c1 * delta + c2 * skew * delta**2))
 
 
-@njit(cache=True)
+@lazy_njit()
 def _cpm_gamma(d, y, beta, loosening, wall):  # pragma: no cover - compiled
     """gamma_i of the compressible packing model; d descending, y volume fractions."""
     n = d.size
@@ -419,6 +417,8 @@ def _compressible_packing(d, f, phi0, k, loosening=1.02, wall=1.50):
     lo, hi = 1e-3, upper * (1.0 - 1e-12)
     if excess(hi) < 0:
         return float(hi)
+    from scipy.optimize import brentq
+
     return float(brentq(excess, lo, hi, xtol=1e-12))
 
 
@@ -512,7 +512,7 @@ def _desmond_weeks_message(d, f) -> str | None:
 # ------------------------------------------------------------------------------------------
 # the jamming simulation
 # ------------------------------------------------------------------------------------------
-@njit(cache=True, nogil=True)
+@lazy_njit(nogil=True)
 def _forces(x, rad, pi, pj, box, f):  # pragma: no cover - compiled
     """Harmonic contact forces (unit spring constant); energy, sum of overlaps, contacts."""
     n = x.shape[0]
@@ -550,7 +550,7 @@ def _forces(x, rad, pi, pj, box, f):  # pragma: no cover - compiled
     return energy, overlap_sum, contacts
 
 
-@njit(cache=True, nogil=True)
+@lazy_njit(nogil=True)
 def _fire(x, v, mass, rad, pi, pj, box, x_ref, half_skin, st, max_steps, e_zero,
           f_rel):  # pragma: no cover - compiled
     """FIRE energy minimisation (Bitzek et al. 2006) with the FIRE 2.0 Euler step.
@@ -639,6 +639,8 @@ def _neighbour_pairs(x, rad, box, skin, max_groups=6):
     with its own cut-off, so a few large spheres do not force a long cut-off on the many
     small ones.
     """
+    from scipy.spatial import cKDTree
+
     xw = np.mod(x, box)
     level = np.minimum(np.floor(np.log2(rad.max() / rad)).astype(int), max_groups - 1)
     groups = [g for g in (np.flatnonzero(level == k) for k in range(level.max() + 1)) if g.size]
