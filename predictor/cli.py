@@ -26,6 +26,7 @@ import warnings
 
 from . import __version__
 from ._lazy import LazyModule
+from .cautions import CAUTIONS
 from .errors import LoadlineError, UnitError
 
 # Imported on first use: `loadline --help` and `loadline models` never load the numeric stack.
@@ -33,12 +34,6 @@ np = LazyModule("numpy")
 pd = LazyModule("pandas")
 units = LazyModule("predictor.units")
 
-CAUTIONS = (
-    "Predictions are screening estimates for idealised particles and droplets. Confirm them "
-    "by measurement before scale-up, pump or pressure-equipment selection, and follow local "
-    "codes, licensed engineering practice and the materials' safety data sheets (fine "
-    "powders, solvents)."
-)
 EXIT_OK, EXIT_INPUT, EXIT_USAGE, EXIT_ROWS, EXIT_MISSING = 0, 1, 2, 3, 4
 DEMO_SCENARIO = "mineral_coating.loadline.json"
 DEMO_TABLE = "candidates.csv"

@@ -25,7 +25,7 @@ import pandas as pd
 
 from . import charts_export, design
 from . import formulation as fm
-from .cli import CAUTIONS
+from .cautions import CAUTIONS
 from .errors import LoadlineError
 from .registry import get_model, models
 from .units import from_si

@@ -5,11 +5,13 @@ from __future__ import annotations
 import csv
 import io
 import json
+import math
 import pathlib
 
 import pandas as pd
 import pytest
 
+import predictor
 from predictor import formulation as fm
 from predictor.cli import CAUTIONS, main
 from predictor.registry import models
@@ -35,6 +37,34 @@ def test_models_table_and_json(capsys):
     code, out, _ = run(capsys, "models", "--kind", "packing", "--csv")
     names = pd.read_csv(io.StringIO(out))["name"].tolist()
     assert names == [m.name for m in models("packing")]
+
+
+def test_models_json_matches_its_schema_and_the_registry(capsys):
+    import jsonschema
+
+    schema = json.loads((pathlib.Path(predictor.__file__).parent / "schemas"
+                         / "models.schema.json").read_text())
+    jsonschema.Draft202012Validator.check_schema(schema)
+    code, out, _ = run(capsys, "models", "--json")
+    doc = json.loads(out)
+    assert code == 0
+    jsonschema.validate(doc, schema, cls=jsonschema.Draft202012Validator)
+    by_name = {r["name"]: r for r in doc["rows"]}
+    for spec in models():
+        params = by_name[spec.name]["parameters"]
+        assert [p["name"] for p in params] == list(spec.param_names())
+        for p, param in zip(params, spec.params, strict=True):
+            assert p["unit"] == param.unit and p["description"] == param.description
+            assert p["bounds"] == [b if math.isfinite(b) else None for b in param.bounds]
+    # Krieger & Dougherty, Trans. Soc. Rheol. 3, 137 (1959): intrinsic viscosity 2.5 for
+    # spheres (Einstein's value) is the default of the relation.
+    kd = {p["name"]: p for p in by_name["krieger-dougherty"]["parameters"]}
+    assert kd["intrinsic_viscosity"]["default"] == 2.5
+    # A schema that can fail: a parameter given as a string (the old form) is rejected.
+    bad = json.loads(out)
+    bad["rows"][0]["parameters"] = ["intrinsic_viscosity=2.5 [-] (2.5..20)"]
+    with pytest.raises(jsonschema.ValidationError):
+        jsonschema.validate(bad, schema, cls=jsonschema.Draft202012Validator)
 
 
 def test_predict_json_equals_core(capsys):
