@@ -133,13 +133,13 @@ def table_text(frame: pd.DataFrame, max_rows: int | None = None) -> str:
 
 def _emit(args, frame: pd.DataFrame, meta: dict | None = None, text_before: str = "") -> None:
     """Print `frame` as the user asked: table (default), JSON or CSV."""
-    from .batch import csv_text
-
     if getattr(args, "json", False):
         doc = dict(meta or {})
         doc["rows"] = frame.astype(object).where(frame.notna(), None).to_dict("records")
         print(json.dumps(_finite(doc), indent=1, default=_json_default))
     elif getattr(args, "csv", False):
+        from .batch import csv_text
+
         sys.stdout.write(csv_text(frame))
     else:
         if text_before:

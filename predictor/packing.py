@@ -312,24 +312,27 @@ def _desmond_weeks(d, f, phi0):
     return float(phi0 / star * (star + c1 * delta + c2 * skew * delta**2))
 
 
-@lazy_njit()
-def _cpm_gamma(d, y, beta, loosening, wall):  # pragma: no cover - compiled
-    """gamma_i of the compressible packing model; d descending, y volume fractions."""
-    n = d.size
-    gamma = np.empty(n)
-    for i in range(n):
-        s = 1.0
-        for j in range(n):
-            if j == i or y[j] == 0.0:
-                continue
-            if d[j] > d[i]:   # coarser class j: wall effect on class i
-                b = 1.0 - (1.0 - d[i] / d[j]) ** wall if wall > 0 else 0.0
-                s -= (1.0 - beta[i] + b * beta[i] * (1.0 - 1.0 / beta[j])) * y[j]
-            else:             # finer class j: loosening effect on class i
-                a = math.sqrt(1.0 - (1.0 - d[j] / d[i]) ** loosening) if loosening > 0 else 0.0
-                s -= (1.0 - a * beta[i] / beta[j]) * y[j]
-        gamma[i] = beta[i] / s if s > 0 else np.inf
-    return gamma
+def _cpm_gamma(d, y, beta, loosening, wall):
+    """gamma_i of the compressible packing model; d descending, y volume fractions.
+
+    All class pairs at once (n x n arrays; n is a few hundred classes at most), so the
+    packing estimates need no compiled code.
+    """
+    di, dj = d[:, None], d[None, :]
+    bi, bj = beta[:, None], beta[None, :]
+    coarser = dj > di                  # class j coarser than class i: wall effect on i
+    if wall > 0:
+        b = 1.0 - np.where(coarser, 1.0 - di / dj, 0.0) ** wall
+    else:
+        b = np.zeros_like(di * dj)
+    if loosening > 0:                  # class j finer (or equal): loosening effect on i
+        a = np.sqrt(1.0 - np.where(coarser, 0.0, 1.0 - dj / di) ** loosening)
+    else:
+        a = np.zeros_like(di * dj)
+    effect = np.where(coarser, 1.0 - bi + b * bi * (1.0 - 1.0 / bj), 1.0 - a * bi / bj)
+    counted = (y[None, :] != 0.0) & ~np.eye(d.size, dtype=bool)
+    s = 1.0 - np.sum(np.where(counted, effect * y[None, :], 0.0), axis=1)
+    return np.where(s > 0, beta / np.where(s > 0, s, 1.0), np.inf)
 
 
 @model("packing", PHI_MONO,
