@@ -28,7 +28,6 @@ from dataclasses import dataclass
 
 import numpy as np
 import pandas as pd
-from scipy import optimize
 
 from . import composition, packing, uncertainty
 from . import formulation as fm
@@ -383,6 +382,8 @@ def _solve_loading(ctx: _Context, limit: float, rate: float) -> tuple[float, str
     def g(phi):
         eta = ctx.viscosity(phi, rate)
         return np.log(min(eta, 1e300)) - np.log(limit)
+
+    from scipy import optimize   # on first use (about 0.3 s): the app's first page skips it
 
     phi = float(optimize.brentq(g, 0.0, top, xtol=1e-10, rtol=1e-12))
     ctx.viscosity(phi, rate, quiet=False)     # let the answer's own warnings through
