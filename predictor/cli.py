@@ -21,7 +21,6 @@ import pathlib
 import re
 import sys
 import textwrap
-import time
 import warnings
 
 from . import __version__
@@ -114,18 +113,26 @@ def _fmt(value) -> str:
 
 
 def table_text(frame: pd.DataFrame, max_rows: int | None = None) -> str:
-    """A plain aligned table with 4 significant digits."""
+    """An aligned plain-text table (rich), numbers to 4 significant digits.
+
+    Never wrapped or cut to the terminal's width (the text is also written to files and
+    pipes) and without colour codes.
+    """
+    from rich import box
+    from rich.console import Console
+    from rich.table import Table
+
     shown = frame if max_rows is None else frame.head(max_rows)
-    cells = [[_fmt(v) for v in row] for row in shown.itertuples(index=False)]
-    headers = [str(c) for c in frame.columns]
-    widths = [max([len(h)] + [len(r[i]) for r in cells]) for i, h in enumerate(headers)]
-    numeric = [pd.api.types.is_numeric_dtype(frame[c]) for c in frame.columns]
-
-    def line(items):
-        return "  ".join(s.rjust(w) if num else s.ljust(w)
-                         for s, w, num in zip(items, widths, numeric, strict=True)).rstrip()
-
-    lines = [line(headers), line(["-" * w for w in widths])] + [line(r) for r in cells]
+    table = Table(box=box.SIMPLE_HEAD, show_edge=False, pad_edge=False, highlight=False)
+    for col in frame.columns:
+        numeric = pd.api.types.is_numeric_dtype(frame[col])
+        table.add_column(str(col), justify="right" if numeric else "left", no_wrap=True)
+    for row in shown.itertuples(index=False):
+        table.add_row(*(_fmt(v) for v in row))
+    out = io.StringIO()
+    Console(file=out, width=100_000, color_system=None, highlight=False, markup=False,
+            emoji=False).print(table)
+    lines = [ln.rstrip() for ln in out.getvalue().splitlines() if ln.strip()]
     if max_rows is not None and len(frame) > max_rows:
         lines.append(f"... {len(frame) - max_rows} more rows (use --json, --csv or -o)")
     return "\n".join(lines)
@@ -181,31 +188,40 @@ def _check_viscosity_unit(unit: str) -> str:
 
 
 class Progress:
-    """A one-line progress bar on stderr (only drawn when stderr is a terminal or forced)."""
+    """A progress bar on stderr (rich), drawn only when stderr is a terminal or forced.
+
+    Called with the number of rows done so far; `close` ends the bar.
+    """
 
     def __init__(self, total: int | None, label: str, enabled: bool, stream=None):
-        self.total, self.label, self.enabled = total, label, enabled
-        self.stream = stream or sys.stderr
-        self.start = time.perf_counter()
+        self.enabled, self.bar = enabled, None
+        if not enabled:
+            return
+        from rich.console import Console
+        from rich.progress import (
+            BarColumn,
+            MofNCompleteColumn,
+            TaskProgressColumn,
+            TextColumn,
+            TimeElapsedColumn,
+        )
+        from rich.progress import Progress as Bar
+
+        console = Console(file=stream or sys.stderr, force_terminal=stream is None and
+                          sys.stderr.isatty() or None)
+        self.bar = Bar(TextColumn(label), BarColumn(), TaskProgressColumn(),
+                       MofNCompleteColumn(), TextColumn("rows"), TimeElapsedColumn(),
+                       console=console, transient=False)
+        self.task = self.bar.add_task(label, total=total)
+        self.bar.start()
 
     def __call__(self, done: int) -> None:
-        if not self.enabled:
-            return
-        elapsed = time.perf_counter() - self.start
-        rate = done / elapsed if elapsed > 0 else 0.0
-        if self.total:
-            frac = min(done / self.total, 1.0)
-            bar = "#" * int(30 * frac) + "." * (30 - int(30 * frac))
-            text = f"\r{self.label} [{bar}] {100 * frac:5.1f} % {done}/{self.total} rows"
-        else:
-            text = f"\r{self.label} {done} rows"
-        self.stream.write(f"{text}  {rate:,.0f} rows/s")
-        self.stream.flush()
+        if self.bar is not None:
+            self.bar.update(self.task, completed=done)
 
     def close(self) -> None:
-        if self.enabled:
-            self.stream.write("\n")
-            self.stream.flush()
+        if self.bar is not None:
+            self.bar.stop()
 
 
 # -- commands ---------------------------------------------------------------------------------

@@ -383,7 +383,7 @@ def _solve_loading(ctx: _Context, limit: float, rate: float) -> tuple[float, str
         eta = ctx.viscosity(phi, rate)
         return np.log(min(eta, 1e300)) - np.log(limit)
 
-    from scipy import optimize   # on first use (about 0.3 s): the app's first page skips it
+    from scipy import optimize  # on first use (about 0.3 s): the app's first page skips it
 
     phi = float(optimize.brentq(g, 0.0, top, xtol=1e-10, rtol=1e-12))
     ctx.viscosity(phi, rate, quiet=False)     # let the answer's own warnings through
