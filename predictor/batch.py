@@ -273,6 +273,9 @@ def read_table(path, chunk_rows: int = CHUNK_ROWS) -> Iterator[pd.DataFrame]:
     path = pathlib.Path(path)
     if not path.is_file():
         raise ScenarioError(f"candidate table {path} does not exist.")
+    if path.suffix.lower() == ".parquet":
+        yield from _read_parquet(path, chunk_rows)
+        return
     if path.suffix.lower() in (".xlsx", ".xlsm"):
         try:
             frame = pd.read_excel(path, dtype=str, keep_default_na=False)
@@ -334,6 +337,23 @@ def read_table(path, chunk_rows: int = CHUNK_ROWS) -> Iterator[pd.DataFrame]:
                             "(far into the file); save the table as UTF-8.") from None
     except pd.errors.ParserError as err:
         raise ScenarioError(f"{path.name} is not a readable CSV table ({err}).") from None
+
+
+def _read_parquet(path: pathlib.Path, chunk_rows: int) -> Iterator[pd.DataFrame]:
+    """A Parquet candidate table in chunks of `chunk_rows` rows (row groups streamed by
+    pyarrow), every cell as text like a CSV cell (an empty or null cell is "")."""
+    import pyarrow.parquet as pq
+
+    try:
+        handle = pq.ParquetFile(path)
+    except Exception as err:  # pyarrow raises several kinds for a broken file
+        raise ScenarioError(f"{path.name} is not a readable Parquet file ({err}).") from None
+    if handle.metadata.num_rows == 0:
+        yield pd.DataFrame(columns=handle.schema_arrow.names, dtype=object)
+        return
+    for block in handle.iter_batches(batch_size=chunk_rows):
+        frame = block.to_pandas()
+        yield frame.astype(object).where(frame.notna(), "").astype(str)
 
 
 def _cell_count(row: list[str]) -> int:
@@ -1547,7 +1567,7 @@ def screen(table: pd.DataFrame, base_dir=".", viscosity_unit: str = "Pa*s",
         The input columns followed by the result columns; bad rows have status "error".
     """
     _check_unit(viscosity_unit)
-    layout = parse_header(table.columns)
+    layout = parse_header([h for h in table.columns if h != ROW_ERROR])
     ctx = _Context(layout, pathlib.Path(base_dir))
     text = table.astype(object).where(table.notna(), "").astype(str)
     parts = [_predict_chunk_safe(text.iloc[s:s + chunk_rows].reset_index(drop=True), ctx,
@@ -1559,19 +1579,24 @@ def screen(table: pd.DataFrame, base_dir=".", viscosity_unit: str = "Pa*s",
 
 def screen_file(path, out_path=None, viscosity_unit: str = "Pa*s",
                 chunk_rows: int = CHUNK_ROWS, progress: Callable[[int], None] | None = None,
-                keep: int = 0) -> tuple[ScreenSummary, pd.DataFrame]:
-    """Screen a CSV or Excel table chunk by chunk, writing results as they come.
+                keep: int = 0, dask=None) -> tuple[ScreenSummary, pd.DataFrame]:
+    """Screen a CSV, Excel or Parquet table chunk by chunk, writing results as they come.
 
     Parameters
     ----------
     path : path-like
-        The candidate table (.csv, .xlsx).
+        The candidate table (.csv, .xlsx, .parquet).
     out_path : path-like, optional
-        Where to write the result (.csv streamed; .xlsx or .json written at the end).
+        Where to write the result (.csv streamed; .xlsx, .parquet or .json written at the
+        end).
     progress : callable, optional
         Called with the number of rows done after each chunk.
     keep : int
         Number of result rows to keep in memory and return (for printing); -1 keeps all.
+    dask : str or distributed.Client, optional
+        Compute the chunks on a Dask cluster (`screen_on_dask`): "" starts a local cluster,
+        a scheduler address ("tcp://host:8786") or a Client uses that one. The table is
+        still read here, with the same checks; the result is the same as in-process.
 
     Returns
     -------
@@ -1586,14 +1611,19 @@ def screen_file(path, out_path=None, viscosity_unit: str = "Pa*s",
     out_path = None if out_path is None else pathlib.Path(out_path)
     streaming = out_path is not None and out_path.suffix.lower() == ".csv"
     handle = None
+    chunks = read_table(path, chunk_rows)
+    pairs = ((chunk, None) for chunk in chunks) if dask is None else screen_on_dask(
+        chunks, path.parent, viscosity_unit, dask)
     try:
-        for chunk in read_table(path, chunk_rows):
+        for chunk, result in pairs:
             if ctx is None:
                 layout = parse_header([h for h in chunk.columns if h != ROW_ERROR])
                 ctx = _Context(layout, path.parent)
                 summary.windows = layout.windows
                 summary.unrecognised = layout.unrecognised
-            result = _predict_chunk_safe(chunk.reset_index(drop=True), ctx, viscosity_unit)
+            if result is None:
+                result = _predict_chunk_safe(chunk.reset_index(drop=True), ctx,
+                                             viscosity_unit)
             summary.add(result, summary.rows)
             if streaming:
                 if handle is None:
@@ -1617,6 +1647,62 @@ def screen_file(path, out_path=None, viscosity_unit: str = "Pa*s",
         write_table(pd.concat(whole, ignore_index=True) if whole else pd.DataFrame(), out_path)
     shown = pd.concat(kept, ignore_index=True) if kept else pd.DataFrame()
     return summary, shown if keep < 0 else shown.head(keep)
+
+
+def screen_on_dask(chunks, base_dir, viscosity_unit: str, cluster="") -> Iterator[
+        tuple[pd.DataFrame, pd.DataFrame]]:
+    """(chunk, result) pairs in table order, each result computed by `screen` on a Dask
+    worker: the same vectorised function as in-process, one chunk per task.
+
+    Parameters
+    ----------
+    chunks : iterable of pandas.DataFrame
+        Text chunks of a candidate table (`read_table`); read here, computed remotely.
+    base_dir : path-like
+        Folder of the candidate table; size tables named in it must be readable at the same
+        path on every worker.
+    viscosity_unit : str
+        Unit of the result's viscosity columns.
+    cluster : str or distributed.Client
+        "" starts a local cluster (worker processes on this machine, closed at the end); an
+        address ("tcp://host:8786") connects to a running scheduler; a Client is used as is.
+
+    At most two chunks per worker thread are in flight, so memory stays bounded.
+    """
+    import collections
+
+    try:
+        from distributed import Client, LocalCluster
+    except ImportError:
+        raise ScenarioError("--dask needs Dask: pip install 'loadline[dask]' (dask and "
+                            "distributed).") from None
+    owned = []
+    if isinstance(cluster, Client):
+        client = cluster
+    elif cluster:
+        try:
+            client = Client(str(cluster), timeout="20s")
+        except OSError as err:
+            raise ScenarioError(f"no Dask scheduler answers at {cluster} ({err}).") from None
+        owned.append(client)
+    else:
+        local = LocalCluster(dashboard_address=None)
+        owned += [local, client := Client(local)]
+    try:
+        threads = max(1, sum(client.nthreads().values()))
+        pending = collections.deque()
+        for chunk in chunks:
+            pending.append((chunk, client.submit(screen, chunk, base_dir, viscosity_unit,
+                                                 chunk_rows=max(len(chunk), 1), pure=False)))
+            while len(pending) > 2 * threads:
+                chunk, future = pending.popleft()
+                yield chunk, future.result()
+        while pending:
+            chunk, future = pending.popleft()
+            yield chunk, future.result()
+    finally:
+        for item in reversed(owned):
+            item.close()
 
 
 def _check_unit(viscosity_unit: str) -> None:
@@ -1727,7 +1813,7 @@ def write_csv(frame: pd.DataFrame, handle_or_path, header: bool = True) -> None:
 
 
 def write_table(frame: pd.DataFrame, path) -> pathlib.Path:
-    """Write a result table as .csv, .xlsx or .json, chosen by the file name."""
+    """Write a result table as .csv, .xlsx, .parquet or .json, chosen by the file name."""
     path = pathlib.Path(path)
     path.parent.mkdir(parents=True, exist_ok=True)
     suffix = path.suffix.lower()
@@ -1741,8 +1827,11 @@ def write_table(frame: pd.DataFrame, path) -> pathlib.Path:
     elif suffix == ".json":
         path.write_text(frame.to_json(orient="records", indent=1, double_precision=15),
                         encoding="utf-8")
+    elif suffix == ".parquet":   # for machines: full precision, no spreadsheet escaping
+        frame.to_parquet(path, index=False)
     else:
-        raise InputRangeError("output file", path.name, "a name ending in .csv, .xlsx or .json")
+        raise InputRangeError("output file", path.name,
+                              "a name ending in .csv, .xlsx, .parquet or .json")
     return path
 
 

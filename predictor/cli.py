@@ -409,7 +409,8 @@ def cmd_screen(args) -> int:
     keep = -1 if (args.json or args.csv) else args.show
     try:
         summary, shown = screen_file(path, args.output, viscosity_unit=unit,
-                                     chunk_rows=args.chunk_rows, progress=progress, keep=keep)
+                                     chunk_rows=args.chunk_rows, progress=progress, keep=keep,
+                                     dask=args.dask)
     finally:
         progress.close()
     for header in summary.unrecognised:
@@ -583,6 +584,8 @@ examples:
   loadline screen doe.csv -o doe_results.csv --viscosity-unit mPa*s
   loadline screen doe.xlsx -o doe_results.xlsx --progress
   loadline screen doe.csv --json > doe_results.json
+  loadline screen big_doe.parquet -o big_results.parquet --chunk-rows 100000 --dask
+  loadline screen big_doe.parquet -o big_results.parquet --dask tcp://10.0.0.5:8786
 
 The table has one candidate per row; the columns (units in square brackets) are described
 in predictor/batch.py and the README, e.g. 'ingredient 1 loading [wt%]', 'ingredient 1 d50
@@ -676,14 +679,20 @@ def build_parser() -> argparse.ArgumentParser:
                    help='shear rate of the limit, e.g. "100 1/s" (default 1 1/s)')
     _add_output(p)
 
-    p = add("screen", "predict a table of candidate formulations (CSV or Excel)", cmd_screen)
-    p.add_argument("table", help="candidate table (.csv or .xlsx)")
-    p.add_argument("-o", "--output", help="write all result rows here (.csv, .xlsx or .json)")
+    p = add("screen", "predict a table of candidate formulations (CSV, Excel or Parquet)",
+            cmd_screen)
+    p.add_argument("table", help="candidate table (.csv, .xlsx or .parquet)")
+    p.add_argument("-o", "--output",
+                   help="write all result rows here (.csv, .xlsx, .parquet or .json)")
     p.add_argument("--chunk-rows", type=int, default=50_000,
                    help="rows computed at once; bounds the memory (default 50000)")
     p.add_argument("--show", type=int, default=20, help="rows shown in the table (default 20)")
     p.add_argument("--progress", action=argparse.BooleanOptionalAction, default=None,
                    help="progress bar on stderr (default: when stderr is a terminal)")
+    p.add_argument("--dask", nargs="?", const="", default=None, metavar="ADDRESS",
+                   help="compute the chunks on a Dask cluster: a local one by default, or the "
+                        "scheduler at ADDRESS (e.g. tcp://host:8786); needs "
+                        "'pip install loadline[dask]'. Give it after the table.")
     _add_output(p)
 
     p = add("pack", "packing limit phi_max of a size table, every estimator", cmd_pack)
