@@ -7,6 +7,7 @@ creeps back at module level fails here, not only in the start-up benchmark rows.
 from __future__ import annotations
 
 import json
+import os
 import subprocess
 import sys
 
@@ -55,9 +56,14 @@ def test_light_commands_load_no_numeric_stack(argv):
 
 
 def test_kernels_compile_on_first_use():
-    # numba loads with the first kernel call, not with the module that defines it.
-    code = ("from predictor import packing\nimport sys\nassert 'numba' not in sys.modules\n"
-            "print(packing.compressible_packing([1e-6, 3e-6], [0.5, 0.5]))")
+    # numba loads with the first call of a compiled kernel (the jamming simulation's), not
+    # with the module that defines it nor with the packing estimates of every prediction.
+    code = ("import numpy as np\nfrom predictor import packing\nimport sys\n"
+            "packing.packing_estimates([1e-6, 3e-6], [0.5, 0.5])\n"
+            "assert 'numba' not in sys.modules\n"
+            "x = np.zeros((2, 3)); x[1, 0] = 0.5\n"
+            "packing._forces(x, np.array([0.3, 0.3]), np.array([0]), np.array([1]), 10.0,"
+            " np.zeros_like(x))")
     assert _loaded(code, ("numba",)) == ["numba"]
 
 
@@ -67,3 +73,35 @@ def test_models_json_is_the_registry_snapshot():
     done = subprocess.run([sys.executable, "-m", "predictor.cli", "models", "--json"],
                           capture_output=True, text=True, timeout=120, check=True)
     assert json.loads(done.stdout)["rows"] == json.loads(json.dumps(snapshot()))
+
+
+def test_kernel_without_a_cache_folder_still_compiles():
+    # Source numba cannot place a cache for (here: code with no file) falls back quietly.
+    from predictor._jit import compile_kernel, lazy_njit
+
+    namespace = {}
+    exec(compile("def add_one(x):\n    return x + 1.0\n", "<no file>", "exec"), namespace)
+    kernel = compile_kernel(namespace["add_one"])
+    assert kernel(2.0) == 3.0
+    lazy = lazy_njit()(namespace["add_one"])
+    assert lazy(1.5) == 2.5 and lazy.compiled() is lazy.compiled()
+
+
+@pytest.mark.slow
+def test_second_process_loads_the_kernel_from_the_disk_cache(tmp_path):
+    probe = ("import numpy as np\nfrom predictor import packing\n"
+             "x = np.zeros((2, 3)); x[1, 0] = 0.5\n"
+             "packing._forces(x, np.array([0.3, 0.3]), np.array([0]), np.array([1]), 10.0,"
+             " np.zeros_like(x))\n"
+             "stats = packing._forces.compiled().stats\n"
+             "print(sum(stats.cache_hits.values()), sum(stats.cache_misses.values()))")
+    env = {**os.environ, "NUMBA_CACHE_DIR": str(tmp_path)}
+
+    def hits_misses():
+        done = subprocess.run([sys.executable, "-c", probe], capture_output=True, text=True,
+                              timeout=300, check=True, env=env)
+        return tuple(int(v) for v in done.stdout.split()[-2:])
+
+    assert hits_misses() == (0, 1)        # compiled and written to the cache folder
+    assert any(tmp_path.rglob("*.nbi"))
+    assert hits_misses() == (1, 0)        # loaded from disk: no second compilation
