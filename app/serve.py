@@ -22,7 +22,7 @@ def warm() -> None:
     import importlib
 
     for name in ("pandas", "altair", "predictor.scenario", "predictor.formulation",
-                 "predictor.design", "app.charts", "app.compute", "app.widgets"):
+                 "predictor.design", "predictor.charts", "app.compute", "app.widgets"):
         importlib.import_module(name)
     from predictor import registry, units
 

@@ -14,9 +14,9 @@ import pandas as pd
 import streamlit as st
 
 import predictor
-from app import charts, compute, state
+from app import compute, state
+from predictor import charts, sizes
 from predictor import scenario as sc
-from predictor import sizes
 from predictor.units import from_si, to_si
 
 LIQUID_PRESETS = {"water": "Water", "glycerol-water": "Glycerol–water",
@@ -395,7 +395,7 @@ def metric_row(items: list[tuple]) -> None:
 
 
 def chart_block(chart, data: pd.DataFrame, stem: str, key: str, export=None) -> None:
-    """The chart (a Vega-Lite spec from app/charts.py), then downloads of its data (CSV)
+    """The chart (a Vega-Lite spec from predictor/charts.py), then downloads of its data (CSV)
     and of the chart itself (PNG, SVG).
 
     `chart` may be a list of panels sharing an x axis, drawn one under the other; then

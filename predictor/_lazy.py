@@ -12,11 +12,16 @@ import importlib
 class LazyModule:
     """``np = LazyModule("numpy")``: ``np.asarray`` imports numpy when first used."""
 
-    def __init__(self, name: str):
+    def __init__(self, name: str, on_import=None):
         self._name = name
+        self._on_import = on_import   # called once with the module when it is first used
 
     def __getattr__(self, attribute: str):
-        return getattr(importlib.import_module(self._name), attribute)
+        module = importlib.import_module(self._name)
+        if self._on_import is not None:
+            hook, self._on_import = self._on_import, None
+            hook(module)
+        return getattr(module, attribute)
 
     def __repr__(self) -> str:
         return f"<lazily imported module {self._name!r}>"

@@ -11,7 +11,8 @@ import streamlit as st
 from streamlit.runtime.scriptrunner import add_script_run_ctx, get_script_run_ctx
 
 import predictor
-from app import charts, compute, state, widgets
+from app import compute, state, widgets
+from predictor import charts
 from predictor.units import from_si, to_si
 
 state.init()

@@ -1,5 +1,6 @@
-"""Altair chart builders: DataFrames in, a Vega-Lite spec (dict) out; no physics, no
-Streamlit.
+"""Altair chart builders of the app and the report: DataFrames in, a Vega-Lite spec (dict)
+out; no physics, no Streamlit. One module for both (the report renders the same specs to
+SVG offline with `to_svg`); Altair is imported when the first chart is built.
 
 Colours are the Okabe-Ito palette (distinguishable with the common colour-vision
 deficiencies). Every axis carries a quantity and a unit. `big=True` is the presentation
@@ -11,10 +12,10 @@ from __future__ import annotations
 import json
 import math
 
-import altair as alt
 import numpy as np
 import pandas as pd
-from altair.utils import schemapi
+
+from ._lazy import LazyModule
 
 OKABE_ITO = ["#0072B2", "#D55E00", "#009E73", "#CC79A7", "#E69F00", "#56B4E9", "#000000",
              "#F0E442"]
@@ -41,10 +42,16 @@ def config(big: bool = False) -> dict:
     }
 
 
-# Altair checks every object against the Vega-Lite schema as it is built; that costs more
-# than the rest of a page run. The finished specs are checked once, in the tests
-# (tests/app/test_charts.py validates every builder's output), so the eager check is off.
-schemapi.disable_debug_mode()
+def _quiet_schema_checks(altair) -> None:
+    # Altair checks every object against the Vega-Lite schema as it is built; that costs
+    # more than the rest of a page run. The finished specs are checked once, in the tests
+    # (tests/app/test_charts.py validates every builder's output), so the eager check is off.
+    from altair.utils import schemapi
+
+    schemapi.disable_debug_mode()
+
+
+alt = LazyModule("altair", on_import=_quiet_schema_checks)
 
 
 class Figure:
