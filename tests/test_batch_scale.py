@@ -93,3 +93,13 @@ def test_cli_dask_address_gives_the_same_json(dask_client, capsys):
     assert main(args + ["--dask", dask_client.scheduler.address]) == 0
     remote = json.loads(capsys.readouterr().out)
     assert remote == local and remote["rows_total"] == 13
+
+
+@pytest.mark.slow
+def test_cli_dask_without_address_starts_and_stops_a_local_cluster(capsys, tmp_path):
+    pytest.importorskip("distributed")
+    args = ["screen", str(DEMO / "candidates_with_errors.csv"), "--chunk-rows", "4"]
+    assert main(args + ["-o", str(tmp_path / "local.csv")]) == 3     # rows with bad input
+    capsys.readouterr()
+    assert main(args + ["-o", str(tmp_path / "dask.csv"), "--dask"]) == 3
+    assert (tmp_path / "dask.csv").read_bytes() == (tmp_path / "local.csv").read_bytes()
