@@ -399,8 +399,16 @@ def _csv_rows(path: pathlib.Path, delimiter: str, skip: int, chunk_rows: int):
 
 
 def count_rows(path) -> int | None:
-    """Number of data rows of a CSV (lines after the header), for the progress bar."""
+    """Number of data rows of a CSV (lines after the header) or a Parquet file (its
+    metadata), for the progress bar; None for other tables."""
     path = pathlib.Path(path)
+    if path.suffix.lower() == ".parquet":
+        import pyarrow.parquet as pq
+
+        try:
+            return pq.ParquetFile(path).metadata.num_rows
+        except Exception:  # noqa: BLE001  a broken file is reported by read_table instead
+            return None
     if path.suffix.lower() != ".csv":
         return None
     lines = 0

@@ -207,8 +207,7 @@ class Progress:
         )
         from rich.progress import Progress as Bar
 
-        console = Console(file=stream or sys.stderr, force_terminal=stream is None and
-                          sys.stderr.isatty() or None)
+        console = Console(file=stream or sys.stderr)   # plain text when not a terminal
         self.bar = Bar(TextColumn(label), BarColumn(), TaskProgressColumn(),
                        MofNCompleteColumn(), TextColumn("rows"), TimeElapsedColumn(),
                        console=console, transient=False)
