@@ -178,7 +178,12 @@ def build_report(form: fm.Formulation, viscosity_unit: str = "Pa*s",
     sections.append(sec)
 
     sec = Section("Flow curve")
-    sec.charts.append(_flow_curve_chart(curve, vu))
+    chart = _flow_curve_chart(curve, vu)
+    if chart is None:
+        sec.paragraphs.append("No flow at any shear rate of the curve: the solids are at or "
+                              "above the packing limit, so there is no flow curve to draw.")
+    else:
+        sec.charts.append(chart)
     rates = np.array([1e-3, 1e-1, 1e1, 1e3, 1e5])
     few = fm.predict(form, rates)
     shown = pd.DataFrame({"shear rate [1/s]": rates,
@@ -248,7 +253,7 @@ def build_report(form: fm.Formulation, viscosity_unit: str = "Pa*s",
             plot[finite], y_title=f"Viscosity [{vu}]", phi_max=mix.phi_max,
             phi_max_range=packing_range, band=band,
             current={"phi": mix.phi_solids_effective, "viscosity": current,
-                     "label": "current loading"}))
+                     "label": "current loading"} if math.isfinite(current) else None))
         plot = plot.rename(columns={"viscosity": f"viscosity [{vu}]"})
         pick = np.linspace(0, len(sweep) - 1, 8).round().astype(int)
         sec.tables.append(("Selected loadings", pd.DataFrame({
@@ -309,8 +314,9 @@ def build_report(form: fm.Formulation, viscosity_unit: str = "Pa*s",
     return Report(form.name or "Loadline report", subtitle.strip(), sections, notes)
 
 
-def _flow_curve_chart(curve: pd.DataFrame, vu: str) -> dict:
-    """The app's flow-curve panels (process windows, viscosity, stress) as one chart."""
+def _flow_curve_chart(curve: pd.DataFrame, vu: str) -> dict | None:
+    """The app's flow-curve panels (process windows, viscosity, stress) as one chart; None
+    when no point flows (jammed)."""
     from . import shear
 
     frame = pd.DataFrame({"rate": curve["shear_rate_1_per_s"].to_numpy(),
@@ -322,6 +328,8 @@ def _flow_curve_chart(curve: pd.DataFrame, vu: str) -> dict:
     windows = pd.DataFrame([tuple(w) for w in getattr(shear, "PROCESS_SHEAR_RATES", ())],
                            columns=["name", "low", "high"])
     drawable = np.isfinite(frame["viscosity"]) & (frame["viscosity"] > 0)
+    if not drawable.any():
+        return None
     return charts.flow_curve(frame[drawable], windows=windows, x_title="Shear rate [1/s]",
                              y_title=f"Viscosity [{vu}]", stress_title="Shear stress [Pa]",
                              joined=True)
