@@ -234,21 +234,26 @@ def lines(data: pd.DataFrame, *, x: str, y: str, series: str, x_title: str, y_ti
     return fig.spec(chart, big)
 
 
-def to_png(spec: dict) -> bytes:
+#: Width in pixels of an exported chart (PNG/SVG) drawn at the page's container width.
+EXPORT_WIDTH = 820
+
+
+def to_png(spec: dict, width: int = EXPORT_WIDTH) -> bytes:
     """The chart as PNG bytes, rendered offline by vl-convert."""
     import vl_convert as vlc
 
-    return vlc.vegalite_to_png(export_json(spec), scale=2)
+    return vlc.vegalite_to_png(export_json(spec, width), scale=2)
 
 
-def to_svg(spec: dict) -> str:
+def to_svg(spec: dict, width: int = EXPORT_WIDTH) -> str:
+    """The chart as SVG text, rendered offline by vl-convert (fonts bundled, no network)."""
     import vl_convert as vlc
 
-    return vlc.vegalite_to_svg(export_json(spec))
+    return vlc.vegalite_to_svg(export_json(spec, width))
 
 
-def export_json(spec: dict) -> str:
-    """The spec as standalone Vega-Lite JSON: data inlined, fixed width instead of the
+def export_json(spec: dict, width: int = EXPORT_WIDTH) -> str:
+    """The spec as standalone Vega-Lite JSON: data inlined, `width` pixels instead of the
     page's container width."""
     out = {k: v for k, v in spec.items() if k != "datasets"}
     out["datasets"] = {name: _records(frame) for name, frame in spec.get("datasets", {}).items()}
@@ -256,7 +261,7 @@ def export_json(spec: dict) -> str:
     def fix(node):
         if isinstance(node, dict):
             if node.get("width") == "container":
-                node["width"] = 820
+                node["width"] = width
             for value in node.values():
                 fix(value)
         elif isinstance(node, list):
@@ -289,8 +294,8 @@ def flow_curve(curve: pd.DataFrame, *, windows: pd.DataFrame, x_title: str, y_ti
     fixed width (for PNG/SVG export).
     """
     fig = Figure()
-    if joined:
-        width = 820
+    if joined and width == "container":
+        width = EXPORT_WIDTH
     lo = float(curve["rate"].min())
     hi = float(curve["rate"].max())
     x_scale = alt.Scale(type="log", domain=[lo, hi], nice=False)

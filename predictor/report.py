@@ -332,7 +332,7 @@ def _flow_curve_chart(curve: pd.DataFrame, vu: str) -> dict | None:
         return None
     return charts.flow_curve(frame[drawable], windows=windows, x_title="Shear rate [1/s]",
                              y_title=f"Viscosity [{vu}]", stress_title="Shear stress [Pa]",
-                             joined=True)
+                             joined=True, width=CHART_WIDTH)
 
 
 def _marker_row(key: str, value: float, viscosity_unit: str) -> tuple:
@@ -422,7 +422,7 @@ def render_html(report: Report) -> str:
         slug = re.sub(r"[^a-z]+", "-", sec.title.lower()).strip("-")
         parts.append(f"<section id='{slug}'><h2>{k}. {html.escape(sec.title)}</h2>")
         for chart in sec.charts:
-            parts.append(f"<figure>{charts.to_svg(chart)}</figure>")
+            parts.append(f"<figure>{charts.to_svg(chart, CHART_WIDTH)}</figure>")
         for text in sec.paragraphs:
             parts.append(f"<p>{html.escape(text)}</p>")
         for caption, table in sec.tables:
@@ -440,6 +440,8 @@ def render_html(report: Report) -> str:
 # -- PDF --------------------------------------------------------------------------------------
 
 _PAGE_W = 900
+#: Plot width of the report's charts: with their axes they fit the page's 900 px.
+CHART_WIDTH = 700
 _LINE = 16
 
 
@@ -474,7 +476,7 @@ def render_svg(report: Report) -> str:
         y += 12
         text(f"{k}. {sec.title}", 16, "bold")
         for chart in sec.charts:
-            svg = charts.to_svg(chart)
+            svg = charts.to_svg(chart, CHART_WIDTH)
             height = float(re.search(r'height="([\d.]+)"', svg).group(1))
             body = re.sub(r"^<svg", f"<svg x='40' y='{y}'", svg.strip(), count=1)
             items.append(body)
