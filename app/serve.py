@@ -21,8 +21,10 @@ def warm() -> None:
     """Import the opening page's dependencies (a module imported twice is imported once)."""
     import importlib
 
-    for name in ("pandas", "altair", "predictor.scenario", "predictor.formulation",
-                 "predictor.design", "predictor.charts", "app.compute", "app.widgets"):
+    # scipy.optimize: the packing estimates of the opening page's sweep solve with brentq.
+    for name in ("pandas", "altair", "scipy.optimize", "predictor.scenario",
+                 "predictor.formulation", "predictor.design", "predictor.charts",
+                 "app.compute", "app.widgets"):
         importlib.import_module(name)
     from predictor import registry, units
 

@@ -24,8 +24,8 @@ def test_serve_passes_its_options_to_streamlit_run(mocker):
 def test_warm_up_loads_what_the_opening_page_needs():
     probe = ("import sys\nfrom app import serve\nserve.warm()\n"
              "print(sorted(m for m in ('pandas', 'altair', 'pint', 'predictor.design', "
-             "'predictor.charts') if m in sys.modules))")
+             "'predictor.charts', 'scipy.optimize') if m in sys.modules))")
     done = subprocess.run([sys.executable, "-c", probe], capture_output=True, text=True,
                           cwd=REPO, timeout=120, check=True)
     assert done.stdout.split("\n")[-2] == str(
-        ["altair", "pandas", "pint", "predictor.charts", "predictor.design"])
+        ["altair", "pandas", "pint", "predictor.charts", "predictor.design", "scipy.optimize"])
