@@ -264,12 +264,13 @@ def _scenario_head(form, meta: dict) -> str:
 
 
 def cmd_sweep(args) -> int:
-    from .formulation import loading_sweep
+    from .formulation import loading_sweep, mixture, require_solid
 
     unit = _check_viscosity_unit(args.viscosity_unit)
     if not 2 <= args.points <= 100_000:
         raise UnitError(f"--points = {args.points} is not allowed; expected 2 to 100000.")
     form = _scenario(args.scenario)
+    require_solid(mixture(form))   # a solids sweep is not asked of droplets alone (as max-load)
     rate = _quantity(args.shear_rate, "shear_rate", "--shear-rate") if args.shear_rate else None
     sweep = _sweep(loading_sweep, form, args.points, rate)
     frame = pd.DataFrame({
@@ -307,6 +308,7 @@ def _sweep_basis(rate: float | None) -> str:
 def cmd_max_load(args) -> int:
     from .formulation import max_loading, mixture, solid_mass_fraction
 
+    _check_viscosity_unit(args.viscosity_unit)
     form = _scenario(args.scenario)
     limits = [_quantity(t, "viscosity", "--limit") for t in args.limit]
     rates = [_quantity(t, "shear_rate", "--shear-rate") for t in (args.shear_rate or ["1 1/s"])]
@@ -413,6 +415,9 @@ def cmd_pack(args) -> int:
 
     packing = _need("packing", "packing_estimates")
     dist = read_size_table(args.sizes, field=str(args.sizes))
+    if args.simulation and sys.stderr.isatty():
+        print("loadline: running the jamming simulation (seconds to a minute; Ctrl+C stops "
+              "it)...", file=sys.stderr, flush=True)
     est = packing.packing_estimates(dist.diameters_m, dist.fractions,
                                     include_simulation=args.simulation)
     rows = [{"method": name, "phi_max [-]": float(value), "note": ""}

@@ -17,17 +17,13 @@ import warnings
 from . import sizes
 from .errors import LoadlineError, ScenarioError, UnitError
 from .files import atomic_write, load_json, number
-from .formulation import Formulation, Ingredient, Liquid
+from .formulation import MAX_INGREDIENTS, Formulation, Ingredient, Liquid
 from .units import parse_quantity
 
 SCHEMA_VERSION = 1
 FORMAT = "loadline-scenario"
 SUFFIX = ".loadline.json"
 MAX_BYTES = 5_000_000
-#: Most ingredients read from one scenario. A real formulation has a handful of dispersed
-#: ingredients (the app edits up to 6); 50 is generous, and it bounds the work (every
-#: question solves for all ingredients at once) to well under a second per prediction.
-MAX_INGREDIENTS = 50
 
 # JSON key -> (dataclass field, dimension, unit written)
 _LIQUID_QUANTITIES = {

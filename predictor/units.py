@@ -156,10 +156,10 @@ def check_dimension(quantity, expected: str, field: str, power_law: bool = False
     Examples
     --------
     >>> check_dimension(Q_(800, "mPa*s"), "Pa*s", "zero_shear_viscosity_Pa_s")
-    >>> check_dimension(Q_(800, "mm"), "Pa*s", "zero_shear_viscosity_Pa_s")
+    >>> check_dimension(Q_(800, "mm"), "Pa*s", "eta_0")  # doctest: +ELLIPSIS
     Traceback (most recent call last):
     ...
-    predictor.errors.UnitError: zero_shear_viscosity_Pa_s: unit 'mm' has the dimension [length]; expected a viscosity unit like 'Pa*s'.
+    predictor.errors.UnitError: eta_0: unit 'mm' has the dimension [length]; expected a ...
     """
     target = ureg.parse_units("" if expected.strip() in ("", "-") else expected)
     dims = dict(quantity.dimensionality)
