@@ -73,7 +73,9 @@ def safe_file_name(name: str, default: str = "upload") -> str:
 @st.cache_data(**CACHE)
 def scenario_json(document_text: str) -> str:
     """Canonical scenario JSON of a scenario document; LoadlineError if it is not valid."""
-    return sc.dumps(sc.scenario_from_dict(json.loads(document_text)))
+    from predictor.files import load_json
+
+    return sc.dumps(sc.scenario_from_dict(load_json(document_text)))
 
 
 def formulation(scenario: str) -> fm.Formulation:
