@@ -1566,6 +1566,31 @@ def _predict_chunk_safe(chunk: pd.DataFrame, ctx: _Context, viscosity_unit: str)
     return pd.concat(parts, ignore_index=True)
 
 
+_MAX_SOLIDS = re.compile(r"^window (\d+) max solids \[vol%\]$")
+
+
+def _note_liquid_fails(frame: pd.DataFrame) -> pd.DataFrame:
+    """Say, in the `warnings` column, where a window's highest loading is 0 because even the
+    liquid (with its droplets) is above the window's max viscosity: a bare 0 reads as an
+    answer about the solids."""
+    if "warnings" not in frame or "status" not in frame:
+        return frame
+    ok = frame["status"].to_numpy() == "ok"
+    notes = frame["warnings"].astype(object).where(frame["warnings"].notna(), "").astype(str)
+    for column in frame.columns:
+        match = _MAX_SOLIDS.match(str(column))
+        if not match:
+            continue
+        fails = ok & (pd.to_numeric(frame[column], errors="coerce").to_numpy() == 0.0)
+        if fails.any():
+            text = (f"window {match.group(1)}: even the liquid without solids (with its "
+                    "droplets) is above the max viscosity; no solids loading meets it")
+            notes = notes.where(~fails, notes.map(lambda n: f"{n}; {text}" if n else text))
+    frame = frame.copy()
+    frame["warnings"] = notes.to_numpy(dtype=object)
+    return frame
+
+
 # -- public entry points ----------------------------------------------------------------------
 
 
@@ -1621,8 +1646,9 @@ def screen(table: pd.DataFrame, base_dir=".", viscosity_unit: str = "Pa*s",
     layout = parse_header(table.columns)
     ctx = _Context(layout, pathlib.Path(base_dir))
     text = table.astype(object).where(table.notna(), "").astype(str)
-    parts = [_predict_chunk_safe(text.iloc[s:s + chunk_rows].reset_index(drop=True), ctx,
-                            viscosity_unit) for s in range(0, len(text), chunk_rows)]
+    parts = [_note_liquid_fails(_predict_chunk_safe(
+        text.iloc[s:s + chunk_rows].reset_index(drop=True), ctx, viscosity_unit))
+        for s in range(0, len(text), chunk_rows)]
     if not parts:
         return _predict_chunk(text, ctx, viscosity_unit)
     return pd.concat(parts, ignore_index=True)
@@ -1666,7 +1692,8 @@ def screen_file(path, out_path=None, viscosity_unit: str = "Pa*s",
                 ctx = _Context(layout, path.parent)
                 summary.windows = layout.windows
                 summary.unrecognised = layout.unrecognised
-            result = _predict_chunk_safe(chunk.reset_index(drop=True), ctx, viscosity_unit)
+            result = _note_liquid_fails(_predict_chunk_safe(chunk.reset_index(drop=True), ctx,
+                                                            viscosity_unit))
             summary.add(result, summary.rows)
             if streaming:
                 write_csv(result, handle, header=handle.tell() == 0)

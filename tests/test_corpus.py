@@ -316,3 +316,17 @@ def test_size_table_retained_in_a_mass_unit_is_read(tmp_path):
     path = tmp_path / "kg.csv"
     path.write_text("size [um],retained [kg]\n1,5\n2,5\n", encoding="utf-8")
     np.testing.assert_allclose(batch.read_size_table(path).fractions, [0.5, 0.5])
+
+
+def test_window_limit_below_the_liquid_is_explained_in_the_row(tmp_path):
+    # Water is 0.89 mPa*s at 25 degC (the batch default; IAPWS value, from memory); a
+    # 0.1 mPa*s ceiling cannot be met by any loading. Before: max solids 0 with no word.
+    path = tmp_path / "low.csv"
+    path.write_text("candidate,ingredient 1 loading [wt%],ingredient 1 density [kg/m3],"
+                    "ingredient 1 d50 [um],window 1 shear rate [1/s],"
+                    "window 1 max viscosity [mPa*s]\nA,30,2500,5,10,0.1\nB,30,2500,5,10,100\n",
+                    encoding="utf-8")
+    _, frame = batch.screen_file(path, keep=-1)
+    assert frame["window 1 max solids [vol%]"].tolist()[0] == 0.0
+    assert "even the liquid without solids" in frame["warnings"].iat[0]
+    assert "even the liquid" not in frame["warnings"].iat[1]
