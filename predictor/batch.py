@@ -1585,7 +1585,8 @@ def _note_liquid_fails(frame: pd.DataFrame) -> pd.DataFrame:
         if fails.any():
             text = (f"window {match.group(1)}: even the liquid without solids (with its "
                     "droplets) is above the max viscosity; no solids loading meets it")
-            notes = notes.where(~fails, notes.map(lambda n: f"{n}; {text}" if n else text))
+            joined = (notes + "; " + text).where(notes != "", text)
+            notes = notes.where(~fails, joined)
     frame = frame.copy()
     frame["warnings"] = notes.to_numpy(dtype=object)
     return frame
