@@ -14,6 +14,7 @@ formats; it computes nothing itself. Human-readable tables by default, ``--json`
 from __future__ import annotations
 
 import argparse
+import contextlib
 import io
 import json
 import math
@@ -208,6 +209,40 @@ class Progress:
         if self.enabled:
             self.stream.write("\n")
             self.stream.flush()
+
+
+#: Seconds between two redraws of `elapsed_ticker`.
+TICK_SECONDS = 1.0
+
+
+@contextlib.contextmanager
+def elapsed_ticker(label: str, enabled: bool, stream=None):
+    """A line on stderr, redrawn every `TICK_SECONDS`, saying how long a step that reports no
+    progress of its own (the jamming simulation) has been running."""
+    if not enabled:
+        yield
+        return
+    import threading
+
+    stream = stream or sys.stderr
+    every_s = TICK_SECONDS
+    stop = threading.Event()
+    start = time.perf_counter()
+
+    def tick():
+        while not stop.wait(every_s):
+            stream.write(f"\r{label}: {time.perf_counter() - start:.0f} s (Ctrl+C stops it)")
+            stream.flush()
+
+    thread = threading.Thread(target=tick, daemon=True)
+    thread.start()
+    try:
+        yield
+    finally:
+        stop.set()
+        thread.join()
+        stream.write(f"\r{label}: done in {time.perf_counter() - start:.1f} s\n")
+        stream.flush()
 
 
 # -- commands ---------------------------------------------------------------------------------
@@ -415,11 +450,10 @@ def cmd_pack(args) -> int:
 
     packing = _need("packing", "packing_estimates")
     dist = read_size_table(args.sizes, field=str(args.sizes))
-    if args.simulation and sys.stderr.isatty():
-        print("loadline: running the jamming simulation (seconds to a minute; Ctrl+C stops "
-              "it)...", file=sys.stderr, flush=True)
-    est = packing.packing_estimates(dist.diameters_m, dist.fractions,
-                                    include_simulation=args.simulation)
+    show = args.progress if args.progress is not None else sys.stderr.isatty()
+    with elapsed_ticker("pack: jamming simulation", show and args.simulation):
+        est = packing.packing_estimates(dist.diameters_m, dist.fractions,
+                                        include_simulation=args.simulation)
     rows = [{"method": name, "phi_max [-]": float(value), "note": ""}
             for name, value in est.estimates.items()]
     rows += [{"method": name, "phi_max [-]": float("nan"), "note": f"skipped: {reason}"}
@@ -663,6 +697,9 @@ def build_parser() -> argparse.ArgumentParser:
     p.add_argument("sizes", help="size table CSV")
     p.add_argument("--simulation", action="store_true",
                    help="also run the jamming simulation (takes seconds)")
+    p.add_argument("--progress", action=argparse.BooleanOptionalAction, default=None,
+                   help="elapsed time of the simulation on stderr (default: when stderr is "
+                        "a terminal)")
     _add_output(p, viscosity=False)
 
     p = add("fit", "calibrate a relation to lab viscosities (CSV)", cmd_fit)

@@ -260,3 +260,25 @@ def test_pack_simulation_says_when_it_cannot_represent_the_sizes(capsys, tmp_pat
     rows = {r["method"]: r for r in json.loads(out)["rows"]}
     assert rows["simulation"]["phi_max [-]"] is None
     assert "cannot represent this distribution" in rows["simulation"]["note"]
+
+
+def test_pack_simulation_shows_its_elapsed_time(capsys, tmp_path, monkeypatch):
+    # The jamming simulation reports no progress of its own; --progress redraws the elapsed
+    # time on stderr while it runs (here a stand-in that takes 0.35 s).
+    import time
+
+    from predictor import cli, packing
+
+    real = packing.packing_estimates
+
+    def slow(*args, **kwargs):
+        time.sleep(0.35)
+        kwargs["include_simulation"] = False
+        return real(*args, **kwargs)
+
+    monkeypatch.setattr(packing, "packing_estimates", slow)
+    monkeypatch.setattr(cli, "TICK_SECONDS", 0.1)
+    code, _, err = run(capsys, "pack", str(DEMO / "sizes_filler_coarse.csv"), "--simulation",
+                       "--progress")
+    assert code == 0
+    assert "pack: jamming simulation: 0 s" in err and "done in 0." in err
