@@ -373,7 +373,8 @@ def calibrate(text: str, source: str, scenario: str, model: str, shear_rate: flo
 
 @st.cache_data(**CACHE)
 def size_table(data: bytes, name: str) -> dict:
-    """A measured size distribution from an uploaded CSV (predictor.batch.read_size_table)."""
+    """A measured size distribution from an uploaded CSV (predictor.batch.read_size_table):
+    ``{"dist": its to_dict(), "notes": [warnings, e.g. a rebinned table]}``."""
     import pathlib
     import tempfile
 
@@ -383,7 +384,8 @@ def size_table(data: bytes, name: str) -> dict:
         path = pathlib.Path(folder) / safe_file_name(name, "sizes.csv")
         path.write_bytes(data)
         with reading(name):
-            return batch.read_size_table(path, field=name).to_dict()
+            dist, notes = _captured(batch.read_size_table, path, field=name)
+    return {"dist": dist.to_dict(), "notes": notes}
 
 
 @st.cache_data(**CACHE)
