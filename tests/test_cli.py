@@ -239,9 +239,9 @@ def test_limit_below_the_liquid_says_even_the_liquid_fails(capsys):
 
 def test_tiny_shear_rate_gives_the_plateau_or_a_refusal_never_a_default(capsys):
     # Before: 1e-300 1/s returned exactly 1 Pa*s (a 1e-300 Pa stress floor divided by the
-    # rate). Now the zero-shear plateau (the value at 1e-6 1/s), or a refusal naming the rate.
+    # rate). Now the zero-shear plateau (the value at 1e-12 1/s), or a refusal naming the rate.
     path = str(DEMO / "ceramic_slip.loadline.json")
-    _, plateau, _ = run(capsys, "predict", path, "--shear-rate", "1e-6 1/s", "--json")
+    _, plateau, _ = run(capsys, "predict", path, "--shear-rate", "1e-12 1/s", "--json")
     code, out, _ = run(capsys, "predict", path, "--shear-rate", "1e-300 1/s", "--json")
     assert code == 0
     assert json.loads(out)["rows"][0]["viscosity [Pa*s]"] == pytest.approx(

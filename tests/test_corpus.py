@@ -319,7 +319,7 @@ def test_size_table_retained_in_a_mass_unit_is_read(tmp_path):
 
 
 def test_window_limit_below_the_liquid_is_explained_in_the_row(tmp_path):
-    # Water is 0.89 mPa*s at 25 degC (the batch default; IAPWS value, from memory); a
+    # The batch default liquid is water at 25 degC, about 0.89 mPa*s (its own output); a
     # 0.1 mPa*s ceiling cannot be met by any loading. Before: max solids 0 with no word.
     path = tmp_path / "low.csv"
     path.write_text("candidate,ingredient 1 loading [wt%],ingredient 1 density [kg/m3],"
