@@ -14,6 +14,7 @@ formats; it computes nothing itself. Human-readable tables by default, ``--json`
 from __future__ import annotations
 
 import argparse
+import contextlib
 import io
 import json
 import math
@@ -226,6 +227,40 @@ class Progress:
             self.bar.stop()
 
 
+#: Seconds between two redraws of `elapsed_ticker`.
+TICK_SECONDS = 1.0
+
+
+@contextlib.contextmanager
+def elapsed_ticker(label: str, enabled: bool, stream=None):
+    """A line on stderr, redrawn every `TICK_SECONDS`, saying how long a step that reports no
+    progress of its own (the jamming simulation) has been running."""
+    if not enabled:
+        yield
+        return
+    import threading
+
+    stream = stream or sys.stderr
+    every_s = TICK_SECONDS
+    stop = threading.Event()
+    start = time.perf_counter()
+
+    def tick():
+        while not stop.wait(every_s):
+            stream.write(f"\r{label}: {time.perf_counter() - start:.0f} s (Ctrl+C stops it)")
+            stream.flush()
+
+    thread = threading.Thread(target=tick, daemon=True)
+    thread.start()
+    try:
+        yield
+    finally:
+        stop.set()
+        thread.join()
+        stream.write(f"\r{label}: done in {time.perf_counter() - start:.1f} s\n")
+        stream.flush()
+
+
 # -- commands ---------------------------------------------------------------------------------
 
 
@@ -280,12 +315,13 @@ def _scenario_head(form, meta: dict) -> str:
 
 
 def cmd_sweep(args) -> int:
-    from .formulation import loading_sweep
+    from .formulation import loading_sweep, mixture, require_solid
 
     unit = _check_viscosity_unit(args.viscosity_unit)
     if not 2 <= args.points <= 100_000:
         raise UnitError(f"--points = {args.points} is not allowed; expected 2 to 100000.")
     form = _scenario(args.scenario)
+    require_solid(mixture(form))   # a solids sweep is not asked of droplets alone (as max-load)
     rate = _quantity(args.shear_rate, "shear_rate", "--shear-rate") if args.shear_rate else None
     sweep = _sweep(loading_sweep, form, args.points, rate)
     frame = pd.DataFrame({
@@ -323,6 +359,7 @@ def _sweep_basis(rate: float | None) -> str:
 def cmd_max_load(args) -> int:
     from .formulation import max_loading, mixture, solid_mass_fraction
 
+    _check_viscosity_unit(args.viscosity_unit)
     form = _scenario(args.scenario)
     limits = [_quantity(t, "viscosity", "--limit") for t in args.limit]
     rates = [_quantity(t, "shear_rate", "--shear-rate") for t in (args.shear_rate or ["1 1/s"])]
@@ -454,8 +491,10 @@ def cmd_pack(args) -> int:
 
     packing = _need("packing", "packing_estimates")
     dist = read_size_table(args.sizes, field=str(args.sizes))
-    est = packing.packing_estimates(dist.diameters_m, dist.fractions,
-                                    include_simulation=args.simulation)
+    show = args.progress if args.progress is not None else sys.stderr.isatty()
+    with elapsed_ticker("pack: jamming simulation", show and args.simulation):
+        est = packing.packing_estimates(dist.diameters_m, dist.fractions,
+                                        include_simulation=args.simulation)
     rows = [{"method": name, "phi_max [-]": float(value), "note": ""}
             for name, value in est.estimates.items()]
     rows += [{"method": name, "phi_max [-]": float("nan"), "note": f"skipped: {reason}"}
@@ -708,6 +747,9 @@ def build_parser() -> argparse.ArgumentParser:
     p.add_argument("sizes", help="size table CSV")
     p.add_argument("--simulation", action="store_true",
                    help="also run the jamming simulation (takes seconds)")
+    p.add_argument("--progress", action=argparse.BooleanOptionalAction, default=None,
+                   help="elapsed time of the simulation on stderr (default: when stderr is "
+                        "a terminal)")
     _add_output(p, viscosity=False)
 
     p = add("fit", "calibrate a relation to lab viscosities (CSV)", cmd_fit)

@@ -768,7 +768,10 @@ def storage_check(formulation: fm.Formulation, *, storage_time_s: float = 180 * 
                      "clear_layer_time_s": v.clear_layer_time_s,
                      "gravitational_peclet": v.gravitational_peclet,
                      "yield_parameter": v.yield_parameter})
-    return pd.DataFrame(rows)
+    # The columns are named even with no ingredient (an empty table, not a column-less one).
+    return pd.DataFrame(rows, columns=["ingredient", "diameter_m", "stable", "reason",
+                                       "message", "velocity_m_per_s", "clear_layer_time_s",
+                                       "gravitational_peclet", "yield_parameter"])
 
 
 def phase_ratio_for_target(*args, **kwargs):

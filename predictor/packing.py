@@ -1123,8 +1123,31 @@ def _simulation_fit_message(d, f) -> str | None:
     return None
 
 
+def _simulation_sample_message(d, f, n_particles: int = 2000) -> str | None:
+    """Why `simulation` cannot represent a distribution with `n_particles` spheres, or None.
+
+    Spheres follow the distribution in number (`sample_diameters`): a coarse class holding
+    much of the volume but few of the particles may get no sphere at all, and the simulated
+    packing is then that of the fine classes only. Checked before the simulation runs.
+    """
+    n = int(min(max(n_particles, 1), 200_000))
+    diam = sample_diameters(d, f, n)
+    missing = float(np.sum(f[d > diam.max()]))
+    if missing <= 0.01:
+        return None
+    number = f / (d / d.max()) ** 3
+    share = float(np.sum(number[d > diam.max()]) / number.sum())
+    needed = f"about {min(1.0 / share, 1e300):.2g}" if share > 0 else "too many"
+    return (f"the simulation cannot represent this distribution: with {n} spheres "
+            f"{100 * missing:.3g} % of the volume (sizes above {diam.max() * 1e6:.3g} um, up "
+            f"to {d.max() * 1e6:.3g} um) gets no sphere, a size ratio of "
+            f"{d.max() / d.min():.3g} too large for the box; it would need {needed} spheres. "
+            "Use the estimators above.")
+
+
 _MESSAGES = {"desmond-weeks": _desmond_weeks_message, "furnas": _furnas_message,
-             "simulation-fit": _simulation_fit_message}
+             "simulation-fit": _simulation_fit_message,
+             "simulation": _simulation_sample_message}
 
 DEFAULT_METHOD = "simulation-fit"
 
@@ -1233,13 +1256,18 @@ def packing_estimates(diameters_m, fractions=None, basis: str = "volume",
             skipped[spec.name] = "not run here: the simulation runs on demand (seconds)"
             continue
         check = _MESSAGES.get(spec.name)
-        message = check(d, f) if check else None
+        if spec.name == "simulation":
+            message = check(d, f, simulation_params.get("n_particles", 2000))
+        else:
+            message = check(d, f) if check else None
         if message:
             skipped[spec.name] = message
             continue
         kwargs = {"phi_mono": phi0}
         if spec.name == "simulation":
-            kwargs.update(simulation_params)
+            kwargs.update(simulation_params)   # its own reliability warnings are shown
+            estimates[spec.name] = float(spec.func(d, f, **kwargs))
+            continue
         with warnings.catch_warnings():
             warnings.simplefilter("ignore", ValidityWarning)
             estimates[spec.name] = float(spec.func(d, f, **kwargs))

@@ -173,13 +173,14 @@ def _write_readme_table(path) -> None:
     import pathlib
 
     # Run as a script this module is __main__: read the registry of the imported package.
+    from predictor.files import atomic_write
     from predictor.registry import models_markdown as table
 
     path = pathlib.Path(path)
     text = path.read_text()
     start = text.index("<!-- models:start -->") + len("<!-- models:start -->\n")
     end = text.index("<!-- models:end -->")
-    path.write_text(text[:start] + table() + text[end:])
+    atomic_write(path, text[:start] + table() + text[end:])
 
 
 #: The static snapshot of the registry that `loadline models` reads without numpy.

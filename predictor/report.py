@@ -509,20 +509,24 @@ def _text_table(frame: pd.DataFrame) -> str:
 
 def write_report(scenario_path, html_path, pdf_path=None,
                  viscosity_unit: str = "Pa*s") -> list[pathlib.Path]:
-    """Read a scenario file and write its HTML report (and PDF); returns the paths written."""
+    """Read a scenario file and write its HTML report (and PDF); returns the paths written.
+
+    Both outputs go through `files.atomic_write`: neither may be the scenario (or the other
+    output), and each is replaced whole or not at all.
+    """
+    from .files import atomic_write, check_output
     from .scenario import read_scenario
 
+    check_output(html_path, [scenario_path])
+    if pdf_path:
+        check_output(pdf_path, [scenario_path, html_path])
     form = read_scenario(scenario_path)
     report = build_report(form, viscosity_unit, source=str(scenario_path))
-    html_path = pathlib.Path(html_path)
-    html_path.parent.mkdir(parents=True, exist_ok=True)
-    html_path.write_text(render_html(report), encoding="utf-8")
-    written = [html_path]
+    html = render_html(report)
+    pdf = render_pdf(report) if pdf_path else None
+    written = [atomic_write(html_path, html, [scenario_path])]
     if pdf_path:
-        pdf_path = pathlib.Path(pdf_path)
-        pdf_path.parent.mkdir(parents=True, exist_ok=True)
-        pdf_path.write_bytes(render_pdf(report))
-        written.append(pdf_path)
+        written.append(atomic_write(pdf_path, pdf, [scenario_path, html_path]))
     return written
 
 

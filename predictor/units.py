@@ -166,6 +166,43 @@ def from_si(value, unit: str, dimension: str):
     return float(magnitude) if np.ndim(magnitude) == 0 else magnitude
 
 
+def check_dimension(quantity, expected: str, field: str, power_law: bool = False) -> None:
+    """Refuse a pint quantity whose unit is not of the dimension of `expected`.
+
+    `expected` is a unit ("Pa*s", "s", "-" or "" for a pure number). With `power_law`, any
+    Pa*s**n is accepted (mass / length / time**k: a power-law consistency).
+
+    Raises
+    ------
+    UnitError
+        Naming the field, the unit given and the unit expected.
+
+    Examples
+    --------
+    >>> check_dimension(Q_(800, "mPa*s"), "Pa*s", "zero_shear_viscosity_Pa_s")
+    >>> check_dimension(Q_(800, "mm"), "Pa*s", "eta_0")  # doctest: +ELLIPSIS
+    Traceback (most recent call last):
+    ...
+    predictor.errors.UnitError: eta_0: unit 'mm' has the dimension [length]; expected a ...
+    """
+    target = ureg.parse_units("" if expected.strip() in ("", "-") else expected)
+    dims = dict(quantity.dimensionality)
+    if power_law:
+        ok = dims.get("[mass]") == 1 and dims.get("[length]") == -1 and set(dims) <= {
+            "[mass]", "[length]", "[time]"}
+    else:
+        ok = quantity.dimensionality == target.dimensionality
+    if not ok:
+        kinds = {"[mass] / [length] / [time]": "viscosity",
+                 "[mass] / [length] / [time] ** 2": "stress", "[time]": "time",
+                 "dimensionless": "pure number"}
+        want = kinds.get(str(target.dimensionality), str(target.dimensionality))
+        shown = f"{quantity.units:~}" or "-"
+        raise UnitError(f"{field}: unit {shown!r} has the dimension "
+                        f"{quantity.dimensionality}; expected a {want} unit like "
+                        f"{expected.strip() or '-'!r}.")
+
+
 def parse_loading(text, field: str = "loading", default_basis: str = "volume"):
     """Fraction in [0, 1] and its basis ("mass" or "volume") from text like "35 wt%".
 

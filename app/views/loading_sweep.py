@@ -226,7 +226,9 @@ def _add_compare_files() -> None:
     for upload in files:
         try:
             text = widgets.read_upload(upload, (".json",))
-            kept.append(sc.dumps(sc.loads(text)))
+            form, notes = state.with_notes(sc.loads, text, upload.name)
+            kept.append(sc.dumps(form))
+            problems.extend(notes)
         except predictor.LoadlineError as err:
             problems.append(f"{upload.name}: {err}")
     if len(kept) > state.MAX_COMPARE:
