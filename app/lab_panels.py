@@ -2,7 +2,7 @@
 wall slip from curves at two or more gaps, and thixotropy from step tests.
 
 Layout only: the numbers come from `app/compute.py` (which calls `predictor.labdata` and
-`predictor.thixotropy`) and the charts from `app/charts.py`.
+`predictor.thixotropy`) and the charts from `predictor/charts.py`.
 """
 
 from __future__ import annotations
@@ -11,7 +11,8 @@ import pandas as pd
 import streamlit as st
 
 import predictor
-from app import charts, compute, state, widgets
+from app import compute, state, widgets
+from predictor import charts
 
 ss = st.session_state
 
