@@ -604,6 +604,7 @@ class FlowCurve:
         return self.stress(rate) / rate
 
 
+@guarded
 def law_curve(law: str = "newtonian", **params) -> FlowCurve:
     """`FlowCurve` of a registry liquid law, parameters checked against the registry."""
     from .liquids import liquid_law
@@ -613,6 +614,7 @@ def law_curve(law: str = "newtonian", **params) -> FlowCurve:
                      checked.name, dict(checked.params))
 
 
+@guarded
 def table_curve(shear_rate_1_per_s, shear_stress_Pa, yield_stress_Pa=0.0) -> FlowCurve:
     """`FlowCurve` of a tabulated curve: log-log interpolation, power-law extrapolation.
 
@@ -621,12 +623,16 @@ def table_curve(shear_rate_1_per_s, shear_stress_Pa, yield_stress_Pa=0.0) -> Flo
     Stresses are made non-decreasing (a discontinuous-thickening jump becomes a step).
     """
     rates = as_array(shear_rate_1_per_s, "shear_rate_1_per_s")
-    stresses = np.maximum.accumulate(as_array(shear_stress_Pa, "shear_stress_Pa"))
+    stresses = as_array(shear_stress_Pa, "shear_stress_Pa")
     if rates.ndim != 1 or rates.size < 2 or np.any(np.diff(rates) <= 0) or rates[0] <= 0:
         raise InputRangeError("shear_rate_1_per_s", rates, "at least 2 increasing rates > 0")
-    if stresses[0] <= 0:
-        raise InputRangeError("shear_stress_Pa", stresses[0], "stresses > 0")
-    ty = float(min(max(yield_stress_Pa, 0.0), stresses[0]))
+    if stresses.shape != rates.shape or np.any(stresses <= 0):
+        raise InputRangeError("shear_stress_Pa", stresses,
+                              f"{rates.size} stresses > 0, one per shear rate")
+    stresses = np.maximum.accumulate(stresses)
+    _single(yield_stress_Pa=yield_stress_Pa)
+    ty = float(min(max(float(as_array(yield_stress_Pa, "yield_stress_Pa")), 0.0), stresses[0]))
+    span = max(stresses[0] - ty, 1e-12 * stresses[0])
     log_r, log_s = np.log(rates), np.log(stresses)
     top_slope = max((log_s[-1] - log_s[-2]) / (log_r[-1] - log_r[-2]), 1e-3)
     # one far point continues the last log-log slope, so np.interp also extrapolates above
@@ -637,7 +643,7 @@ def table_curve(shear_rate_1_per_s, shear_stress_Pa, yield_stress_Pa=0.0) -> Flo
         tau = np.asarray(tau, dtype=float)
         with np.errstate(divide="ignore", invalid="ignore", over="ignore"):
             mid = np.exp(np.interp(np.log(np.maximum(tau, 1e-300)), log_s, log_r))
-        low = rates[0] * np.clip((tau - ty) / (stresses[0] - ty), 0.0, None)
+        low = rates[0] * np.clip((tau - ty) / span, 0.0, None)
         return np.where(tau < stresses[0], low, mid)
 
     def stress(gamma):
@@ -879,7 +885,7 @@ def _pipe(curve: FlowCurve, q, d, length, rho, eps) -> PipeFlow:
                      f"beyond the data of {corr} (Re up to {re_top:.0e}); the pressure drop "
                      "there is an extrapolation.")
     for note in notes:
-        warnings.warn(note, ValidityWarning, stacklevel=3)
+        warnings.warn(note, ValidityWarning, stacklevel=4)
     startup = 4.0 * ty * length / d
     return PipeFlow(
         q, v, 4.0 * tw * length / d, regime, re, np.asarray(re_c, dtype=float), float(he),
@@ -981,6 +987,7 @@ def pipe_pressure_drop(flow_rate_m3_per_s, diameter_m, length_m, density_kg_per_
 TABLE_RATES_1_PER_S = np.logspace(-4, 6, 101)
 
 
+@guarded
 def formulation_curve(formulation) -> tuple[FlowCurve, float]:
     """The `FlowCurve` of a formulation (from `predictor.predict`) and its density.
 
@@ -988,8 +995,11 @@ def formulation_curve(formulation) -> tuple[FlowCurve, float]:
     `TABLE_RATES_1_PER_S` (10 points per decade), then `table_curve` with the apparent
     yield stress of the prediction.
     """
-    from .formulation import mixture, predict
+    from .formulation import Formulation, mixture, predict
 
+    if not isinstance(formulation, Formulation):
+        raise InputRangeError("formulation", type(formulation).__name__,
+                              "a predictor.Formulation (e.g. from read_scenario)")
     frame = predict(formulation, TABLE_RATES_1_PER_S)
     stress = frame["shear_stress_Pa"].to_numpy(dtype=float)
     if not np.all(np.isfinite(stress)):
@@ -1224,7 +1234,7 @@ def _stirred(curve: FlowCurve, speed, d, tank, rho, impeller) -> StirredTank:
     ty = curve.yield_stress_Pa
     dc = float(elson_cavern_diameter(d, speed, rho, ty, po_turb)) if ty > 0 else np.inf
     for note in notes:
-        warnings.warn(note, ValidityWarning, stacklevel=3)
+        warnings.warn(note, ValidityWarning, stacklevel=4)
     return StirredTank(impeller, float(rate), eta, float(re), regime, float(po), float(power),
                        float(ty), dc, bool(dc < tank), tuple(notes))
 
