@@ -2,7 +2,8 @@
 
 The report formats what `predictor` computes; it computes nothing itself. Sections: inputs
 echoed with units, summary, flow curve, loading sweep with the packing range, process
-windows, process checks (pipe, mixer, film at reference conditions), uncertainty, storage, the relations used with their sources, and the cautions.
+windows, process checks (pipe, mixer, film at reference conditions), uncertainty, storage,
+the relations used with their sources, and the cautions.
 
 Charts are Altair charts rendered offline by vl-convert and embedded as inline SVG, so the
 HTML opens without a network. The PDF is one long vector page: the same text, tables and
