@@ -814,8 +814,9 @@ def _check_pipe(flow_rate_m3_per_s, diameter_m, length_m, density_kg_per_m3, rou
     _single(diameter_m=diameter_m, length_m=length_m, density_kg_per_m3=density_kg_per_m3,
             roughness_m=roughness_m)
     q = positive(flow_rate_m3_per_s, "flow_rate_m3_per_s")
-    d = float(positive(diameter_m, "diameter_m"))
-    length = float(positive(length_m, "length_m"))
+    # screening bounds of our own: hoses to large pipes, a line up to 1000 km
+    d = float(in_range(diameter_m, "diameter_m", 0.0, 10.0, low_open=True))
+    length = float(in_range(length_m, "length_m", 0.0, 1e6, low_open=True))
     rho = float(positive(density_kg_per_m3, "density_kg_per_m3"))
     eps = float(in_range(roughness_m, "roughness_m", 0.0, 0.5 * d))
     return q, d, length, rho, eps
@@ -922,9 +923,9 @@ def pipe_pressure_drop(flow_rate_m3_per_s, diameter_m, length_m, density_kg_per_
     flow_rate_m3_per_s : float or array_like
         Volumetric flow rate(s), > 0 (an array gives a system curve). [m**3/s]
     diameter_m : float
-        Inner diameter, > 0. [m]
+        Inner diameter, 0 to 10 m (0 excluded). [m]
     length_m : float
-        Pipe length, > 0. [m]
+        Pipe length, 0 to 1e6 m (0 excluded). [m]
     density_kg_per_m3 : float
         Density of the liquid, > 0. [kg/m**3]
     law : str, optional
