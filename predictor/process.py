@@ -589,6 +589,7 @@ class FlowCurve:
     yield_stress_Pa: float
     law: str                # registry law name, or "table"
     params: dict
+    moment: object = None   # callable (tau, power) -> int_{tau_y}^{tau} t^power rate dt, exact
 
     @property
     def is_newtonian(self) -> bool:
@@ -620,7 +621,9 @@ def table_curve(shear_rate_1_per_s, shear_stress_Pa, yield_stress_Pa=0.0) -> Flo
 
     Below the first point the rate falls linearly in stress to 0 at the yield stress (or to
     0 at zero stress without one); above the last point the last log-log slope continues.
-    Stresses are made non-decreasing (a discontinuous-thickening jump becomes a step).
+    Stresses are made non-decreasing (a discontinuous-thickening jump becomes a step). The
+    moments int t^p gammadot dt of the Rabinowitsch-Mooney and sag integrals are exact for
+    this piecewise power law (`FlowCurve.moment`).
     """
     rates = as_array(shear_rate_1_per_s, "shear_rate_1_per_s")
     stresses = as_array(shear_stress_Pa, "shear_stress_Pa")
@@ -636,8 +639,8 @@ def table_curve(shear_rate_1_per_s, shear_stress_Pa, yield_stress_Pa=0.0) -> Flo
     log_r, log_s = np.log(rates), np.log(stresses)
     top_slope = max((log_s[-1] - log_s[-2]) / (log_r[-1] - log_r[-2]), 1e-3)
     # one far point continues the last log-log slope, so np.interp also extrapolates above
-    log_r = np.append(log_r, log_r[-1] + 700.0)
-    log_s = np.append(log_s, log_s[-1] + 700.0 * top_slope)
+    log_r = np.append(log_r, log_r[-1] + 50.0)           # 5e21 times the last rate
+    log_s = np.append(log_s, log_s[-1] + 50.0 * min(top_slope, 10.0))
 
     def rate(tau):
         tau = np.asarray(tau, dtype=float)
@@ -653,7 +656,35 @@ def table_curve(shear_rate_1_per_s, shear_stress_Pa, yield_stress_Pa=0.0) -> Flo
         low = ty + (stresses[0] - ty) * gamma / rates[0]
         return np.where(gamma < rates[0], low, mid)
 
-    return FlowCurve(rate, stress, ty, "table", {})
+    # Exact moments: between knots the rate is a power law r_i (t/s_i)^b_i, below the first
+    # knot linear from the yield stress, so int t^p rate dt has closed forms per segment.
+    knot_s, knot_r = np.exp(log_s), np.exp(log_r)
+    width = np.diff(log_s)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        b = np.where(width > 0, np.diff(log_r) / np.where(width > 0, width, 1.0), 0.0)
+    cumulative = {}
+
+    def low_part(tau, p):
+        t = np.clip(tau, ty, stresses[0])
+        return rates[0] / span * ((t ** (p + 2) - ty ** (p + 2)) / (p + 2)
+                                  - ty * (t ** (p + 1) - ty ** (p + 1)) / (p + 1))
+
+    def segment(k, tau, p):
+        e = p + b[k] + 1.0
+        with np.errstate(over="ignore"):
+            grow = np.exp(e * (np.log(np.maximum(tau, 1e-300)) - log_s[k]))
+        return np.where(width[k] > 0, knot_r[k] * knot_s[k] ** (p + 1) * (grow - 1.0) / e, 0.0)
+
+    def moment(tau, p):
+        tau = np.asarray(tau, dtype=float)
+        if p not in cumulative:
+            steps = segment(np.arange(width.size), knot_s[1:], p)
+            cumulative[p] = np.concatenate(([low_part(stresses[0], p)], steps)).cumsum()
+        k = np.clip(np.searchsorted(knot_s, tau, side="right") - 1, 0, width.size - 1)
+        above = cumulative[p][k] + segment(k, np.maximum(tau, knot_s[0]), p)
+        return np.where(tau < stresses[0], low_part(tau, p), above)
+
+    return FlowCurve(rate, stress, ty, "table", {}, moment)
 
 
 @functools.cache
@@ -664,11 +695,14 @@ def _nodes(count: int = 32):
 
 
 def _stress_integral(curve: FlowCurve, tau_w, power: int):
-    """int_{tau_y}^{tau_w} tau^power gammadot(tau) d tau by Gauss-Legendre quadrature.
+    """int_{tau_y}^{tau_w} tau^power gammadot(tau) d tau: exact for a tabulated curve
+    (`FlowCurve.moment`), else by Gauss-Legendre quadrature.
 
     Substituting tau = tau_y + (tau_w - tau_y) s^2 smooths the (tau - tau_y)^(1/n) start of
     yield-stress and power-law curves, so 32 nodes reach about 1e-10 relative error.
     """
+    if curve.moment is not None:
+        return curve.moment(tau_w, power)
     s, w = _nodes()
     tau_w = np.asarray(tau_w, dtype=float)[..., None]
     span = np.maximum(tau_w - curve.yield_stress_Pa, 0.0)
