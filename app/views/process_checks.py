@@ -16,6 +16,12 @@ ss = st.session_state
 SYSTEM_POINTS = 60
 
 
+def _metrics(items: list[tuple]) -> None:
+    """Metrics three to a row, so their labels fit beside the input column."""
+    for start in range(0, len(items), 3):
+        widgets.metric_row(items[start:start + 3])
+
+
 def _caution() -> None:
     st.warning(process.CAUTION, icon=":material/health_and_safety:")
 
@@ -48,7 +54,7 @@ def pipe_panel(scenario: str) -> None:
         return
     one, system = at["value"], curve["value"]
     with right:
-        widgets.metric_row([
+        _metrics([
             ("Pressure drop [bar]", widgets.fmt(one.pressure_drop_Pa / 1e5),
              "Frictional pressure drop over the length at the flow rate."),
             ("Regime", str(one.regime), "Laminar, transitional or turbulent, from the "
@@ -71,10 +77,12 @@ def pipe_panel(scenario: str) -> None:
             restart=one.startup_pressure_Pa / 1e5, big=ss["presentation"])
         data = pd.DataFrame(system.rows())
         widgets.chart_block(build(), data, "system-curve", "pc_system")
+        restart = (" The dashed line is the restart pressure." if one.startup_pressure_Pa > 0
+                   else "")
         st.caption(f"Correlation at the flow rate: {one.correlation}; plug radius "
                    f"{widgets.fmt(1e3 * one.plug_radius_m)} mm; density "
-                   f"{widgets.fmt(one.density_kg_per_m3)} kg/m³. The dashed line is the "
-                   "restart pressure; lay the curve over your pump's curve.")
+                   f"{widgets.fmt(one.density_kg_per_m3)} kg/m³.{restart} Lay the curve over "
+                   "your pump's curve.")
         widgets.show_warnings(at["warnings"] + curve["warnings"])
 
 
@@ -97,7 +105,7 @@ def mixer_panel(scenario: str) -> None:
     mix = result["value"]
     ks, kp, po = process.IMPELLERS[mix.impeller]
     with right:
-        widgets.metric_row([
+        _metrics([
             ("Shear rate the mixer sees [1/s]", widgets.fmt(mix.effective_shear_rate_1_per_s),
              f"Metzner-Otto k_s N with k_s = {ks:g} for this impeller (typical value)."),
             (f"Viscosity there [{state.label(ss['unit_viscosity'])}]",
@@ -130,7 +138,7 @@ def coating_panel(scenario: str) -> None:
     level = ("never" if not math.isfinite(film.levelling_time_s)
              else widgets.fmt(film.levelling_time_s))
     with right:
-        widgets.metric_row([
+        _metrics([
             ("Stays on a vertical wall", "yes" if film.stands else "no",
              "Yes when the yield stress exceeds the film's weight stress rho g h."),
             ("Wall stress rho g h [Pa]", widgets.fmt(film.wall_shear_stress_Pa), None),
