@@ -744,10 +744,10 @@ def _laminar_wall_stress(curve: FlowCurve, nominal_rate):
         hi = np.where(g > 0, x, hi)
         with np.errstate(divide="ignore", invalid="ignore"):
             newton = x - g / slope
+        # a converged point keeps its Newton step (the bracket may already sit on it)
+        done = np.isfinite(newton) & (np.abs(newton - x) < 1e-13 * np.maximum(1.0, np.abs(x)))
         inside = np.isfinite(newton) & (newton > lo) & (newton < hi)
-        x_new = np.where(inside, newton, 0.5 * (lo + hi))
-        done = np.abs(x_new - x) < 1e-14 * np.maximum(1.0, np.abs(x))
-        x = x_new
+        x = np.where(done | inside, newton, 0.5 * (lo + hi))
         if np.all(done | (hi - lo < 1e-15 * np.maximum(1.0, np.abs(x)))):
             break
     return np.exp(x)

@@ -329,3 +329,18 @@ def test_demo_paint_mixer_and_coating():
     assert tank.viscosity_Pa_s == pytest.approx(frame["viscosity_Pa_s"].iloc[0], rel=0.01)
     film = process.coating_of(form, 100e-6)
     assert film.sag_velocity_m_per_s > 0 and film.levelling_time_s > 0
+
+
+def test_formulation_with_a_yield_stress_liquid_restarts_and_flows_like_its_law():
+    # The tabulated path (predict -> table_curve) against the exact law path, Bingham liquid.
+    form = pr.Formulation(liquid=pr.Liquid(preset="", law="bingham",
+                                           params={"yield_stress_Pa": 20.0,
+                                                   "plastic_viscosity_Pa_s": 0.2},
+                                           density_kg_per_m3=1100.0))
+    q = np.array([1e-5, 1e-4])
+    of = process.pipe_flow_of(form, q, 0.025, 10.0)
+    law = process.pipe_pressure_drop(q, 0.025, 10.0, 1100.0, law="bingham", yield_stress_Pa=20.0,
+                                     plastic_viscosity_Pa_s=0.2)
+    assert of.startup_pressure_Pa == pytest.approx(4 * 20.0 * 10.0 / 0.025, rel=1e-6)
+    np.testing.assert_allclose(of.pressure_drop_Pa, law.pressure_drop_Pa, rtol=0.01)
+    np.testing.assert_allclose(of.plug_radius_m, law.plug_radius_m, rtol=0.01)
