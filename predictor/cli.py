@@ -502,7 +502,9 @@ def _pipe_flows(args) -> np.ndarray:
 
 
 def pipe_table(flow, flow_unit: str = "L/min", pressure_unit: str = "bar") -> pd.DataFrame:
-    """The rows of a `process.PipeFlow` in the units people read (table, CSV, report)."""
+    """The rows of a `process.PipeFlow` in the units people read (table, CSV, JSON, report).
+
+    The friction factor is Fanning's (a quarter of Darcy's)."""
     rows = pd.DataFrame(flow.rows())
     return pd.DataFrame({
         f"flow [{flow_unit}]": from_si(rows["flow_rate_m3_per_s"].to_numpy(), flow_unit,
@@ -514,6 +516,7 @@ def pipe_table(flow, flow_unit: str = "L/min", pressure_unit: str = "bar") -> pd
         "Reynolds [-]": rows["reynolds"],
         "critical Reynolds [-]": rows["critical_reynolds"],
         "n' [-]": rows["flow_index"],
+        "friction factor [-]": rows["friction_factor"],
         "wall stress [Pa]": rows["wall_shear_stress_Pa"],
         "wall shear rate [1/s]": rows["wall_shear_rate_1_per_s"],
         "plug radius [mm]": 1e3 * rows["plug_radius_m"],
@@ -543,10 +546,6 @@ def cmd_pipe(args) -> int:
             "startup_pressure_Pa": flow.startup_pressure_Pa,
             "hedstrom_number": flow.hedstrom_number, "warnings": list(flow.warnings),
             "caution": CAUTION}
-    if args.json:
-        doc = {**meta, "rows": flow.rows()}
-        print(json.dumps(_finite(doc), indent=1, default=_json_default))
-        return EXIT_OK
     pu = args.pressure_unit
     restart = from_si(flow.startup_pressure_Pa, pu, "pressure")
     head = (f"scenario: {form.name or '(unnamed)'}\n"

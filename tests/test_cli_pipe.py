@@ -44,8 +44,11 @@ def test_json_validates_and_equals_core(capsys):
     flow = process.pipe_flow_of(read_scenario(SCENARIO), np.array([10e-3, 0.2]) / 60,
                                 0.025, 10.0)
     assert [r["regime"] for r in doc["rows"]] == list(flow.regime)
-    np.testing.assert_allclose([r["pressure_drop_Pa"] for r in doc["rows"]],
-                               flow.pressure_drop_Pa, rtol=1e-12)
+    np.testing.assert_allclose([r["pressure drop [bar]"] for r in doc["rows"]],
+                               flow.pressure_drop_Pa / 1e5, rtol=1e-12)
+    np.testing.assert_allclose([r["flow [L/min]"] for r in doc["rows"]], [10.0, 200.0],
+                               rtol=1e-12)
+    assert doc["startup_pressure_Pa"] == flow.startup_pressure_Pa
     assert doc["caution"] == process.CAUTION
 
 

@@ -115,8 +115,10 @@ def mixer_panel(scenario: str) -> None:
              f"K_p/Re in laminar mixing (K_p = {kp:g}); {po:g} when turbulent."),
             ("Power [W]", widgets.fmt(mix.power_W), None),
             ("Cavern", "yes" if mix.cavern else "no",
-             "Yes: with a yield stress the moving zone (Elson's cavern, "
-             f"{widgets.fmt(1e3 * mix.cavern_diameter_m)} mm) does not reach the tank wall."),
+             "Yes: with a yield stress the moving zone (Elson's cavern"
+             + (f", {widgets.fmt(1e3 * mix.cavern_diameter_m)} mm"
+                if math.isfinite(mix.cavern_diameter_m) else "")
+             + ") does not reach the tank wall."),
         ])
         _caution()
         widgets.show_warnings(result["warnings"])
