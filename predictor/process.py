@@ -58,7 +58,6 @@ IMPELLERS: dict[str, tuple[float, float, float]] = {
     "helical ribbon": (30.0, 350.0, 0.35),
 }
 
-RE = Param("reynolds", "-", (0.0, np.inf), "Reynolds number")
 
 
 # --- Laminar pipe flow: closed forms ---------------------------------------------------------
@@ -1080,7 +1079,7 @@ def pipe_flow_of(formulation, flow_rate_m3_per_s, diameter_m, length_m,
 
 
 @model("process", Param("impeller_constant", "-", (1.0, 100.0),
-                        "Metzner-Otto constant k_s of the impeller"),
+                        "Metzner-Otto constant ks of the impeller"),
        validity="laminar mixing (impeller Reynolds number below about 10)",
        source="Metzner & Otto, AIChE J. 1957")
 @guarded
@@ -1126,7 +1125,7 @@ def metzner_otto(rotational_speed_1_per_s, impeller_constant=11.5):
 
 
 @model("process", Param("power_constant", "-", (1.0, 2000.0),
-                        "laminar power constant K_p = Po Re of the impeller"),
+                        "laminar power constant Kp = Po Re of the impeller"),
        validity="laminar mixing (impeller Reynolds number below about 10)",
        source="Rushton, Costich & Everett 1950; Metzner & Otto 1957")
 @guarded
