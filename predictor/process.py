@@ -880,29 +880,30 @@ def _pipe(curve: FlowCurve, q, d, length, rho, eps) -> PipeFlow:
         re = 8.0 * rho * v**2 / tw_lam                 # Metzner-Reed at the laminar stress
         re_c = ryan_johnson_critical_reynolds(np.clip(n_lam, 0.05, 2.0))
         laminar = re < re_c
-        newtonian_like = curve.is_newtonian or np.all(np.abs(n_lam - 1.0) < 0.05)
+        # per flow rate, so a point gives the same answer alone or inside a system curve
+        newtonian_like = curve.is_newtonian | (np.abs(n_lam - 1.0) < 0.05)
         # n' and Re_MR at the turbulent wall stress: fixed point from the laminar values
         f_turb, n_t, re_t = np.zeros_like(v), n_lam.copy(), re.copy()
         turb = ~laminar
         if turb.any():
             vt, nom_t, nt, ret = v[turb], nominal[turb], n_lam[turb], re[turb]
+            nl = newtonian_like[turb]
             for _ in range(6):
-                if newtonian_like:
-                    ft = colebrook(ret, eps / d)
-                else:
-                    ft = dodge_metzner(ret, np.clip(nt, 0.05, 2.0))
+                ft = np.where(nl, colebrook(ret, eps / d),
+                              dodge_metzner(ret, np.clip(nt, 0.05, 2.0)))
                 tw_t = 0.5 * ft * rho * vt**2
                 g_t, gw_t = _nominal_rate(curve, tw_t)
                 nt = g_t / np.maximum(4.0 * gw_t - 3.0 * g_t, 1e-300)
                 ret = 8.0 * rho * vt**2 / tw_t * (g_t / nom_t) ** nt
             f_turb[turb], n_t[turb], re_t[turb] = ft, nt, ret
-        re = np.where(re < re_c, re, re_t)    # the laminar mask below keeps Re_MR(laminar)
-        corr = "colebrook" if newtonian_like else "dodge-metzner"
-        re_top = COLEBROOK_MAX_RE if newtonian_like else DODGE_METZNER_MAX_RE
-        if not newtonian_like and eps > 0 and np.any(~laminar):
+        re = np.where(laminar, re, re_t)
+        corr = np.where(newtonian_like, "colebrook", "dodge-metzner")
+        re_top = np.where(newtonian_like, COLEBROOK_MAX_RE, DODGE_METZNER_MAX_RE)
+        power_law = ~laminar & ~newtonian_like
+        if eps > 0 and np.any(power_law):
             notes.append("Dodge-Metzner is for smooth pipes; the roughness is not used.")
-        used = ~laminar & ((n_t < 0.36) | (n_t > 1.0))
-        if not newtonian_like and np.any(used):
+        used = power_law & ((n_t < 0.36) | (n_t > 1.0))
+        if np.any(used):
             notes.append(f"Dodge-Metzner is used at n' = {float(np.min(n_t[used])):.3g} to "
                          f"{float(np.max(n_t[used])):.3g}, outside its data (0.36 to 1).")
     f_lam = 2.0 * tw_lam / (rho * v**2)
@@ -910,13 +911,15 @@ def _pipe(curve: FlowCurve, q, d, length, rho, eps) -> PipeFlow:
     f = np.where(laminar, f_lam, np.maximum(f_turb, f_lam) if not curve.is_bingham else f_turb)
     tw = 0.5 * f * rho * v**2
     regime = np.where(laminar, "laminar", np.where(transitional, "transitional", "turbulent"))
-    if curve.is_newtonian and eps / d > 0.05 and np.any(~laminar):
+    corr = np.broadcast_to(corr, v.shape)
+    if eps / d > 0.05 and np.any(~laminar & (corr == "colebrook")):
         notes.append(f"Relative roughness {eps / d:.3g} is beyond Colebrook's range (0.05).")
     beyond = ~laminar & (re > re_top)
     if np.any(beyond):
-        worst = float(np.max(q[beyond]))
-        notes.append(f"flow_rate_m3_per_s = {worst:.4g} gives Re = {float(np.max(re)):.3g}, "
-                     f"beyond the data of {corr} (Re up to {re_top:.0e}); the pressure drop "
+        k = int(np.argmax(np.where(beyond, re, -np.inf)))
+        notes.append(f"flow_rate_m3_per_s = {float(q[k]):.4g} gives Re = {float(re[k]):.3g}, "
+                     f"beyond the data of {corr[k]} (Re up to "
+                     f"{float(np.broadcast_to(re_top, v.shape)[k]):.0e}); the pressure drop "
                      "there is an extrapolation.")
     for note in notes:
         warnings.warn(note, ValidityWarning, stacklevel=4)

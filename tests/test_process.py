@@ -344,3 +344,17 @@ def test_formulation_with_a_yield_stress_liquid_restarts_and_flows_like_its_law(
     assert of.startup_pressure_Pa == pytest.approx(4 * 20.0 * 10.0 / 0.025, rel=1e-6)
     np.testing.assert_allclose(of.pressure_drop_Pa, law.pressure_drop_Pa, rtol=0.01)
     np.testing.assert_allclose(of.plug_radius_m, law.plug_radius_m, rtol=0.01)
+
+
+@pytest.mark.filterwarnings("ignore::predictor.ValidityWarning")
+def test_each_flow_rate_gives_the_same_answer_alone_and_in_a_system_curve():
+    # laminar to turbulent, near-Newtonian and shear-thinning points in one curve
+    form = pr.read_scenario(process.__file__.rsplit("/", 2)[0]
+                            + "/data_demo/ceramic_slip.loadline.json")
+    q = np.geomspace(1e-6, 3e-2, 9)
+    curve = process.pipe_flow_of(form, q, 0.025, 10.0)
+    assert {"laminar", "turbulent"} <= set(curve.regime)
+    for i, qi in enumerate(q):
+        one = process.pipe_flow_of(form, float(qi), 0.025, 10.0)
+        assert one.pressure_drop_Pa == pytest.approx(curve.pressure_drop_Pa[i], rel=1e-9)
+        assert one.correlation == curve.correlation[i]
