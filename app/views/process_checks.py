@@ -8,8 +8,8 @@ import pandas as pd
 import streamlit as st
 
 import predictor
-from app import charts, compute, state, widgets
-from predictor import process
+from app import compute, state, widgets
+from predictor import charts, process
 
 state.init()
 ss = st.session_state
