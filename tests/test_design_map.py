@@ -1,0 +1,149 @@
+"""Design-space maps (`design.loading_map`, `design.loading_ternary`) and candidate tables."""
+
+import dataclasses
+
+import numpy as np
+import pandas as pd
+import pytest
+
+from predictor import design, formulation as fm, scenario
+from predictor.errors import InputRangeError
+from predictor.formulation import Formulation, Ingredient, Liquid
+
+DEMO = "data_demo/mineral_coating.loadline.json"
+PHI_MAX = 0.6
+ETA_L = 0.05
+
+
+def newtonian_pair() -> Formulation:
+    """Two coarse powders (no Brownian term above 3 um) with a given phi_max, in an oil."""
+    liquid = Liquid(name="oil", preset="", law="newtonian", params={"viscosity_Pa_s": ETA_L},
+                    density_kg_per_m3=950.0)
+    powder = dict(density_kg_per_m3=2500.0, basis="volume", diameter_m=20e-6, phi_max=PHI_MAX,
+                  intrinsic_viscosity=2.5)
+    return Formulation(liquid=liquid, ingredients=(Ingredient("a", loading=0.2, **powder),
+                                                   Ingredient("b", loading=0.1, **powder)))
+
+
+def test_map_equals_hand_computed_krieger_dougherty():
+    # Krieger & Dougherty, Trans. Soc. Rheol. 3, 137 (1959), Eq. (the relation):
+    # eta = eta_L (1 - phi/phi_max)^(-[eta] phi_max), [eta] = 2.5 (Einstein); phi = x + y on
+    # a volume basis (no adsorbed layer); at or beyond phi_max no flow (inf, "jammed").
+    grid = design.loading_map(newtonian_pair(), "a", "b", (0.0, 0.4), (0.0, 0.4), 10.0, n=9,
+                              basis="volume")
+    assert len(grid) == 81
+    phi = grid["x_loading"].to_numpy() + grid["y_loading"].to_numpy()
+    below = phi < PHI_MAX - 1e-9
+    expected = ETA_L * (1.0 - phi[below] / PHI_MAX) ** (-2.5 * PHI_MAX)
+    np.testing.assert_allclose(grid["viscosity_Pa_s"].to_numpy()[below], expected, rtol=1e-9)
+    np.testing.assert_allclose(grid["phi_over_phi_max"], phi / PHI_MAX, rtol=1e-9)
+    above = phi > PHI_MAX + 1e-9
+    assert np.isinf(grid["viscosity_Pa_s"].to_numpy()[above]).all()
+    assert (grid["regime"].to_numpy()[above] == "jammed").all()
+    assert grid.attrs["current"] == pytest.approx({"x_loading": 0.2, "y_loading": 0.1})
+
+
+def test_cells_equal_predict_of_the_same_recipe():
+    form = scenario.read_scenario(DEMO)
+    grid = design.loading_map(form, 0, "white pigment", (0.2, 0.45), (0.05, 0.25), 100.0, n=3)
+    for row in grid.itertuples():
+        ings = (dataclasses.replace(form.ingredients[0], loading=row.x_loading, basis="mass"),
+                dataclasses.replace(form.ingredients[1], loading=row.y_loading, basis="mass"))
+        one = fm.predict(dataclasses.replace(form, ingredients=ings), 100.0)
+        assert row.viscosity_Pa_s == pytest.approx(float(one["viscosity_Pa_s"][0]), rel=1e-12)
+        assert row.regime == one["regime"][0]
+        assert row.phi_over_phi_max == pytest.approx(one.attrs["headroom"], rel=1e-12)
+
+
+def test_feasible_region_is_the_intersection_of_the_window_passes():
+    windows = [("pumping", 100.0, 0.4), design.ProcessWindow("sag resistance", 0.1, None, 0.1),
+               {"name": "levelling", "shear_rate_1_per_s": 1.0, "max_viscosity_Pa_s": 2.0}]
+    grid = design.loading_map(newtonian_pair(), 0, 1, (0.0, 0.5), (0.0, 0.5), 10.0, n=11,
+                              basis="volume", windows=windows)
+    passes = grid[["pumping_pass", "sag_resistance_pass", "levelling_pass"]].to_numpy()
+    np.testing.assert_array_equal(grid["feasible"].to_numpy(), passes.all(axis=1))
+    # Each pass is its own limit on the viscosity at its own shear rate (Newtonian: same
+    # viscosity at every rate), jammed cells fail.
+    eta = grid["viscosity_Pa_s"].to_numpy()
+    np.testing.assert_array_equal(grid["pumping_pass"], np.isfinite(eta) & (eta <= 0.4))
+    np.testing.assert_array_equal(grid["sag_resistance_pass"], np.isfinite(eta) & (eta >= 0.1))
+    assert 0 < grid["feasible"].sum() < len(grid)      # the region is a real band
+    np.testing.assert_allclose(grid["levelling_viscosity_Pa_s"], eta, rtol=1e-12)
+
+
+def test_cells_without_room_for_the_liquid_are_marked():
+    grid = design.loading_map(newtonian_pair(), 0, 1, (0.0, 0.8), (0.0, 0.8), 10.0, n=5,
+                              basis="volume", windows=[("pumping", 100.0, 1.0)])
+    full = grid["x_loading"] + grid["y_loading"] >= 1.0
+    assert full.any()
+    assert (grid.loc[full, "regime"] == design.NO_LIQUID).all()
+    assert grid.loc[full, "viscosity_Pa_s"].isna().all()
+    assert not grid.loc[full, "feasible"].any()
+
+
+@pytest.mark.parametrize(("kwargs", "field"), [
+    ({"x_ingredient": 5}, "x_ingredient"),
+    ({"y_ingredient": "no such powder"}, "y_ingredient"),
+    ({"y_ingredient": 0}, "y_ingredient"),
+    ({"x_range": (0.3, 0.1)}, "x_range"),
+    ({"y_range": (0.0, 1.5)}, "y_range"),
+    ({"x_range": "wide"}, "x_range"),
+    ({"n": 1}, "n"),
+    ({"n": 10_000}, "n"),
+    ({"basis": "number"}, "basis"),
+    ({"shear_rate_1_per_s": -1.0}, "shear_rate_1_per_s"),
+    ({"windows": [("a", 1.0, 1.0), ("A", 2.0, 1.0)]}, "windows"),
+    ({"windows": [("a", float("nan"), 1.0)]}, "window 'a' shear rate"),
+])
+def test_bad_map_input_names_the_field(kwargs, field):
+    args = {"x_ingredient": 0, "y_ingredient": 1, "x_range": (0.0, 0.3),
+            "y_range": (0.0, 0.3), "shear_rate_1_per_s": 10.0, "n": 3} | kwargs
+    with pytest.raises(InputRangeError) as err:
+        design.loading_map(newtonian_pair(), **args)
+    assert err.value.field == field
+
+
+def test_ternary_with_the_liquid_matches_the_plane_map():
+    form = newtonian_pair()
+    tri = design.loading_ternary(form, ("a", "b", "liquid"), 10.0, n=6, basis="volume")
+    assert len(tri) == 21
+    np.testing.assert_allclose(tri[["share_1", "share_2", "share_3"]].sum(axis=1), 1.0)
+    assert tri.attrs["total"] == pytest.approx(1.0)           # two powders + liquid, now
+    phi = tri["loading_1"] + tri["loading_2"]
+    below = phi < PHI_MAX - 1e-9
+    expected = ETA_L * (1.0 - phi[below] / PHI_MAX) ** (-2.5 * PHI_MAX)   # Krieger-Dougherty
+    np.testing.assert_allclose(tri.loc[below, "viscosity_Pa_s"], expected, rtol=1e-9)
+    assert (tri.loc[(phi > PHI_MAX + 1e-9) & (phi < 1 - 1e-9), "regime"] == "jammed").all()
+    assert (tri.loc[tri["share_3"] == 0.0, "regime"] == design.NO_LIQUID).all()   # no liquid
+
+
+def test_ternary_of_three_ingredients_keeps_their_total():
+    form = newtonian_pair()
+    third = dataclasses.replace(form.ingredients[0], name="c", loading=0.05)
+    form = dataclasses.replace(form, ingredients=(*form.ingredients, third))
+    tri = design.loading_ternary(form, (0, 1, 2), 10.0, n=5, basis="volume",
+                                 windows=[("pumping", 100.0, 0.5)])
+    assert tri.attrs["total"] == pytest.approx(0.35)
+    np.testing.assert_allclose(tri[["loading_1", "loading_2", "loading_3"]].sum(axis=1), 0.35)
+    # Every point has the same total solids and all three share one phi_max: one viscosity.
+    eta = tri["viscosity_Pa_s"].to_numpy()
+    np.testing.assert_allclose(eta, ETA_L * (1 - 0.35 / PHI_MAX) ** (-2.5 * PHI_MAX), rtol=1e-9)
+    np.testing.assert_array_equal(tri["feasible"], tri["pumping_pass"])
+    assert tri.attrs["current"] == pytest.approx({"share_1": 0.2 / 0.35, "share_2": 0.1 / 0.35,
+                                                  "share_3": 0.05 / 0.35})
+
+
+@pytest.mark.parametrize(("parts", "total"), [
+    ((0, 1), None), ((0, "liquid", "liquid"), None), ((0, 0, 1), None), ((0, 1, "liquid"), 0.0),
+    ((0, 1, "liquid"), 1.5),
+])
+def test_bad_ternary_input_is_refused(parts, total):
+    with pytest.raises(InputRangeError):
+        design.loading_ternary(newtonian_pair(), parts, 10.0, total=total, n=3)
+
+
+def test_map_frame_is_plain_data():
+    grid = design.loading_map(newtonian_pair(), 0, 1, (0.0, 0.3), (0.0, 0.3), 10.0, n=2)
+    assert isinstance(grid, pd.DataFrame)
+    assert list(grid.columns) == ["x_loading", "y_loading", "viscosity_Pa_s",
+                                  "phi_over_phi_max", "regime"]
