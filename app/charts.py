@@ -627,3 +627,27 @@ def blend_curve(frame: pd.DataFrame, *, names: list[str], big: bool = False):
     ).properties(height=_height(big, 320), width="container",
                  title=f"Rest of the solids: {names[2]}")
     return fig.spec(chart, big)
+
+
+def design_map(grid: pd.DataFrame, viscosity_unit: str, big: bool = False,
+               joined: bool = False) -> dict:
+    """The design map of `design.loading_map` (builder shared with the report and CLI);
+    clicking a cell selects it (selection "cell"). `joined`: the fixed-width export."""
+    from predictor import charts_export
+
+    spec = charts_export.loading_map_chart(
+        grid, viscosity_unit, width=820 if joined else "container", height=_height(big, 440),
+        selectable=not joined, title=None)
+    spec["config"] = {**spec.get("config", {}), **config(big)}
+    return spec
+
+
+def design_triangle(tri: pd.DataFrame, viscosity_unit: str, big: bool = False,
+                    joined: bool = False) -> dict:
+    """The triangle of `design.loading_ternary` (builder shared with the report and CLI)."""
+    from predictor import charts_export
+
+    spec = charts_export.loading_ternary_chart(
+        tri, viscosity_unit, width=820 if joined else "container", height=_height(big, 440))
+    spec["config"] = {**spec.get("config", {}), **config(big)}
+    return spec

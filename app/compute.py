@@ -440,3 +440,35 @@ def solid_distributions(scenario: str) -> list[dict]:
              "phi": float(mix.phi[k]),
              "dist_json": json.dumps(ing.distribution().to_dict(), sort_keys=True)}
             for k, ing in enumerate(form.ingredients) if ing.kind == fm.SOLID]
+
+
+@st.cache_data(**CACHE)
+def loading_map(scenario: str, x: int, y: int, x_range: tuple[float, float],
+                y_range: tuple[float, float], shear_rate_1_per_s: float, n: int, basis: str,
+                windows: tuple[tuple, ...]) -> dict:
+    """`design.loading_map` of the scenario (windows as (name, rate, max, min) tuples)."""
+    from predictor import design
+
+    def run():
+        grid = design.loading_map(formulation(scenario), x, y, x_range, y_range,
+                                  shear_rate_1_per_s, n=n, basis=basis,
+                                  windows=list(windows) or None)
+        for message in grid.attrs.get("warnings", ()):
+            warnings.warn(message, predictor.ValidityWarning, stacklevel=2)
+        return grid
+    return dict(zip(("value", "warnings"), _captured(run), strict=True))
+
+
+@st.cache_data(**CACHE)
+def loading_ternary(scenario: str, parts: tuple, shear_rate_1_per_s: float, n: int,
+                    basis: str, windows: tuple[tuple, ...]) -> dict:
+    """`design.loading_ternary` of the scenario (parts by index, or "liquid")."""
+    from predictor import design
+
+    def run():
+        tri = design.loading_ternary(formulation(scenario), parts, shear_rate_1_per_s, n=n,
+                                     basis=basis, windows=list(windows) or None)
+        for message in tri.attrs.get("warnings", ()):
+            warnings.warn(message, predictor.ValidityWarning, stacklevel=2)
+        return tri
+    return dict(zip(("value", "warnings"), _captured(run), strict=True))

@@ -6,7 +6,8 @@ import numpy as np
 import pandas as pd
 import pytest
 
-from predictor import design, formulation as fm, scenario
+from predictor import design, scenario
+from predictor import formulation as fm
 from predictor.errors import InputRangeError
 from predictor.formulation import Formulation, Ingredient, Liquid
 

@@ -1,0 +1,186 @@
+"""Design map: viscosity over two (or three) ingredients' loadings, with process windows."""
+
+import functools
+import math
+
+import numpy as np
+import pandas as pd
+import streamlit as st
+
+import predictor
+from app import charts, compute, state, widgets
+from predictor.units import from_si, to_si
+
+state.init()
+ss = st.session_state
+LIQUID = -1               # the liquid as a corner of the triangle
+MODES = {"plane": "Two ingredients (map)", "triangle": "Three parts (triangle)"}
+WINDOW_COLUMNS = ["name", "shear rate [1/s]", "max viscosity", "min viscosity"]
+
+
+def _names() -> list[str]:
+    return [str(ss.get(state.ingredient_key(i, "name"), f"ingredient {i + 1}"))
+            for i in range(int(ss["n_ing"]))]
+
+
+def _part_name(k: int) -> str:
+    return "the liquid" if k == LIQUID else _names()[k]
+
+
+def _load_cell() -> None:
+    """A click on a map cell puts that recipe's two loadings into the scenario."""
+    event = ss.get("map_chart") or {}
+    picked = (event.get("selection") or {}).get("cell") or []
+    if not picked or not {"x_loading", "y_loading"} <= set(picked[0]):
+        return
+    basis = ss["map_basis"]
+    state.set_loadings({ss["map_x"]: picked[0]["x_loading"], ss["map_y"]: picked[0]["y_loading"]},
+                       basis)
+    names = _names()
+    ss["map_message"] = (f"Loaded {names[ss['map_x']]} {100 * picked[0]['x_loading']:.4g} and "
+                         f"{names[ss['map_y']]} {100 * picked[0]['y_loading']:.4g} "
+                         f"{state.BASIS_LABELS[basis]} into the scenario.")
+    widgets.request_full_run()
+
+
+def _windows(unit: str) -> tuple[tuple, ...]:
+    """The window table as (name, rate, max, min) tuples in SI; rows without a name skipped."""
+    shown = pd.DataFrame([{
+        "name": w["name"], "shear rate [1/s]": w["shear_rate_1_per_s"],
+        "max viscosity": None if w["max_viscosity_Pa_s"] is None else
+        from_si(w["max_viscosity_Pa_s"], unit, "viscosity"),
+        "min viscosity": None if w["min_viscosity_Pa_s"] is None else
+        from_si(w["min_viscosity_Pa_s"], unit, "viscosity")} for w in ss["map_windows"]],
+        columns=WINDOW_COLUMNS)
+    label = state.label(unit)
+    edited = st.data_editor(shown, num_rows="dynamic", hide_index=True, key="map_windows_editor",
+                            column_config={
+                                "name": st.column_config.TextColumn("Window"),
+                                "shear rate [1/s]": st.column_config.NumberColumn(
+                                    "Shear rate [1/s]", format="%.4g"),
+                                "max viscosity": st.column_config.NumberColumn(
+                                    f"Max [{label}]", format="%.4g"),
+                                "min viscosity": st.column_config.NumberColumn(
+                                    f"Min [{label}]", format="%.4g")})
+    out = []
+    for row in edited.itertuples(index=False):
+        name = "" if row[0] is None or (isinstance(row[0], float) and math.isnan(row[0])) \
+            else str(row[0]).strip()
+        if not name:
+            continue
+
+        def si(value, field):
+            if value is None or (isinstance(value, float) and math.isnan(value)):
+                return None
+            return to_si(float(value), unit, "viscosity", field)
+        rate = float("nan") if row[1] is None else float(row[1])
+        out.append((name, rate, si(row[2], f"window {name!r} max viscosity"),
+                    si(row[3], f"window {name!r} min viscosity")))
+    return tuple(out)
+
+
+def controls(names: list[str]) -> None:
+    st.segmented_control("Map", list(MODES), key="map_mode", format_func=MODES.get)
+    options = list(range(len(names)))
+    if ss["map_mode"] == "triangle":
+        if not all(p in options + [LIQUID] for p in ss["map_parts"]):
+            ss["map_parts"] = (options[:3] + [LIQUID])[:3]
+        st.multiselect("Three parts (corners)", options + [LIQUID], key="map_parts",
+                       max_selections=3,
+                       format_func=_part_name)
+    else:
+        for key, default in (("map_x", 0), ("map_y", 1)):
+            if ss[key] not in options:
+                ss[key] = default
+        st.selectbox("Across (x)", options, key="map_x", format_func=names.__getitem__)
+        st.selectbox("Up (y)", options, key="map_y", format_func=names.__getitem__)
+        unit = state.BASIS_LABELS[ss["map_basis"]]
+        a, b = st.columns(2)
+        a.number_input(f"x from [{unit}]", 0.0, 100.0, key="map_x_low", step=5.0)
+        b.number_input(f"x to [{unit}]", 0.0, 100.0, key="map_x_high", step=5.0)
+        a.number_input(f"y from [{unit}]", 0.0, 100.0, key="map_y_low", step=5.0)
+        b.number_input(f"y to [{unit}]", 0.0, 100.0, key="map_y_high", step=5.0)
+    st.radio("Loadings as", list(state.BASIS_LABELS), key="map_basis", horizontal=True,
+             format_func=state.BASIS_LABELS.get)
+    st.number_input("Shear rate of the map [1/s]", key="map_rate", format="%.4g", step=10.0)
+    st.slider("Grid points per side", 3, 41, key="map_n",
+              help="Each point is one full prediction; 41 is the finest grid.")
+
+
+@widgets.page_body
+def body() -> None:
+    scenario = widgets.current_scenario()
+    if scenario is None:
+        return
+    names = _names()
+    if len(names) < 2:
+        st.info("A design map needs at least two ingredients; add one on the sidebar.",
+                icon=":material/add_circle:")
+        return
+    if ss.get("map_message"):
+        st.success(ss["map_message"], icon=":material/check_circle:")
+        ss["map_message"] = ""
+    metrics = st.container()
+    left, right = st.columns([1, 3], gap="large")
+    unit = ss["unit_viscosity"]
+    with left:
+        controls(names)
+        st.caption(f"Process windows (viscosity limits in {state.label(unit)}); each is "
+                   "checked at its own shear rate.")
+        try:
+            windows = _windows(unit)
+        except predictor.LoadlineError as err:
+            widgets.show_error(err)
+            return
+    try:
+        if ss["map_mode"] == "triangle":
+            parts = tuple("liquid" if k == LIQUID else int(k) for k in ss["map_parts"])
+            result = compute.loading_ternary(scenario, parts, float(ss["map_rate"]),
+                                             int(ss["map_n"]), ss["map_basis"], windows)
+        else:
+            result = compute.loading_map(
+                scenario, int(ss["map_x"]), int(ss["map_y"]),
+                (ss["map_x_low"] / 100.0, ss["map_x_high"] / 100.0),
+                (ss["map_y_low"] / 100.0, ss["map_y_high"] / 100.0), float(ss["map_rate"]),
+                int(ss["map_n"]), ss["map_basis"], windows)
+    except (predictor.LoadlineError, TypeError) as err:
+        with right:
+            widgets.show_error(err)
+        return
+    grid = result["value"]
+    eta = grid["viscosity_Pa_s"].to_numpy(dtype=float)
+    with metrics:
+        items = [("Cells", str(len(grid)), "Each cell is one full prediction of the recipe."),
+                 ("Flowing", str(int(np.isfinite(eta).sum())),
+                  "Below the packing limit, with room for the liquid."),
+                 ("Jammed", str(int((grid["regime"] == "jammed").sum())),
+                  "At or beyond the packing limit: no flow.")]
+        if "feasible" in grid:
+            items.append(("Inside every window", str(int(grid["feasible"].sum())),
+                          "Cells whose viscosity passes every window at its shear rate."))
+        widgets.metric_row(items)
+    with right:
+        if ss["map_mode"] == "triangle":
+            build = functools.partial(charts.design_triangle, grid, unit, ss["presentation"])
+            widgets.chart_block(build(), _table(grid, unit), "design-triangle", "map",
+                                export=functools.partial(build, joined=True))
+        else:
+            build = functools.partial(charts.design_map, grid, unit, ss["presentation"])
+            widgets.chart_block(build(), _table(grid, unit), "design-map", "map",
+                                export=functools.partial(build, joined=True),
+                                on_select=_load_cell)
+            st.caption("Hover a cell for its values; click a cell to load that recipe into "
+                       "the scenario. Grey: no flow (packing limit) or no liquid left.")
+        widgets.show_warnings(result["warnings"])
+
+
+def _table(grid: pd.DataFrame, unit: str) -> pd.DataFrame:
+    """The map as a table for the CSV download: SI columns plus the viscosity as shown."""
+    return grid.assign(**{f"viscosity_{state.label(unit)}": from_si(
+        grid["viscosity_Pa_s"].to_numpy(dtype=float), unit, "viscosity")})
+
+
+widgets.page_header("Design map", "How far the recipe can move before it fails pumping or "
+                    "sags: viscosity over two ingredients' loadings, with the process limits")
+body()
+widgets.footer()

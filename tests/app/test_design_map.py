@@ -1,0 +1,57 @@
+"""AppTest of the Design map page: the cells shown are design.loading_map's, passed through."""
+
+from __future__ import annotations
+
+import pytest
+
+from app import state
+from predictor import design
+from predictor import formulation as fm
+from predictor import scenario as sc
+from tests.app.conftest import chart_specs, demo, messages, metric, page, seed_values
+
+WINDOWS = [("pumping", 100.0, 2.0, None), ("sag resistance", 0.1, None, 10.0)]
+
+
+def _reference(n: int = 5):
+    return design.loading_map(demo(), 0, 1, (0.2, 0.6), (0.0, 0.4), 100.0, n=n,
+                              windows=WINDOWS)
+
+
+def test_opens_with_the_map_of_the_first_two_ingredients():
+    at = page("design_map", map_n=5).run()
+    assert not at.exception
+    grid = _reference()
+    assert metric(at, "Cells") == "25"
+    assert metric(at, "Jammed") == str(int((grid["regime"] == "jammed").sum()))
+    assert metric(at, "Inside every window") == str(int(grid["feasible"].sum()))
+    (spec,) = chart_specs(at)
+    assert "platy mineral filler [wt%]" in str(spec)
+    assert spec["layer"][0]["encoding"]["color"]["scale"]["type"] == "log"
+    assert [p["name"] for p in spec["params"]] == ["cell"]      # click selects a cell
+
+
+def test_a_clicked_cell_loads_that_recipe():
+    # The click callback hands the cell's loadings to state.set_loadings; the scenario the
+    # app then builds predicts exactly the cell's viscosity.
+    grid = _reference()
+    cell = grid.iloc[7]
+    values = seed_values()
+    state.set_loadings({0: cell["x_loading"], 1: cell["y_loading"]}, "mass", values)
+    form = sc.loads(sc.dumps(sc.scenario_from_dict(state.document(values))))
+    eta = float(fm.predict(form, 100.0)["viscosity_Pa_s"][0])
+    assert eta == pytest.approx(cell["viscosity_Pa_s"], rel=1e-9)
+
+
+def test_triangle_and_bad_ranges_show_messages_not_tracebacks():
+    at = page("design_map", map_n=4, map_mode="triangle", map_parts=[0, 1, -1]).run()
+    assert not at.exception
+    assert metric(at, "Cells") == "10"
+    tri = design.loading_ternary(demo(), (0, 1, "liquid"), 100.0, n=4, windows=WINDOWS)
+    assert metric(at, "Jammed") == str(int((tri["regime"] == "jammed").sum()))
+    at = page("design_map", map_n=3, map_x_low=50.0, map_x_high=10.0).run()
+    assert not at.exception
+    assert "x_range" in messages(at)
+    at = page("design_map", map_n=3, map_rate=-5.0).run()
+    assert not at.exception
+    assert "shear_rate_1_per_s" in messages(at)
