@@ -177,17 +177,19 @@ def design_map_chart(cells: pd.DataFrame, *, x_title: str, y_title: str, colour_
     lines += [(label, data[column].astype(bool)) for label, column in windows]
     if "feasible" in data:
         lines.append((FEASIBLE_LINE, data["feasible"].astype(bool)))
-    segments = [boundary_segments(data["x"], data["y"], mask).assign(line=label)
-                for label, mask in lines]
-    segments = pd.concat(segments, ignore_index=True) if segments else pd.DataFrame()
-    if len(segments):
-        labels = [label for label, _ in lines]
-        colours = ["#000000"] + MAP_LINE_COLOURS[:len(windows)] + [GREEN]
+    colours = ["#000000"] + MAP_LINE_COLOURS[:len(windows)] + [GREEN]
+    drawn = [(label, colour, boundary_segments(data["x"], data["y"], mask).assign(line=label))
+             for (label, mask), colour in zip(lines, colours, strict=False)]
+    drawn = [(label, colour, segs) for label, colour, segs in drawn if len(segs)]
+    if drawn:                             # only limits that cross the map are in the legend
+        labels = [label for label, _, _ in drawn]
+        colours = [colour for _, colour, _ in drawn]
+        segments = pd.concat([segs for _, _, segs in drawn], ignore_index=True)
         layers.append(alt.Chart(segments).mark_rule(strokeWidth=2.5).encode(
             x=alt.X("x:Q", scale=x_scale, title=x_title), x2="x2:Q",
             y=alt.Y("y:Q", scale=y_scale, title=y_title), y2="y2:Q",
             color=alt.Color("line:N", title="Limits", scale=alt.Scale(
-                domain=labels, range=colours[:len(labels)]),
+                domain=labels, range=colours),
                 legend=alt.Legend(orient="bottom", direction="horizontal"))))
     if current is not None:
         dot = pd.DataFrame([{"x": float(current["x"]), "y": float(current["y"]),

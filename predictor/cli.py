@@ -477,6 +477,148 @@ def cmd_report(args) -> int:
     return EXIT_OK
 
 
+# -- map ----------------------------------------------------------------------------------
+
+_RANGE = re.compile(r"^\s*(\S+)\s+(\S+)\s*(.*?)\s*$")
+
+
+def _loading_range(text: str, option: str) -> tuple[tuple[float, float], str]:
+    """'20 45 wt%' -> ((0.2, 0.45), "mass")."""
+    from .units import parse_loading
+
+    match = _RANGE.match(str(text))
+    if not match:
+        raise UnitError(f"{option} = {text!r} could not be read; write two loadings and a "
+                        "unit, e.g. '20 45 wt%' or '5 25 vol%'.")
+    low, high, unit = match.groups()
+    (a, basis), (b, _) = (parse_loading(f"{v} {unit}".strip(), option, "mass")
+                          for v in (low, high))
+    return (a, b), basis
+
+
+def _ingredient_arg(form, text: str, option: str):
+    """An ingredient given on the command line: its number (1 = first) or its name."""
+    from .errors import InputRangeError
+
+    names = [i.name for i in form.ingredients]
+    if text in names:
+        return names.index(text)
+    if str(text).strip().isdigit() and 1 <= int(text) <= len(names):
+        return int(text) - 1
+    if str(text).strip().lower() == "liquid" and option == "--z":
+        return "liquid"
+    raise InputRangeError(option, text, f"an ingredient number from 1 to {len(names)} or one "
+                                        "of the names " + ", ".join(repr(n) for n in names))
+
+
+def _window_arg(text: str):
+    """'pumping, 100 1/s, max 2 Pa*s[, min 0.1 Pa*s]' -> (name, rate, max, min) in SI."""
+    parts = [p.strip() for p in str(text).split(",")]
+    if len(parts) < 3 or not parts[0]:
+        raise UnitError(f"--window = {text!r} could not be read; write e.g. "
+                        "'pumping, 100 1/s, max 2 Pa*s' or 'sag, 0.1 1/s, min 10 Pa*s'.")
+    rate = _quantity(parts[1], "shear_rate", f"--window {parts[0]!r} shear rate")
+    limits = {"max": None, "min": None}
+    for part in parts[2:]:
+        word, _, value = part.partition(" ")
+        if word.lower() not in limits or not value.strip():
+            raise UnitError(f"--window {parts[0]!r}: {part!r} should read 'max VISCOSITY' or "
+                            "'min VISCOSITY', e.g. 'max 2 Pa*s'.")
+        limits[word.lower()] = _quantity(value, "viscosity", f"--window {parts[0]!r} {word}")
+    return parts[0], rate, limits["max"], limits["min"]
+
+
+def cmd_map(args) -> int:
+    from . import design
+
+    unit = _check_viscosity_unit(args.viscosity_unit)
+    if not 2 <= args.n <= design.MAX_GRID:
+        raise UnitError(f"-n = {args.n} is not allowed; expected 2 to {design.MAX_GRID}.")
+    form = _scenario(args.scenario)
+    rate = _quantity(args.shear_rate, "shear_rate", "--shear-rate")
+    windows = [_window_arg(t) for t in args.window or []] or None
+    x = _ingredient_arg(form, args.x, "--x")
+    y = _ingredient_arg(form, args.y, "--y")
+    if args.z is not None:
+        z = _ingredient_arg(form, args.z, "--z")
+        total, basis = (None, args.basis) if args.total is None else (
+            _total(args.total))
+        grid = design.loading_ternary(form, (x, y, z), rate, total=total, n=args.n,
+                                      basis=basis, windows=windows)
+        names = grid.attrs["parts"]
+        lead = {f"share {k} [-]": grid[f"share_{k}"] for k in (1, 2, 3)}
+        meta_names = {"parts": names, "total": grid.attrs["total"]}
+    else:
+        (x_range, x_basis), (y_range, y_basis) = (
+            _loading_range(args.x_range, "--x-range"), _loading_range(args.y_range, "--y-range"))
+        if x_basis != y_basis:
+            raise UnitError(f"--x-range is in {x_basis} and --y-range in {y_basis} fractions; "
+                            "give both on the same basis (wt% or vol%).")
+        grid = design.loading_map(form, x, y, x_range, y_range, rate, n=args.n, basis=x_basis,
+                                  windows=windows)
+        basis = x_basis
+        sign = "wt%" if basis == "mass" else "vol%"
+        lead = {f"{grid.attrs['x_ingredient']} [{sign}]": 100 * grid["x_loading"],
+                f"{grid.attrs['y_ingredient']} [{sign}]": 100 * grid["y_loading"]}
+        meta_names = {"x_ingredient": grid.attrs["x_ingredient"],
+                      "y_ingredient": grid.attrs["y_ingredient"]}
+    for message in grid.attrs.get("warnings", ()):
+        warnings.warn(message, stacklevel=1)
+    if args.png:
+        _write_map_png(grid, unit, args.png)
+    meta = {"scenario": form.name, **meta_names, "basis": grid.attrs["basis"],
+            "shear_rate_1_per_s": rate, "windows": grid.attrs["windows"],
+            "current": grid.attrs["current"], "cautions": CAUTIONS}
+    if args.json:
+        doc = {**meta, "rows": grid.astype(object).where(grid.notna(), None).to_dict("records")}
+        print(json.dumps(_finite(doc), indent=1, default=_json_default))
+        return EXIT_OK
+    frame = pd.DataFrame({**lead,
+                          f"viscosity [{unit}]": from_si(grid["viscosity_Pa_s"].to_numpy(float),
+                                                         unit, "viscosity"),
+                          "phi/phi_max [-]": grid["phi_over_phi_max"],
+                          "regime": grid["regime"]})
+    for w in grid.attrs["windows"]:
+        frame[f"{w['name']} viscosity [{unit}]"] = from_si(
+            grid[f"{w['column']}_viscosity_Pa_s"].to_numpy(float), unit, "viscosity")
+        frame[f"{w['name']} pass"] = grid[f"{w['column']}_pass"].map({True: "pass",
+                                                                       False: "fail"})
+    if "feasible" in grid:
+        frame["feasible"] = grid["feasible"].map({True: "yes", False: "no"})
+    if args.output:
+        from .batch import write_table
+
+        write_table(frame, args.output)
+    if args.csv:
+        _emit(args, frame)
+        return EXIT_OK
+    head = (f"scenario: {form.name or '(unnamed)'}\n{len(grid)} recipes at "
+            f"{rate:g} 1/s, loadings on a {basis} basis"
+            + (f"; {int(grid['feasible'].sum())} inside every window"
+               if "feasible" in grid else ""))
+    print(head)
+    print(table_text(frame, max_rows=args.show))
+    print(f"\nCaution: {CAUTIONS}")
+    return EXIT_OK
+
+
+def _total(text: str) -> tuple[float, str]:
+    from .units import parse_loading
+
+    return parse_loading(text, "--total", "mass")
+
+
+def _write_map_png(grid, unit: str, path: str) -> None:
+    import vl_convert
+
+    from . import charts_export
+
+    build = (charts_export.loading_ternary_chart if "share_1" in grid
+             else charts_export.loading_map_chart)
+    spec = build(grid, unit, width=640, height=440)
+    pathlib.Path(path).write_bytes(vl_convert.vegalite_to_png(json.dumps(spec), scale=2))
+
+
 def cmd_demo(args) -> int:
     from .formulation import loading_sweep, max_loading, mixture, predict, solid_mass_fraction
     from .report import inputs_table, liquid_table
@@ -575,6 +717,17 @@ examples:
   loadline report slip.loadline.json -o slip.html --pdf slip.pdf --viscosity-unit mPa*s
 
 The HTML file is self-contained (charts embedded as SVG); it opens without a network.""",
+    "map": """\
+examples:
+  loadline map data_demo/mineral_coating.loadline.json --x 1 --y 2 \\
+      --x-range "20 45 wt%" --y-range "5 25 wt%" --shear-rate "100 1/s"
+  loadline map paint.loadline.json --x filler --y pigment --shear-rate "100 1/s" \\
+      --window "pumping, 100 1/s, max 2 Pa*s" --window "sag, 0.1 1/s, min 10 Pa*s" --png map.png
+  loadline map paint.loadline.json --x 1 --y 2 --z liquid --shear-rate "100 1/s" -n 21 --json
+
+Ingredients by number (1 = first, as in the candidate table) or by name; every other
+ingredient keeps its scenario loading. Cells at or beyond the packing limit have no flow
+(viscosity inf, regime "jammed"). --json gives every cell in SI units (fractions, Pa*s).""",
     "demo": """\
 examples:
   loadline demo
@@ -598,7 +751,7 @@ def build_parser() -> argparse.ArgumentParser:
         prog="loadline",
         description="Loadline: viscosity of suspensions and emulsions from what is known "
                     "before the lab trial.",
-        epilog="commands: predict, sweep, max-load, screen, pack, fit, report, models, demo. "
+        epilog="commands: predict, sweep, max-load, map, screen, pack, fit, report, models, demo. "
                "Run 'loadline COMMAND --help' for examples.\n\n" + _EPILOG,
         formatter_class=argparse.RawDescriptionHelpFormatter)
     from importlib import metadata
@@ -677,6 +830,33 @@ def build_parser() -> argparse.ArgumentParser:
                    help="HTML file to write (default loadline_report.html)")
     p.add_argument("--pdf", help="also write this PDF file")
     _add_output(p, machine=False)
+
+    p = add("map", "design map: viscosity over two ingredients' loadings (or a triangle of "
+                   "three)", cmd_map)
+    p.add_argument("scenario", help="scenario file (*.loadline.json)")
+    p.add_argument("--x", required=True, metavar="INGREDIENT",
+                   help="ingredient across the map: its number (1 = first) or name")
+    p.add_argument("--y", required=True, metavar="INGREDIENT", help="ingredient up the map")
+    p.add_argument("--z", metavar="PART",
+                   help="a third part (ingredient or 'liquid'): draw a triangle instead")
+    p.add_argument("--x-range", default="0 50 wt%", metavar="RANGE",
+                   help='loadings across, e.g. "20 45 wt%%" (default "0 50 wt%%")')
+    p.add_argument("--y-range", default="0 50 wt%", metavar="RANGE",
+                   help='loadings up, e.g. "5 25 wt%%" (default "0 50 wt%%")')
+    p.add_argument("--total", metavar="LOADING",
+                   help='triangle: total of the three parts, e.g. "50 wt%%" (default: now)')
+    p.add_argument("--basis", choices=["mass", "volume"], default="mass",
+                   help="triangle: basis of the loadings (default mass)")
+    p.add_argument("--shear-rate", required=True, metavar="RATE",
+                   help='shear rate of the map, e.g. "100 1/s"')
+    p.add_argument("--window", action="append", metavar="WINDOW",
+                   help="a process window, e.g. 'pumping, 100 1/s, max 2 Pa*s' or "
+                        "'sag, 0.1 1/s, min 10 Pa*s' (repeatable)")
+    p.add_argument("-n", type=int, default=41, help="grid points per side (default 41)")
+    p.add_argument("--show", type=int, default=20, help="rows shown in the table (default 20)")
+    p.add_argument("--png", metavar="FILE", help="also write the chart as PNG")
+    p.add_argument("-o", "--output", help="also write every cell here (.csv, .xlsx or .json)")
+    _add_output(p)
 
     p = add("models", "the published relations Loadline knows, with their sources", cmd_models)
     p.add_argument("--kind", choices=["suspension", "emulsion", "packing", "liquid", "shear"],

@@ -1,0 +1,97 @@
+"""`loadline map`: table, CSV, JSON (checked against its JSON Schema), PNG and bad input."""
+
+from __future__ import annotations
+
+import io
+import json
+import pathlib
+
+import jsonschema
+import numpy as np
+import pandas as pd
+import pytest
+
+import predictor
+from predictor import design
+from predictor.cli import CAUTIONS, main
+from predictor.scenario import read_scenario
+
+DEMO = pathlib.Path(__file__).resolve().parents[1] / "data_demo"
+SCENARIO = str(DEMO / "mineral_coating.loadline.json")
+SCHEMA = json.loads((pathlib.Path(predictor.__file__).parent / "schemas" / "map.schema.json")
+                    .read_text(encoding="utf-8"))
+BASE = ["map", SCENARIO, "--x", "1", "--y", "2", "--x-range", "20 45 wt%",
+        "--y-range", "5 25 wt%", "--shear-rate", "100 1/s", "-n", "3"]
+WINDOWS = ["--window", "pumping, 100 1/s, max 0.15 Pa*s", "--window",
+           "sag, 0.1 1/s, min 1500 mPa*s"]
+
+
+def run(capsys, *argv):
+    code = main(list(argv))
+    out, err = capsys.readouterr()
+    return code, out, err
+
+
+def test_json_follows_the_schema_and_equals_the_core(capsys):
+    code, out, _ = run(capsys, *BASE, *WINDOWS, "--json")
+    assert code == 0
+    doc = json.loads(out)
+    jsonschema.validate(doc, SCHEMA, cls=jsonschema.Draft202012Validator)
+    core = design.loading_map(read_scenario(SCENARIO), 0, 1, (0.2, 0.45), (0.05, 0.25), 100.0,
+                              n=3, windows=[("pumping", 100.0, 0.15), ("sag", 0.1, None, 1.5)])
+    assert [r["viscosity_Pa_s"] for r in doc["rows"]] == pytest.approx(
+        core["viscosity_Pa_s"].tolist(), rel=1e-12)
+    assert [r["feasible"] for r in doc["rows"]] == core["feasible"].tolist()
+    assert 0 < sum(r["feasible"] for r in doc["rows"]) < 9     # the windows cut the map
+    assert doc["x_ingredient"] == "platy mineral filler" and doc["cautions"] == CAUTIONS
+
+
+def test_triangle_json_follows_the_schema(capsys):
+    code, out, _ = run(capsys, "map", SCENARIO, "--x", "1", "--y", "white pigment", "--z",
+                       "liquid", "--shear-rate", "100 1/s", "-n", "6", "--json")
+    assert code == 0
+    doc = json.loads(out)
+    jsonschema.validate(doc, SCHEMA, cls=jsonschema.Draft202012Validator)
+    assert len(doc["rows"]) == 21 and doc["parts"][2] == "liquid"
+    for regime in ("jammed", design.NO_LIQUID):       # no flow: null in JSON (no inf)
+        rows = [r for r in doc["rows"] if r["regime"] == regime]
+        assert rows and all(r["viscosity_Pa_s"] is None for r in rows)
+
+
+def test_schema_refuses_a_broken_document(capsys):
+    _, out, _ = run(capsys, *BASE, "--json")
+    doc = json.loads(out)
+    doc["rows"][0]["x_loading"] = 1.5                 # a loading beyond the whole
+    with pytest.raises(jsonschema.ValidationError):
+        jsonschema.validate(doc, SCHEMA, cls=jsonschema.Draft202012Validator)
+
+
+def test_table_csv_and_png(capsys, tmp_path):
+    code, out, _ = run(capsys, *BASE, *WINDOWS, "--viscosity-unit", "mPa*s")
+    assert code == 0 and "platy mineral filler [wt%]" in out and "Caution:" in out
+    code, out, _ = run(capsys, *BASE, "--csv", "--png", str(tmp_path / "map.png"))
+    assert code == 0
+    frame = pd.read_csv(io.StringIO(out))
+    assert len(frame) == 9
+    np.testing.assert_allclose(sorted(set(frame["white pigment [wt%]"])), [5, 15, 25])
+    assert (tmp_path / "map.png").read_bytes()[:8] == b"\x89PNG\r\n\x1a\n"
+
+
+@pytest.mark.parametrize(("argv", "needle"), [
+    (["--x", "9"], "--x"),
+    (["--x-range", "20 wt%"], "--x-range"),
+    (["--x-range", "20 45 wt%", "--y-range", "5 25 vol%"], "same basis"),
+    (["--window", "pumping, 100 1/s, most 2 Pa*s"], "max VISCOSITY"),
+    (["--window", "pumping, 100 Pa, max 2 Pa*s"], "pumping"),
+    (["--x-range", "45 20 wt%"], "x_range"),
+    (["-n", "1"], "-n"),
+])
+def test_bad_input_is_named_with_exit_1(capsys, argv, needle):
+    code, out, err = run(capsys, *BASE, *argv)
+    assert code == 1 and not out
+    assert needle in err
+
+
+def test_help_names_the_command(capsys):
+    code, out, _ = run(capsys, "map", "--help")
+    assert code == 0 and "--x-range" in out and "Caution" in out
