@@ -77,10 +77,14 @@ def loading_sweep_chart(sweep: pd.DataFrame, viscosity_unit: str, phi_current: f
 
 
 def to_svg(chart) -> str:
-    """SVG text of a chart, rendered offline by vl-convert (fonts bundled, no network)."""
+    """SVG text of a chart (Altair, or a Vega-Lite dict), rendered offline by vl-convert
+    (fonts bundled, no network)."""
+    import json
+
     import vl_convert
 
-    return vl_convert.vegalite_to_svg(chart.to_json())
+    return vl_convert.vegalite_to_svg(json.dumps(chart) if isinstance(chart, dict)
+                                      else chart.to_json())
 
 
 # --- design-space maps (also drawn by the app: app/charts.py calls these builders) ---------

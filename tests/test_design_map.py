@@ -148,3 +148,17 @@ def test_map_frame_is_plain_data():
     assert isinstance(grid, pd.DataFrame)
     assert list(grid.columns) == ["x_loading", "y_loading", "viscosity_Pa_s",
                                   "phi_over_phi_max", "regime"]
+
+
+def test_report_has_the_map_of_the_first_two_solids(monkeypatch):
+    from predictor import report
+
+    monkeypatch.setattr(report, "MAP_POINTS", 4)
+    form = scenario.read_scenario(DEMO)
+    sections = {s.title: s for s in report.build_report(form).sections}
+    sec = sections["Design map of the first two solids"]
+    (spec,) = sec.charts
+    assert "platy mineral filler [wt%]" in str(spec) and "white pigment [wt%]" in str(spec)
+    one_solid = dataclasses.replace(form, ingredients=form.ingredients[:1])
+    titles = [s.title for s in report.build_report(one_solid).sections]
+    assert "Design map of the first two solids" not in titles
