@@ -472,3 +472,21 @@ def loading_ternary(scenario: str, parts: tuple, shear_rate_1_per_s: float, n: i
             warnings.warn(message, predictor.ValidityWarning, stacklevel=2)
         return tri
     return dict(zip(("value", "warnings"), _captured(run), strict=True))
+
+
+@st.cache_data(**CACHE)
+def candidates(scenario: str, factors: tuple[tuple[str, float, float], ...], design: str,
+               n: int, levels: int, seed: int, windows: tuple[tuple, ...]) -> dict:
+    """A candidate table (CSV bytes per file name, the table first) for the batch screen."""
+    from predictor import candidates as cand
+
+    def run():
+        table, files = cand.candidate_table(formulation(scenario),
+                                            {name: (lo, hi) for name, lo, hi in factors},
+                                            design=design, n=n, levels=levels, seed=seed,
+                                            windows=list(windows) or None)
+        out = {"candidates_from_design_map.csv": table.to_csv(index=False,
+                                                              float_format="%.12g").encode()}
+        out.update({name: frame.to_csv(index=False).encode() for name, frame in files.items()})
+        return out
+    return dict(zip(("value", "warnings"), _captured(run), strict=True))

@@ -144,6 +144,7 @@ DEFAULTS: dict[str, object] = {
                      "max_viscosity_Pa_s": 2.0, "min_viscosity_Pa_s": None},
                     {"name": "sag resistance", "shear_rate_1_per_s": 0.1,
                      "max_viscosity_Pa_s": None, "min_viscosity_Pa_s": 10.0}],
+    "cand_design": "full-factorial", "cand_n": 16, "cand_levels": 3, "cand_seed": 0,
     # messages from callbacks, shown on the next run
     "scenario_message": "", "scenario_loaded": False,
 }

@@ -162,3 +162,93 @@ def test_report_has_the_map_of_the_first_two_solids(monkeypatch):
     one_solid = dataclasses.replace(form, ingredients=form.ingredients[:1])
     titles = [s.title for s in report.build_report(one_solid).sections]
     assert "Design map of the first two solids" not in titles
+
+
+# --- candidate tables for the batch screen ---------------------------------------------------
+
+def two_powders_in_water() -> Formulation:
+    from predictor.sizes import SizeDistribution
+
+    return Formulation(name="invented slurry", ingredients=(
+        Ingredient("coarse filler", 2700.0, 0.3, diameter_m=8e-6),
+        Ingredient("fine pigment", 4100.0, 0.1, size=SizeDistribution.lognormal(0.6e-6, 1.5),
+                   layer_thickness_m=2e-9)))
+
+
+def _recipe(form: Formulation, row) -> Formulation:
+    """The scenario with a candidate row's factors applied (by hand, for the check)."""
+    coarse = dataclasses.replace(form.ingredients[0], loading=row["ingredient 1 loading"],
+                                 diameter_m=row["ingredient 1 d50"])
+    fine = form.ingredients[1]
+    scale = row["ingredient 2 d50"] / fine.size.d50_m
+    fine = dataclasses.replace(fine, size=type(fine.size)(fine.size.diameters_m * scale,
+                                                          fine.size.fractions))
+    liquid = dataclasses.replace(form.liquid, temperature_K=row["temperature"])
+    return dataclasses.replace(form, liquid=liquid, ingredients=(coarse, fine))
+
+
+@pytest.mark.parametrize(("design_name", "rows"), [("full-factorial", 16),
+                                                   ("latin-hypercube", 7), ("sobol", 8),
+                                                   ("halton", 5)])
+def test_candidate_rows_screen_to_predict_of_the_same_recipe(tmp_path, design_name, rows):
+    from predictor import batch, candidates
+
+    form = two_powders_in_water()
+    factors = {"ingredient 1 loading": (0.2, 0.4), "ingredient 1 d50": (4e-6, 20e-6),
+               "ingredient 2 d50": (0.3e-6, 1.2e-6), "temperature": (288.15, 318.15)}
+    table, files = candidates.candidate_table(form, factors, design=design_name, n=rows,
+                                              levels=2, windows=[("pumping", 100.0, 0.01)])
+    assert len(table) == rows
+    for name, frame in files.items():
+        frame.to_csv(tmp_path / name, index=False)
+    result = batch.screen(table, base_dir=tmp_path)
+    assert (result["status"] == "ok").all(), result["error"].tolist()
+    points = candidates.design_points(list(factors.values()), design_name, rows, 2)
+    for i in range(rows):
+        row = dict(zip(factors, points[i], strict=True))
+        for name, (low, high) in factors.items():       # every point inside its box
+            assert low <= row[name] <= high
+        eta = float(fm.predict(_recipe(form, row), 100.0)["viscosity_Pa_s"][0])
+        assert float(result["window 1 viscosity [Pa*s]"][i]) == pytest.approx(eta, rel=1e-6)
+
+
+def test_space_filling_designs_spread_over_the_box():
+    from predictor import candidates
+
+    # Latin hypercube (McKay, Beckman & Conover, Technometrics 21, 239, 1979): each of the
+    # n equal strata of every factor holds exactly one point.
+    pts = candidates.design_points([[0.0, 1.0], [10.0, 20.0]], "latin-hypercube", n=10, seed=3)
+    for column, (low, high) in zip(pts.T, [(0.0, 1.0), (10.0, 20.0)], strict=True):
+        strata = np.floor((column - low) / (high - low) * 10).astype(int)
+        assert sorted(strata) == list(range(10))
+    again = candidates.design_points([[0.0, 1.0], [10.0, 20.0]], "latin-hypercube", n=10,
+                                     seed=3)
+    np.testing.assert_array_equal(pts, again)                 # seeded: reproducible
+
+
+@pytest.mark.parametrize(("kwargs", "field"), [
+    ({"factors": {"ingredient 3 loading": (0.1, 0.2)}}, "factor"),
+    ({"factors": {"colour": (0.1, 0.2)}}, "factor"),
+    ({"factors": {"ingredient 1 loading": (0.3, 0.1)}}, "ingredient 1 loading"),
+    ({"factors": {"ingredient 1 d50": (1.0, 2.0)}}, "ingredient 1 d50"),
+    ({"factors": {"liquid viscosity": (0.001, 0.01)}}, "factor"),
+    ({"factors": {"temperature": (290.0, 300.0)}, "design": "sobol", "n": 10}, "n"),
+    ({"factors": {"temperature": (290.0, 300.0)}, "design": "random"}, "design"),
+    ({"factors": {"temperature": (290.0, 300.0)}, "levels": 1}, "levels"),
+    ({"factors": {}}, "factors"),
+])
+def test_bad_candidate_requests_name_the_field(kwargs, field):
+    from predictor import candidates
+
+    with pytest.raises(InputRangeError) as err:
+        candidates.candidate_table(two_powders_in_water(), **kwargs)
+    assert err.value.field == field
+
+
+def test_scenarios_the_batch_cannot_read_are_refused():
+    from predictor import candidates
+
+    with pytest.raises(InputRangeError) as err:
+        candidates.candidate_table(scenario.read_scenario(DEMO),
+                                   {"ingredient 1 loading": (0.2, 0.4)})
+    assert err.value.field == "liquid law"          # the demo paint's Carreau-Yasuda liquid

@@ -172,6 +172,82 @@ def body() -> None:
             st.caption("Hover a cell for its values; click a cell to load that recipe into "
                        "the scenario. Grey: no flow (packing limit) or no liquid left.")
         widgets.show_warnings(result["warnings"])
+    candidates_box(scenario, names, windows)
+
+
+# Candidate factors as shown: label -> (factor name for predictor, dimension, unit).
+def _factor_choices(names: list[str]) -> dict[str, tuple[str, str, str]]:
+    basis = {i: ss.get(state.ingredient_key(i, "basis"), "mass") for i in range(len(names))}
+    out = {}
+    for i, name in enumerate(names):
+        out[f"{name}: loading [{state.BASIS_LABELS[basis[i]]}]"] = (
+            f"ingredient {i + 1} loading", "percent", "%")
+        out[f"{name}: D50 [µm]"] = (f"ingredient {i + 1} d50", "length", "um")
+    out["liquid temperature [°C]"] = ("temperature", "temperature", "degC")
+    out["liquid viscosity [mPa·s]"] = ("liquid viscosity", "viscosity", "mPa*s")
+    out["glycerol [wt%]"] = ("glycerol", "percent", "%")
+    return out
+
+
+def _si(value: float, dimension: str, unit: str, field: str) -> float:
+    if dimension == "percent":
+        return float(value) / 100.0
+    return to_si(float(value), unit, dimension, field)
+
+
+def _send(table: dict) -> None:
+    """Put the generated candidate table (and its size tables) into the Batch screen."""
+    ss["batch_files"] = dict(table)
+    ss["batch_table_name"] = next(iter(table))
+    ss["batch_message"] = ""
+    ss["batch_result"] = None
+    ss["map_message"] = (f"The candidate table {next(iter(table))} is ready on the Batch "
+                         "screen page: open it and press Screen the candidates.")
+
+
+def candidates_box(scenario: str, names: list[str], windows: tuple) -> None:
+    """Candidates from the scenario: a design over chosen factors, for the batch screen."""
+    with st.expander("Candidates for the batch screen", icon=":material/table_view:"):
+        choices = _factor_choices(names)
+        first = list(choices)[:2]
+        rows = pd.DataFrame({"factor": first, "low": [ss["map_x_low"], ss["map_y_low"]],
+                             "high": [ss["map_x_high"], ss["map_y_high"]]})
+        edited = st.data_editor(rows, num_rows="dynamic", hide_index=True, key="cand_factors",
+                                column_config={"factor": st.column_config.SelectboxColumn(
+                                    "Factor", options=list(choices), required=True),
+                                    "low": st.column_config.NumberColumn("From"),
+                                    "high": st.column_config.NumberColumn("To")})
+        a, b, c, d = st.columns(4)
+        a.selectbox("Design", ["full-factorial", "latin-hypercube", "sobol", "halton"],
+                    key="cand_design")
+        b.number_input("Rows (space-filling)", 1, 10_000, key="cand_n")
+        c.number_input("Levels (factorial)", 2, 50, key="cand_levels")
+        d.number_input("Seed", 0, 2**31 - 1, key="cand_seed")
+        try:
+            factors = []
+            for row in edited.itertuples(index=False):
+                if row.factor not in choices:
+                    continue
+                name, dimension, unit = choices[row.factor]
+                low, high = (float("nan") if v is None else v for v in (row.low, row.high))
+                factors.append((name, _si(low, dimension, unit, f"{name} from"),
+                                _si(high, dimension, unit, f"{name} to")))
+            made = compute.candidates(scenario, tuple(factors), ss["cand_design"],
+                                      int(ss["cand_n"]), int(ss["cand_levels"]),
+                                      int(ss["cand_seed"]), windows)
+        except predictor.LoadlineError as err:
+            widgets.show_error(err)
+            return
+        table = made["value"]
+        count = table[next(iter(table))].count(b"\n") - 1
+        st.caption(f"{count} candidates, every other field as in the scenario; the map's "
+                   "windows become the table's windows.")
+        row = st.container(horizontal=True, gap="small")
+        row.button("Send to the Batch screen", key="cand_send", on_click=_send, args=(table,),
+                   icon=":material/send:", type="primary")
+        row.download_button("Candidate table (CSV)", data=table[next(iter(table))],
+                            file_name=next(iter(table)), mime="text/csv", key="cand_csv",
+                            on_click="ignore", icon=":material/download:")
 
 
 def _table(grid: pd.DataFrame, unit: str) -> pd.DataFrame:

@@ -55,3 +55,41 @@ def test_triangle_and_bad_ranges_show_messages_not_tracebacks():
     at = page("design_map", map_n=3, map_rate=-5.0).run()
     assert not at.exception
     assert "shear_rate_1_per_s" in messages(at)
+
+
+def _two_powders_values() -> dict:
+    from tests.test_design_map import two_powders_in_water
+
+    values = seed_values()
+    for key in [k for k in values if k.startswith("ing")]:
+        del values[key]
+    values.update(state.values_from_formulation(two_powders_in_water(), values))
+    return values
+
+
+def test_candidates_go_to_the_batch_screen(tmp_path):
+    values = _two_powders_values() | {"map_n": 3, "map_x_low": 20.0, "map_x_high": 40.0,
+                                      "map_y_low": 5.0, "map_y_high": 15.0}
+    at = page("design_map", **values).run()
+    assert not at.exception, at.exception
+    at.button(key="cand_send").click().run()
+    assert not at.exception
+    files = at.session_state["batch_files"]
+    name = at.session_state["batch_table_name"]
+    assert name == "candidates_from_design_map.csv"
+    table = files[name].decode().splitlines()
+    assert len(table) == 1 + 9                         # 3 x 3 levels of the two loadings
+    assert "ingredient 1 loading [wt fraction]" in table[0]
+    assert any(n.startswith("sizes_2_") for n in files)  # the pigment's size table
+    for file_name, data in files.items():                # what the Batch screen page reads
+        (tmp_path / file_name).write_bytes(data)
+    from predictor import batch
+
+    summary, result = batch.screen_file(tmp_path / name, keep=-1)
+    assert summary.rows == 9 and summary.ok == 9, summary.first_errors
+
+
+def test_candidates_refuse_a_liquid_the_batch_cannot_read():
+    at = page("design_map", map_n=3).run()                 # the demo paint: Carreau-Yasuda
+    assert not at.exception
+    assert "liquid law" in messages(at)
