@@ -37,7 +37,7 @@ DATA = pathlib.Path(__file__).parent / "data"
 WAIT_MS = 60_000
 PAGES = {"Loading sweep": "loading-sweep", "Flow curve": "flow-curve",
          "Sizes & packing": "sizes-packing", "Droplets": "droplets",
-         "Calibrate": "calibrate", "Batch screen": "batch-screen"}
+         "Calibrate": "calibrate", "Design map": "design-map", "Batch screen": "batch-screen"}
 
 
 def _need_browser() -> None:
