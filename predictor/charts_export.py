@@ -174,27 +174,34 @@ def design_map_chart(cells: pd.DataFrame, *, x_title: str, y_title: str, colour_
         layers.append(alt.Chart(stopped).mark_rect(color=NO_FLOW, opacity=0.85).encode(
             x=x_enc, x2="x1:Q", y=y_enc, y2="y1:Q", tooltip=tips))
     if "feasible" in data and data["feasible"].any():
-        layers.append(alt.Chart(data[data["feasible"].astype(bool)]).mark_rect(
-            color=GREEN, opacity=0.28).encode(x=x_enc, x2="x1:Q", y=y_enc, y2="y1:Q",
-                                              tooltip=tips))
-    lines = [(PACKING_LINE, data["headroom"].fillna(np.inf) < 1.0)]
-    lines += [(label, data[column].astype(bool)) for label, column in windows]
+        # Stippled, so the colours keep their meaning under the shading.
+        layers.append(alt.Chart(data[data["feasible"].astype(bool)]).mark_point(
+            shape="circle", filled=True, color="#FFFFFF", stroke=GREEN, strokeWidth=1,
+            opacity=0.9, size=40).encode(x=alt.X("x:Q", scale=x_scale, title=x_title),
+                                         y=alt.Y("y:Q", scale=y_scale, title=y_title),
+                                         tooltip=tips))
+    # Drawn in this order: the feasible outline (wide, underneath), the windows (dashed),
+    # the packing limit on top; where limits coincide each stays visible.
+    lines = []
     if "feasible" in data:
-        lines.append((FEASIBLE_LINE, data["feasible"].astype(bool)))
-    colours = ["#000000"] + MAP_LINE_COLOURS[:len(windows)] + [GREEN]
-    drawn = [(label, colour, boundary_segments(data["x"], data["y"], mask).assign(line=label))
-             for (label, mask), colour in zip(lines, colours, strict=False)]
-    drawn = [(label, colour, segs) for label, colour, segs in drawn if len(segs)]
-    if drawn:                             # only limits that cross the map are in the legend
-        labels = [label for label, _, _ in drawn]
-        colours = [colour for _, colour, _ in drawn]
-        segments = pd.concat([segs for _, _, segs in drawn], ignore_index=True)
-        layers.append(alt.Chart(segments).mark_rule(strokeWidth=2.5).encode(
-            x=alt.X("x:Q", scale=x_scale, title=x_title), x2="x2:Q",
-            y=alt.Y("y:Q", scale=y_scale, title=y_title), y2="y2:Q",
-            color=alt.Color("line:N", title="Limits", scale=alt.Scale(
-                domain=labels, range=colours),
-                legend=alt.Legend(orient="bottom", direction="horizontal"))))
+        lines.append((FEASIBLE_LINE, data["feasible"].astype(bool), GREEN, 6, [1, 0]))
+    lines += [(label, data[column].astype(bool), colour, 2.5, [7, 4])
+              for (label, column), colour in zip(windows, MAP_LINE_COLOURS, strict=False)]
+    lines.append((PACKING_LINE, data["headroom"].fillna(np.inf) < 1.0, "#000000", 3, [1, 0]))
+    drawn = [(label, colour, width, dash,
+              boundary_segments(data["x"], data["y"], mask).assign(line=label))
+             for label, mask, colour, width, dash in lines]
+    drawn = [item for item in drawn if len(item[4])]   # only limits that cross the map
+    scale = alt.Scale(domain=[d[0] for d in drawn], range=[d[1] for d in drawn])
+    limits = [alt.Chart(segments).mark_rule(strokeWidth=width, strokeDash=dash).encode(
+        x=alt.X("x:Q", scale=x_scale, title=x_title), x2="x2:Q",
+        y=alt.Y("y:Q", scale=y_scale, title=y_title), y2="y2:Q",
+        color=alt.Color("line:N", title="Limits", scale=scale,
+                        legend=alt.Legend(orient="bottom", direction="horizontal",
+                                          symbolStrokeWidth=3)))
+        for _label, _colour, width, dash, segments in drawn]
+    if limits:                  # one legend for all limits, apart from the colour bar
+        layers.append(alt.layer(*limits))
     if current is not None:
         dot = pd.DataFrame([{"x": float(current["x"]), "y": float(current["y"]),
                              "label": "current recipe"}])
