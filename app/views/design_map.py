@@ -14,7 +14,7 @@ from predictor.units import from_si, to_si
 state.init()
 ss = st.session_state
 LIQUID = -1               # the liquid as a corner of the triangle
-MODES = {"plane": "Two ingredients (map)", "triangle": "Three parts (triangle)"}
+MODES = {"plane": "Map of two", "triangle": "Triangle"}
 WINDOW_COLUMNS = ["name", "shear rate [1/s]", "max viscosity", "min viscosity"]
 
 
@@ -54,6 +54,7 @@ def _windows(unit: str) -> tuple[tuple, ...]:
         columns=WINDOW_COLUMNS)
     label = state.label(unit)
     edited = st.data_editor(shown, num_rows="dynamic", hide_index=True, key="map_windows_editor",
+                            width="stretch",
                             column_config={
                                 "name": st.column_config.TextColumn("Window"),
                                 "shear rate [1/s]": st.column_config.NumberColumn(
@@ -125,8 +126,10 @@ def body() -> None:
     unit = ss["unit_viscosity"]
     with left:
         controls(names)
-        st.caption(f"Process windows (viscosity limits in {state.label(unit)}); each is "
-                   "checked at its own shear rate.")
+    with right:
+        chart_area = st.container()          # drawn above the window table, filled after it
+        st.caption(f"Process windows (viscosity limits in {state.label(unit)}), each checked "
+                   "at its own shear rate; add or delete rows as needed.")
         try:
             windows = _windows(unit)
         except predictor.LoadlineError as err:
@@ -144,7 +147,7 @@ def body() -> None:
                 (ss["map_y_low"] / 100.0, ss["map_y_high"] / 100.0), float(ss["map_rate"]),
                 int(ss["map_n"]), ss["map_basis"], windows)
     except (predictor.LoadlineError, TypeError) as err:
-        with right:
+        with chart_area:
             widgets.show_error(err)
         return
     grid = result["value"]
@@ -159,7 +162,7 @@ def body() -> None:
             items.append(("Inside every window", str(int(grid["feasible"].sum())),
                           "Cells whose viscosity passes every window at its shear rate."))
         widgets.metric_row(items)
-    with right:
+    with chart_area:
         if ss["map_mode"] == "triangle":
             build = functools.partial(charts.design_triangle, grid, unit, ss["presentation"])
             widgets.chart_block(build(), _table(grid, unit), "design-triangle", "map",
