@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import json
+
 import pytest
 
 from app import state
@@ -93,3 +95,27 @@ def test_candidates_refuse_a_liquid_the_batch_cannot_read():
     at = page("design_map", map_n=3).run()                 # the demo paint: Carreau-Yasuda
     assert not at.exception
     assert "liquid law" in messages(at)
+
+
+@pytest.mark.parametrize("big", [False, True])
+def test_map_and_triangle_charts_are_valid_vega_lite_and_export(big):
+    from app import charts
+    from tests.app.test_charts import _valid
+    from tests.test_design_map import newtonian_pair
+
+    windows = [("pumping", 100.0, 0.4), ("sag", 0.1, None, 0.1)]
+    grid = design.loading_map(newtonian_pair(), 0, 1, (0.0, 0.8), (0.0, 0.8), 10.0, n=9,
+                              basis="volume", windows=windows)
+    assert {"jammed", design.NO_LIQUID} <= set(grid["regime"]) and grid["feasible"].any()
+    tri = design.loading_ternary(newtonian_pair(), (0, 1, "liquid"), 10.0, n=7,
+                                 basis="volume", windows=windows)
+    for spec in (charts.design_map(grid, "mPa*s", big), charts.design_triangle(tri, "Pa*s", big),
+                 charts.design_map(grid, "mPa*s", big, joined=True)):
+        _valid(spec)
+        assert "vega-lite" in spec["$schema"]
+    text = json.dumps(charts.design_map(grid, "mPa*s", big))
+    for label in ("packing limit", "pumping limit", "sag limit", "feasible region",
+                  "a [vol%]", "b [vol%]", "current recipe"):
+        assert label in text
+    assert charts.to_png(charts.design_map(grid, "mPa*s", big, joined=True))[:4] == b"\x89PNG"
+    assert "<svg" in charts.to_svg(charts.design_triangle(tri, "Pa*s", big, joined=True))
