@@ -22,8 +22,8 @@ SCHEMA = json.loads((pathlib.Path(predictor.__file__).parent / "schemas" / "map.
                     .read_text(encoding="utf-8"))
 BASE = ["map", SCENARIO, "--x", "1", "--y", "2", "--x-range", "20 45 wt%",
         "--y-range", "5 25 wt%", "--shear-rate", "100 1/s", "-n", "3"]
-WINDOWS = ["--window", "pumping, 100 1/s, max 0.15 Pa*s", "--window",
-           "sag, 0.1 1/s, min 1500 mPa*s"]
+WINDOWS = ["--window", "pumping, 100 1/s, max 0.6 Pa*s", "--window",
+           "sag, 0.1 1/s, min 3000 mPa*s"]
 
 
 def run(capsys, *argv):
@@ -38,7 +38,7 @@ def test_json_follows_the_schema_and_equals_the_core(capsys):
     doc = json.loads(out)
     jsonschema.validate(doc, SCHEMA, cls=jsonschema.Draft202012Validator)
     core = design.loading_map(read_scenario(SCENARIO), 0, 1, (0.2, 0.45), (0.05, 0.25), 100.0,
-                              n=3, windows=[("pumping", 100.0, 0.15), ("sag", 0.1, None, 1.5)])
+                              n=3, windows=[("pumping", 100.0, 0.6), ("sag", 0.1, None, 3.0)])
     assert [r["viscosity_Pa_s"] for r in doc["rows"]] == pytest.approx(
         core["viscosity_Pa_s"].tolist(), rel=1e-12)
     assert [r["feasible"] for r in doc["rows"]] == core["feasible"].tolist()
