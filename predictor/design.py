@@ -879,7 +879,8 @@ def _map_columns(formulation: fm.Formulation, loadings: dict, basis: str,
                                     dtype=float))
     if rate.size != 1:
         raise InputRangeError("shear_rate_1_per_s", f"{rate.size} values", "one shear rate")
-    checked = _windows(windows) if windows is not None else []
+    items = list(windows) if windows is not None else []
+    checked = _windows(items) if items else []          # no windows: no pass columns
     for w in checked:
         positive(w.shear_rate_1_per_s, f"window {w.name!r} shear rate")
         for value in (w.max_viscosity_Pa_s, w.min_viscosity_Pa_s):

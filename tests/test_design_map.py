@@ -252,3 +252,44 @@ def test_scenarios_the_batch_cannot_read_are_refused():
         candidates.candidate_table(scenario.read_scenario(DEMO),
                                    {"ingredient 1 loading": (0.2, 0.4)})
     assert err.value.field == "liquid law"          # the demo paint's Carreau-Yasuda liquid
+
+
+# --- hostile arguments: a frame or an InputRangeError, never a crash -------------------------
+
+from hypothesis import given  # noqa: E402
+from hypothesis import strategies as st  # noqa: E402
+
+from tests.conftest import FUZZ_CASES  # noqa: E402
+
+_wild = st.one_of(st.floats(allow_nan=True, allow_infinity=True),
+                  st.sampled_from([0.0, -0.0, 1.0, -1.0, 0.5, 1e-300, 1e300]))
+_pair = st.one_of(st.tuples(_wild, _wild), st.just((0.1,)), st.just("0.1 0.3"), st.none(),
+                  st.tuples(st.floats(0.0, 0.5), st.floats(0.5, 1.0)))
+
+
+_HOSTILE = {"x_range": _pair, "y_range": _pair, "shear_rate_1_per_s": _wild,
+            "n": st.sampled_from([-1, 0, 1, 402, 10**6, True, 2.5, "3"]),
+            "x_ingredient": st.sampled_from([1, 2, -1, "b", "liquid", None, 1.0]),
+            "windows": st.lists(st.tuples(st.text(max_size=5), _wild, _wild), max_size=2)}
+
+
+@given(spoiled=st.lists(st.sampled_from(sorted(_HOSTILE)), max_size=2, unique=True),
+       data=st.data())
+def test_fuzz_loading_map_arguments(spoiled, data):
+    # A valid call with zero, one or two arguments replaced by hostile values.
+    FUZZ_CASES["design.loading_map"] += 1
+    args = {"x_ingredient": 0, "y_ingredient": 1, "x_range": (0.0, 0.5), "y_range": (0.1, 0.7),
+            "shear_rate_1_per_s": 10.0, "n": 3, "basis": "volume",
+            "windows": [("pumping", 100.0, 0.5)]}
+    for name in spoiled:
+        args[name] = data.draw(_HOSTILE[name], label=name)
+    try:
+        grid = design.loading_map(newtonian_pair(), **args)
+    except InputRangeError as err:
+        assert str(err).strip() and spoiled
+        return
+    assert len(grid) == args["n"] ** 2
+    assert np.isin(grid["regime"], ["plateau", "jammed", design.NO_LIQUID]).all()
+    flowing = grid["regime"] == "plateau"
+    assert np.isfinite(grid.loc[flowing, "viscosity_Pa_s"]).all()
+    assert (grid["viscosity_Pa_s"][grid["regime"] == "jammed"] == np.inf).all()
