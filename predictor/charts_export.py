@@ -257,10 +257,10 @@ def ternary_chart(cells: pd.DataFrame, *, parts: list[str], colour_title: str,
         layers.append(alt.Chart(data[~flowing]).mark_point(
             shape="triangle-up", filled=True, opacity=0.85, color=NO_FLOW, size=size).encode(
             x=x_enc, y=y_enc, tooltip=tips))
-    if "feasible" in data and data["feasible"].any():
+    if "feasible" in data and data["feasible"].any():     # stippled, as on the map
         layers.append(alt.Chart(data[data["feasible"].astype(bool)]).mark_point(
-            shape="triangle-up", filled=False, color=GREEN, strokeWidth=2.5,
-            size=size * 0.75).encode(x=x_enc, y=y_enc, tooltip=tips))
+            shape="circle", filled=True, color="#FFFFFF", stroke=GREEN, strokeWidth=1,
+            opacity=0.9, size=40).encode(x=x_enc, y=y_enc, tooltip=tips))
     h = np.sqrt(3) / 2
     frame = pd.DataFrame({"tx": [0.0, 1.0, 0.5, 0.0], "ty": [0.0, 0.0, h, 0.0],
                           "order": [0, 1, 2, 3]})
@@ -283,7 +283,10 @@ def ternary_chart(cells: pd.DataFrame, *, parts: list[str], colour_title: str,
     chart = alt.layer(*layers).resolve_scale(color="independent").properties(
         width=width, height=height)
     if title:
-        chart = chart.properties(title=title)
+        note = "grey: no flow (packing limit) or no liquid"
+        if "feasible" in data:
+            note += "; white dots: inside every window"
+        chart = chart.properties(title=alt.TitleParams(title, subtitle=note))
     return _style(chart).to_dict(validate=False)
 
 
