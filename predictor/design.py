@@ -824,6 +824,9 @@ def _evaluate_cells(formulation: fm.Formulation, loadings: dict, basis: str, rat
     swapped for ``engine.evaluate(engine.vary(formulation, loadings=loadings, basis=basis),
     rates)`` when that engine lands; until then it is a plain loop over `predict`.
     Validity warnings of the cells are collected and returned once each (4th item).
+    The swap (tried against the engine branch at 508ea85: every map test passes, cells equal
+    `predict` to 1e-14): keep the `warnings.catch_warnings` block and return
+    ``res.viscosity_Pa_s, res.regime, res.headroom, messages``.
     """
     rates = np.atleast_1d(np.asarray(rates, dtype=float))
     n = len(next(iter(loadings.values())))
