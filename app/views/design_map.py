@@ -212,8 +212,11 @@ def candidates_box(scenario: str, names: list[str], windows: tuple) -> None:
     """Candidates from the scenario: a design over chosen factors, for the batch screen."""
     with st.expander("Candidates for the batch screen", icon=":material/table_view:"):
         choices = _factor_choices(names)
-        first = list(choices)[:2]
-        rows = pd.DataFrame({"factor": first, "low": [ss["map_x_low"], ss["map_y_low"]],
+        by_factor = {name: label for label, (name, _, _) in choices.items()}
+        pair = [ss["map_x"], ss["map_y"]] if ss["map_x"] != ss["map_y"] else [0, 1]
+        # Start from the map's two loadings over the map's ranges; edit or add factors.
+        rows = pd.DataFrame({"factor": [by_factor[f"ingredient {k + 1} loading"] for k in pair],
+                             "low": [ss["map_x_low"], ss["map_y_low"]],
                              "high": [ss["map_x_high"], ss["map_y_high"]]})
         edited = st.data_editor(rows, num_rows="dynamic", hide_index=True, key="cand_factors",
                                 column_config={"factor": st.column_config.SelectboxColumn(

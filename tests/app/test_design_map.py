@@ -81,7 +81,11 @@ def test_candidates_go_to_the_batch_screen(tmp_path):
     assert name == "candidates_from_design_map.csv"
     table = files[name].decode().splitlines()
     assert len(table) == 1 + 9                         # 3 x 3 levels of the two loadings
-    assert "ingredient 1 loading [wt fraction]" in table[0]
+    header = table[0].split(",")
+    assert "ingredient 1 loading [wt fraction]" in header and "ingredient 1 d50 [m]" in header
+    column = header.index("ingredient 2 loading [wt fraction]")   # the map's y ingredient
+    levels = sorted({float(line.split(",")[column]) for line in table[1:]})
+    assert levels == pytest.approx([0.05, 0.10, 0.15])            # over the map's y range
     assert any(n.startswith("sizes_2_") for n in files)  # the pigment's size table
     for file_name, data in files.items():                # what the Batch screen page reads
         (tmp_path / file_name).write_bytes(data)
