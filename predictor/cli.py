@@ -630,6 +630,67 @@ def _write_map_png(grid, unit: str, path: str) -> None:
     pathlib.Path(path).write_bytes(vl_convert.vegalite_to_png(json.dumps(spec), scale=2))
 
 
+# -- candidates -----------------------------------------------------------------------------
+
+_FACTOR_DIMENSIONS = {"d50": "length", "temperature": "temperature",
+                      "liquid viscosity": "viscosity"}
+
+
+def _factor_arg(form, text: str) -> tuple[str, tuple[float, float]]:
+    """'ingredient 1 loading: 20 40 wt%' -> ("ingredient 1 loading", (0.2, 0.4)) in SI."""
+    from .units import parse_loading
+
+    name, sep, rest = str(text).partition(":")
+    match = _RANGE.match(rest) if sep else None
+    if not match:
+        raise UnitError(f"--factor = {text!r} could not be read; write e.g. 'ingredient 1 "
+                        "loading: 20 40 wt%', 'ingredient 2 d50: 0.3 1.2 um' or "
+                        "'temperature: 15 45 degC'.")
+    name = " ".join(name.lower().split())
+    low, high, unit = match.groups()
+    what = name.split()[-1] if name.startswith("ingredient") else name
+    if what in ("loading", "glycerol"):
+        own = "mass"
+        if what == "loading":
+            k = name.split()[1]
+            if k.isdigit() and 1 <= int(k) <= len(form.ingredients):
+                own = form.ingredients[int(k) - 1].basis
+        values = [parse_loading(f"{v} {unit}".strip(), f"--factor {name!r}", own)
+                  for v in (low, high)]
+        if any(basis != own for _, basis in values):
+            raise UnitError(f"--factor {name!r}: give it on its own basis "
+                            f"({'wt%' if own == 'mass' else 'vol%'}).")
+        return name, (values[0][0], values[1][0])
+    dimension = _FACTOR_DIMENSIONS.get(what)
+    if dimension is None:       # candidates.candidate_table names the allowed factors
+        return name, (float("nan"), float("nan"))
+    return name, tuple(_quantity(f"{v} {unit}", dimension, f"--factor {name!r}")
+                       for v in (low, high))
+
+
+def cmd_candidates(args) -> int:
+    from . import candidates
+    from .batch import write_csv
+
+    form = _scenario(args.scenario)
+    factors = dict(_factor_arg(form, t) for t in args.factor)
+    windows = [_window_arg(t) for t in args.window or []] or None
+    table, size_tables = candidates.candidate_table(
+        form, factors, design=args.design, n=args.n, levels=args.levels, seed=args.seed,
+        windows=windows)
+    out = pathlib.Path(args.output)
+    if out.suffix.lower() != ".csv":
+        raise UnitError(f"-o {args.output!r}: the candidate table is written as .csv")
+    out.parent.mkdir(parents=True, exist_ok=True)
+    table.to_csv(out, index=False, float_format="%.12g")
+    for name, frame in size_tables.items():
+        write_csv(frame, out.parent / name)
+    print(f"wrote {len(table)} candidates ({args.design}) to {out}"
+          + (f" and {len(size_tables)} size tables beside it" if size_tables else "")
+          + f"; screen them with: loadline screen {out}")
+    return EXIT_OK
+
+
 def cmd_demo(args) -> int:
     from .formulation import loading_sweep, max_loading, mixture, predict, solid_mass_fraction
     from .report import inputs_table, liquid_table
@@ -739,6 +800,15 @@ examples:
 Ingredients by number (1 = first, as in the candidate table) or by name; every other
 ingredient keeps its scenario loading. Cells at or beyond the packing limit have no flow
 (viscosity inf, regime "jammed"). --json gives every cell in SI units (fractions, Pa*s).""",
+    "candidates": """\
+examples:
+  loadline candidates slurry.loadline.json --factor "ingredient 1 loading: 20 40 wt%" \\
+      --factor "ingredient 2 d50: 0.3 1.2 um" --factor "temperature: 15 45 degC" \\
+      --design latin-hypercube -n 50 --window "pumping, 100 1/s, max 1 Pa*s" -o cand.csv
+  loadline screen cand.csv
+
+Every other field of a row is the scenario's. The batch screen reads Newtonian liquids
+without thickening; a scenario it cannot read is refused, naming the field.""",
     "demo": """\
 examples:
   loadline demo
@@ -762,8 +832,8 @@ def build_parser() -> argparse.ArgumentParser:
         prog="loadline",
         description="Loadline: viscosity of suspensions and emulsions from what is known "
                     "before the lab trial.",
-        epilog="commands: predict, sweep, max-load, map, screen, pack, fit, report, models, demo. "
-               "Run 'loadline COMMAND --help' for examples.\n\n" + _EPILOG,
+        epilog="commands: predict, sweep, max-load, map, candidates, screen, pack, fit, "
+               "report, models, demo. Run 'loadline COMMAND --help' for examples.\n\n" + _EPILOG,
         formatter_class=argparse.RawDescriptionHelpFormatter)
     from importlib import metadata
 
@@ -868,6 +938,25 @@ def build_parser() -> argparse.ArgumentParser:
     p.add_argument("--png", metavar="FILE", help="also write the chart as PNG")
     p.add_argument("-o", "--output", help="also write every cell here (.csv, .xlsx or .json)")
     _add_output(p)
+
+    p = add("candidates", "candidate table from a scenario: a design over chosen factors, "
+                          "for loadline screen", cmd_candidates)
+    p.add_argument("scenario", help="scenario file (*.loadline.json)")
+    p.add_argument("--factor", action="append", required=True, metavar="FACTOR",
+                   help="'NAME: LOW HIGH UNIT', NAME one of 'ingredient k loading', "
+                        "'ingredient k d50', 'temperature', 'liquid viscosity', 'glycerol' "
+                        "(repeatable)")
+    p.add_argument("--design", default="full-factorial",
+                   choices=["full-factorial", "latin-hypercube", "sobol", "halton"],
+                   help="full factorial (default) or a space-filling design")
+    p.add_argument("-n", type=int, default=16,
+                   help="rows of a space-filling design (default 16)")
+    p.add_argument("--levels", type=int, default=3,
+                   help="levels per factor of the full factorial (default 3)")
+    p.add_argument("--seed", type=int, default=0, help="seed of the space-filling designs")
+    p.add_argument("--window", action="append", metavar="WINDOW",
+                   help="a process window for every row, as in 'loadline map'")
+    p.add_argument("-o", "--output", required=True, help="candidate table to write (.csv)")
 
     p = add("models", "the published relations Loadline knows, with their sources", cmd_models)
     p.add_argument("--kind", choices=["suspension", "emulsion", "packing", "liquid", "shear"],

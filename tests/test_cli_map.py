@@ -95,3 +95,50 @@ def test_bad_input_is_named_with_exit_1(capsys, argv, needle):
 def test_help_names_the_command(capsys):
     code, out, _ = run(capsys, "map", "--help")
     assert code == 0 and "--x-range" in out and "Caution" in out
+
+
+# --- loadline candidates ---------------------------------------------------------------------
+
+@pytest.fixture
+def slurry(tmp_path):
+    from predictor.scenario import write_scenario
+    from tests.test_design_map import two_powders_in_water
+
+    path = tmp_path / "slurry.loadline.json"
+    write_scenario(two_powders_in_water(), path)
+    return str(path)
+
+
+def test_candidates_command_writes_a_table_that_screens(capsys, tmp_path, slurry):
+    out = tmp_path / "cand" / "cand.csv"
+    code, text, _ = run(capsys, "candidates", slurry, "--factor",
+                        "ingredient 1 loading: 20 40 wt%", "--factor",
+                        "ingredient 2 d50: 0.3 1.2 um", "--factor", "temperature: 15 45 degC",
+                        "--design", "sobol", "-n", "8", "--window",
+                        "pumping, 100 1/s, max 1 Pa*s", "-o", str(out))
+    assert code == 0 and "wrote 8 candidates" in text
+    table = pd.read_csv(out)
+    assert table["ingredient 1 loading [wt fraction]"].between(0.2, 0.4).all()
+    assert table["temperature [K]"].between(288.15, 318.15).all()
+    code, text, _ = run(capsys, "screen", str(out), "--json")
+    doc = json.loads(text)
+    assert code == 0 and doc["rows_ok"] == 8 and doc["rows_error"] == 0
+
+
+@pytest.mark.parametrize(("argv", "needle"), [
+    (["--factor", "ingredient 1 loading: 20 40 vol%"], "own basis"),
+    (["--factor", "colour: 1 2 um"], "factor"),
+    (["--factor", "ingredient 1 loading 20 40 wt%"], "could not be read"),
+    (["--factor", "temperature: 15 45 Pa"], "temperature"),
+    (["--factor", "ingredient 1 loading: 20 40 wt%", "--design", "sobol", "-n", "10"], "n"),
+])
+def test_candidates_bad_input_exit_1(capsys, tmp_path, slurry, argv, needle):
+    code, out, err = run(capsys, "candidates", slurry, *argv, "-o", str(tmp_path / "c.csv"))
+    assert code == 1 and not out and needle in err
+    assert not (tmp_path / "c.csv").exists()
+
+
+def test_candidates_refuse_the_thickened_paint(capsys, tmp_path):
+    code, _, err = run(capsys, "candidates", SCENARIO, "--factor",
+                       "ingredient 1 loading: 20 40 wt%", "-o", str(tmp_path / "c.csv"))
+    assert code == 1 and "liquid law" in err
