@@ -103,7 +103,7 @@ def test_candidates_refuse_a_liquid_the_batch_cannot_read():
 
 @pytest.mark.parametrize("big", [False, True])
 def test_map_and_triangle_charts_are_valid_vega_lite_and_export(big):
-    from app import charts
+    from predictor import charts
     from tests.app.test_charts import _valid
     from tests.test_design_map import newtonian_pair
 

@@ -117,3 +117,17 @@ def test_bad_comparison_file_is_named():
     assert not at.exception
     assert "broken.loadline.json" in messages(at) and "not valid JSON" in messages(at)
     assert at.session_state["compare_scenarios"] == []
+
+
+# issue 20: the Compare uploader refuses deep nesting with a message and shows unknown keys.
+def test_deep_or_odd_comparison_files_are_explained():
+    doc = json.loads(sc.dumps(demo()))
+    doc["supplier"] = "nobody"
+    at = page("loading_sweep").run()
+    at.file_uploader(key="compare_upload").set_value(
+        [("deep.loadline.json", b"[" * 100_000 + b"]" * 100_000, "application/json"),
+         ("extra.loadline.json", json.dumps(doc).encode(), "application/json")]).run()
+    assert not at.exception
+    assert "deep.loadline.json" in messages(at) and "levels deep" in messages(at)
+    assert "supplier" in messages(at)
+    assert len(at.session_state["compare_scenarios"]) == 1
