@@ -455,6 +455,51 @@ def solid_distributions(scenario: str) -> list[dict]:
             for k, ing in enumerate(form.ingredients) if ing.kind == fm.SOLID]
 
 
+# --- Process checks ----------------------------------------------------------------------------
+
+
+@st.cache_data(**CACHE)
+def pipe_flow(scenario: str, flows_m3_per_s: float | tuple[float, ...], diameter_m: float,
+              length_m: float, roughness_m: float) -> dict:
+    """`process.pipe_flow_of` at one flow rate (a float) or each of a tuple of them:
+    {"value": PipeFlow, "warnings": [...]}."""
+    from predictor import process
+
+    flows = np.asarray(flows_m3_per_s) if isinstance(flows_m3_per_s, tuple) else flows_m3_per_s
+
+    def run():
+        return process.pipe_flow_of(formulation(scenario), flows, diameter_m, length_m,
+                                    roughness_m)
+    return dict(zip(("value", "warnings"), _captured(run), strict=True))
+
+
+@st.cache_data(**CACHE)
+def stirred_tank(scenario: str, speed_1_per_s: float, impeller_diameter_m: float,
+                 tank_diameter_m: float, impeller: str) -> dict:
+    """`process.stirred_tank_of`: {"value": StirredTank, "warnings": [...]}."""
+    from predictor import process
+
+    def run():
+        return process.stirred_tank_of(formulation(scenario), speed_1_per_s,
+                                       impeller_diameter_m, tank_diameter_m, impeller)
+    return dict(zip(("value", "warnings"), _captured(run), strict=True))
+
+
+@st.cache_data(**CACHE)
+def coating(scenario: str, thickness_m: float, wavelength_m: float,
+            surface_tension_N_per_m: float) -> dict:
+    """`process.coating_of`: {"value": Coating, "warnings": [...]}."""
+    from predictor import process
+
+    def run():
+        return process.coating_of(formulation(scenario), thickness_m, wavelength_m,
+                                  surface_tension_N_per_m=surface_tension_N_per_m)
+    return dict(zip(("value", "warnings"), _captured(run), strict=True))
+
+
+# --- Design map ----------------------------------------------------------------------------
+
+
 @st.cache_data(**CACHE)
 def loading_map(scenario: str, x: int, y: int, x_range: tuple[float, float],
                 y_range: tuple[float, float], shear_rate_1_per_s: float, n: int, basis: str,

@@ -13,7 +13,7 @@ from dataclasses import dataclass
 
 from .errors import InputRangeError, UnknownModelError
 
-KINDS = ("suspension", "emulsion", "packing", "liquid", "shear")
+KINDS = ("suspension", "emulsion", "packing", "liquid", "shear", "process")
 
 
 @dataclass(frozen=True)
@@ -100,7 +100,8 @@ class ModelSpec:
 
 _MODELS: dict[str, ModelSpec] = {}
 #: The modules that register relations; `models()` and `get_model()` import them on first use.
-MODEL_MODULES = ("suspension", "emulsion", "packing", "liquids", "shear", "sizes", "stability")
+MODEL_MODULES = ("suspension", "emulsion", "packing", "liquids", "shear", "sizes", "stability",
+                 "process")
 _LOADED: list[bool] = []
 
 

@@ -39,10 +39,13 @@ def test_json_follows_the_schema_and_equals_the_core(capsys):
     jsonschema.validate(doc, SCHEMA, cls=jsonschema.Draft202012Validator)
     core = design.loading_map(read_scenario(SCENARIO), 0, 1, (0.2, 0.45), (0.05, 0.25), 100.0,
                               n=3, windows=[("pumping", 100.0, 0.6), ("sag", 0.1, None, 3.0)])
-    assert [r["viscosity_Pa_s"] for r in doc["rows"]] == pytest.approx(
+    assert [r["viscosity [Pa*s]"] for r in doc["rows"]] == pytest.approx(
         core["viscosity_Pa_s"].tolist(), rel=1e-12)
-    assert [r["feasible"] for r in doc["rows"]] == core["feasible"].tolist()
-    assert 0 < sum(r["feasible"] for r in doc["rows"]) < 9     # the windows cut the map
+    assert [r["platy mineral filler [wt%]"] for r in doc["rows"]] == pytest.approx(
+        (100 * core["x_loading"]).tolist(), rel=1e-12)
+    feasible = [r["feasible"] == "yes" for r in doc["rows"]]
+    assert feasible == core["feasible"].tolist()
+    assert 0 < sum(feasible) < 9                                  # the windows cut the map
     assert doc["x_ingredient"] == "platy mineral filler" and doc["cautions"] == CAUTIONS
 
 
@@ -55,13 +58,13 @@ def test_triangle_json_follows_the_schema(capsys):
     assert len(doc["rows"]) == 21 and doc["parts"][2] == "liquid"
     for regime in ("jammed", design.NO_LIQUID):       # no flow: null in JSON (no inf)
         rows = [r for r in doc["rows"] if r["regime"] == regime]
-        assert rows and all(r["viscosity_Pa_s"] is None for r in rows)
+        assert rows and all(r["viscosity [Pa*s]"] is None for r in rows)
 
 
 def test_schema_refuses_a_broken_document(capsys):
     _, out, _ = run(capsys, *BASE, "--json")
     doc = json.loads(out)
-    doc["rows"][0]["x_loading"] = 1.5                 # a loading beyond the whole
+    doc["rows"][0]["platy mineral filler [wt%]"] = 150.0     # a loading beyond the whole
     with pytest.raises(jsonschema.ValidationError):
         jsonschema.validate(doc, SCHEMA, cls=jsonschema.Draft202012Validator)
 

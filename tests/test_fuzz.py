@@ -26,6 +26,7 @@ from predictor import (
     files,
     liquids,
     packing,
+    process,
     shear,
     sizes,
     stability,
@@ -35,7 +36,8 @@ from predictor import (
 from predictor.errors import LoadlineError, ValidityWarning
 from tests.conftest import FUZZ_CASES, FUZZ_EXAMPLES
 
-MODULES = [suspension, emulsion, liquids, shear, stability, composition, viscosity, packing]
+MODULES = [suspension, emulsion, liquids, shear, stability, composition, viscosity, packing,
+           process]
 # Slow by design (seconds per call): fuzzed with few cases in their own tests.
 SLOW = {"jamming_simulation", "simulation", "simulation_fit", "max_packing_simulation"}
 

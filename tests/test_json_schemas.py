@@ -34,6 +34,11 @@ RUNS = {
              "-n", "3", "--window", "pumping, 100 1/s, max 1 Pa*s"],
             ["map", str(DEMO / "mineral_coating.loadline.json"), "--x", "1", "--y", "2",
              "--z", "liquid", "--shear-rate", "100 1/s", "-n", "4"]],
+    "pipe": [["pipe", SLIP, "--flow", "10 L/min", "--flow", "300 L/min", "--diameter",
+              "25 mm", "--length", "10 m"],
+             ["pipe", str(DEMO / "mineral_coating.loadline.json"), "--flow", "1 L/min",
+              "--flow-to", "1 m**3/h", "--points", "4", "--diameter", "1 in", "--length",
+              "30 m", "--flow-unit", "m**3/h", "--pressure-unit", "kPa"]],
     "screen": [["screen", str(DEMO / "candidates.csv")],
                ["screen", str(DEMO / "candidates_with_errors.csv")]],
 }
