@@ -22,6 +22,7 @@ PAGES = [
     st.Page("views/sizes_packing.py", title="Sizes & packing", icon=":material/scatter_plot:"),
     st.Page("views/droplets.py", title="Droplets", icon=":material/bubble_chart:"),
     st.Page("views/calibrate.py", title="Calibrate", icon=":material/tune:"),
+    st.Page("views/design_map.py", title="Design map", icon=":material/grid_on:"),
     st.Page("views/batch_screen.py", title="Batch screen", icon=":material/table_view:"),
     st.Page("views/process_checks.py", title="Process checks", icon=":material/plumbing:"),
 ]

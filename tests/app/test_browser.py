@@ -38,7 +38,7 @@ DATA = pathlib.Path(__file__).parent / "data"
 WAIT_MS = 60_000
 PAGES = {"Loading sweep": "loading-sweep", "Flow curve": "flow-curve",
          "Sizes & packing": "sizes-packing", "Droplets": "droplets",
-         "Calibrate": "calibrate", "Batch screen": "batch-screen"}
+         "Calibrate": "calibrate", "Design map": "design-map", "Batch screen": "batch-screen"}
 
 
 def _need_browser() -> None:
@@ -302,3 +302,28 @@ def test_page_change_reaches_the_saved_file(page):
     expect(save).to_be_enabled(timeout=WAIT_MS)
     saved = json.loads(pathlib.Path(_download(page, save)).read_text())
     assert saved["relations"]["solids"] == "quemada"
+
+
+def test_clicking_a_design_map_cell_loads_its_recipe(page):
+    """A click on a map cell puts that recipe's loadings into the sidebar scenario."""
+    import re
+
+    from playwright.sync_api import expect
+
+    _go(page, "Design map")
+    chart = page.get_by_test_id("stVegaLiteChart").first
+    chart.wait_for(timeout=WAIT_MS)
+    page.wait_for_timeout(1500)
+    sidebar = page.get_by_test_id("stSidebar")
+    first = demo().ingredients[0].name
+    expect(sidebar.get_by_text(f"1 · {first} — 35 wt%")).to_be_visible(timeout=WAIT_MS)
+    box = chart.bounding_box()
+    chart.click(position={"x": box["width"] * 0.45, "y": box["height"] * 0.45})
+    _settled(page)
+    note = page.get_by_test_id("stAlert").filter(has_text="into the scenario")
+    expect(note).to_be_visible(timeout=WAIT_MS)
+    loaded = re.search(rf"Loaded {re.escape(first)} ([\d.]+) and", note.inner_text())
+    assert loaded, note.inner_text()
+    value = float(loaded.group(1))
+    assert 20 <= value <= 60 and value != 35          # a cell of the default map
+    expect(sidebar.get_by_text(f"1 · {first} — {value:g} wt%")).to_be_visible(timeout=WAIT_MS)
