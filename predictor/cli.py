@@ -828,31 +828,9 @@ def _pipe_flows(args) -> np.ndarray:
     return np.geomspace(flows[0], high, args.points)
 
 
-def pipe_table(flow, flow_unit: str = "L/min", pressure_unit: str = "bar") -> pd.DataFrame:
-    """The rows of a `process.PipeFlow` in the units people read (table, CSV, JSON, report).
-
-    The friction factor is Fanning's (a quarter of Darcy's)."""
-    rows = pd.DataFrame(flow.rows())
-    return pd.DataFrame({
-        f"flow [{flow_unit}]": units.from_si(rows["flow_rate_m3_per_s"].to_numpy(), flow_unit,
-                                       "flow_rate"),
-        "velocity [m/s]": rows["mean_velocity_m_per_s"],
-        f"pressure drop [{pressure_unit}]": units.from_si(rows["pressure_drop_Pa"].to_numpy(),
-                                                    pressure_unit, "pressure"),
-        "regime": rows["regime"],
-        "Reynolds [-]": rows["reynolds"],
-        "critical Reynolds [-]": rows["critical_reynolds"],
-        "n' [-]": rows["flow_index"],
-        "friction factor [-]": rows["friction_factor"],
-        "wall stress [Pa]": rows["wall_shear_stress_Pa"],
-        "wall shear rate [1/s]": rows["wall_shear_rate_1_per_s"],
-        "plug radius [mm]": 1e3 * rows["plug_radius_m"],
-        "correlation": rows["correlation"],
-    })
-
-
 def cmd_pipe(args) -> int:
     from .process import CAUTION, pipe_flow_of
+    from .report import pipe_table
 
     form = _scenario(args.scenario)
     flows = _pipe_flows(args)

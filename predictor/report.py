@@ -369,10 +369,32 @@ PROCESS_REFERENCE = {"flows_L_per_min": (1.0, 10.0, 100.0), "diameter_m": 0.025,
                      "surface_tension_N_per_m": 0.035}
 
 
+def pipe_table(flow, flow_unit: str = "L/min", pressure_unit: str = "bar") -> pd.DataFrame:
+    """The rows of a `process.PipeFlow` in the units people read (table, CSV, JSON, report).
+
+    The friction factor is Fanning's (a quarter of Darcy's)."""
+    rows = pd.DataFrame(flow.rows())
+    return pd.DataFrame({
+        f"flow [{flow_unit}]": from_si(rows["flow_rate_m3_per_s"].to_numpy(), flow_unit,
+                                       "flow_rate"),
+        "velocity [m/s]": rows["mean_velocity_m_per_s"],
+        f"pressure drop [{pressure_unit}]": from_si(rows["pressure_drop_Pa"].to_numpy(),
+                                                    pressure_unit, "pressure"),
+        "regime": rows["regime"],
+        "Reynolds [-]": rows["reynolds"],
+        "critical Reynolds [-]": rows["critical_reynolds"],
+        "n' [-]": rows["flow_index"],
+        "friction factor [-]": rows["friction_factor"],
+        "wall stress [Pa]": rows["wall_shear_stress_Pa"],
+        "wall shear rate [1/s]": rows["wall_shear_rate_1_per_s"],
+        "plug radius [mm]": 1e3 * rows["plug_radius_m"],
+        "correlation": rows["correlation"],
+    })
+
+
 def _process_checks_section(form, notes: list[str]) -> Section:
     """Pipe, mixer and coating numbers at `PROCESS_REFERENCE` (the `loadline pipe` table)."""
     from . import process
-    from .cli import pipe_table
 
     ref = PROCESS_REFERENCE
     sec = Section("Process checks")
