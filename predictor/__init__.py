@@ -6,7 +6,16 @@ its module (``predictor.shear``, ``predictor.design``, ...).
 """
 
 # Import every model module so that every relation is registered.
-from . import emulsion, liquids, packing, shear, sizes, stability, suspension  # noqa: F401
+from . import (  # noqa: F401
+    emulsion,
+    interactions,
+    liquids,
+    packing,
+    shear,
+    sizes,
+    stability,
+    suspension,
+)
 from .composition import mass_fractions, volume_fractions
 from .errors import (
     FitError,

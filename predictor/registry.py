@@ -15,7 +15,7 @@ import numpy as np
 
 from .errors import InputRangeError, UnknownModelError
 
-KINDS = ("suspension", "emulsion", "packing", "liquid", "shear")
+KINDS = ("suspension", "emulsion", "packing", "liquid", "shear", "interaction")
 
 
 @dataclass(frozen=True)
