@@ -100,6 +100,12 @@ def _permittivity(relative_permittivity, temperature_K):
     return in_range(relative_permittivity, "relative_permittivity", 1.0, 200.0)
 
 
+def _single_numbers(**values):
+    for name, value in values.items():
+        if value is not None and np.ndim(value) != 0:
+            raise InputRangeError(name, f"an array of shape {np.shape(value)}", "a single number")
+
+
 def _no_negative_hamaker(hamaker_J):
     a = as_array(hamaker_J, "hamaker_J")
     if np.any(a < 0) or np.any(a > 1e-18):
@@ -531,7 +537,8 @@ def energy_curve(diameter_m, hamaker_J, surface_potential_V, ionic_strength_mol_
 
     The sum of `van_der_waals_energy`, `hogg_healy_fuerstenau` (or `wiese_healy`) and
     `alexander_de_gennes` on a logarithmic grid of separations, from `CLOSEST_APPROACH_m`
-    to beyond the reach of every force (12 Debye lengths, 3 layer thicknesses, 20 nm).
+    to beyond the reach of every force (12 Debye lengths, 3 layer thicknesses, 20 nm, van
+    der Waals down to 0.5 kT), but not beyond the radius.
 
     Parameters
     ----------
@@ -571,12 +578,12 @@ def energy_curve(diameter_m, hamaker_J, surface_potential_V, ionic_strength_mol_
     >>> round(float(curve.total_kT.max()), 1)
     125.0
     """
-    for name, value in (("diameter_m", diameter_m), ("hamaker_J", hamaker_J),
-                        ("surface_potential_V", surface_potential_V),
-                        ("ionic_strength_mol_per_L", ionic_strength_mol_per_L),
-                        ("layer_thickness_m", layer_thickness_m)):
-        if np.ndim(value) != 0:
-            raise InputRangeError(name, f"an array of shape {np.shape(value)}", "a single number")
+    _single_numbers(diameter_m=diameter_m, hamaker_J=hamaker_J,
+                    surface_potential_V=surface_potential_V,
+                    ionic_strength_mol_per_L=ionic_strength_mol_per_L,
+                    layer_thickness_m=layer_thickness_m, temperature_K=temperature_K,
+                    relative_permittivity=relative_permittivity,
+                    anchor_spacing_m=anchor_spacing_m, points=points)
     if boundary not in ("constant-potential", "constant-charge"):
         raise InputRangeError("boundary", boundary, "'constant-potential' or 'constant-charge'")
     d = float(in_range(diameter_m, "diameter_m", 1e-9, 1e-2))
@@ -587,7 +594,10 @@ def energy_curve(diameter_m, hamaker_J, surface_potential_V, ionic_strength_mol_
     n = int(in_range(points, "points", 50, 5000))
     length = float(debye_length(ionic_strength_mol_per_L, temp, eps))
     a = 0.5 * d
-    top = min(max(12.0 * length, 3.0 * layer, 20e-9), max(a, 20e-9))
+    # out to where every force has faded (van der Waals to 0.5 kT), but not beyond h = a,
+    # where the Derjaguin forms no longer hold
+    reach = hamaker * a / (6.0 * BOLTZMANN * temp)
+    top = min(max(12.0 * length, 3.0 * layer, 20e-9, reach), max(a, 20e-9))
     h = np.geomspace(CLOSEST_APPROACH_m, max(top, 2.0 * CLOSEST_APPROACH_m), n)
     kt = BOLTZMANN * temp
     vdw = van_der_waals_energy(h, a, hamaker) / kt
@@ -654,11 +664,12 @@ def stability_verdict(diameter_m, hamaker_J, surface_potential_V, ionic_strength
     -----
     The rule applied (our reading of [1]_-[3]_):
 
-    - "flocculated": the barrier to the primary minimum is below `barrier_threshold_kT`,
-      or the well the particles can reach beyond the barrier (a secondary minimum, or the
-      well at the edge of a steric layer) is at least that deep;
-    - "weakly flocculated": that reachable well is deeper than `weak_threshold_kT`;
-    - "stable" otherwise.
+    - the reachable well is the deepest point of the whole curve (the primary minimum)
+      when the barrier is below `barrier_threshold_kT`, else the deepest point beyond the
+      barrier (a secondary minimum, or the well at the edge of a steric layer);
+    - "flocculated": that well is at least `barrier_threshold_kT` deep;
+    - "weakly flocculated": it is deeper than `weak_threshold_kT`;
+    - "stable" otherwise (no barrier is needed where nothing attracts).
 
     With a steric layer the "barrier" is the energy at the closest approach, the layers
     being compressed. Notes in the result flag kappa a < 5 (Derjaguin forms doubtful) and
@@ -685,6 +696,8 @@ def stability_verdict(diameter_m, hamaker_J, surface_potential_V, ionic_strength
     >>> stability_verdict(1e-6, 4.8e-20, 0.03, 0.1).verdict
     'flocculated'
     """
+    _single_numbers(barrier_threshold_kT=barrier_threshold_kT,
+                    weak_threshold_kT=weak_threshold_kT)
     barrier_threshold_kT = float(in_range(barrier_threshold_kT, "barrier_threshold_kT",
                                           1.0, 1000.0))
     weak_threshold_kT = float(in_range(weak_threshold_kT, "weak_threshold_kT", 0.1,
@@ -699,12 +712,13 @@ def stability_verdict(diameter_m, hamaker_J, surface_potential_V, ionic_strength
     outside = v[top:]
     k_out = top + int(np.argmin(outside))
     well = float(min(outside.min(), 0.0))
-    if barrier < barrier_threshold_kT:
-        verdict, bottom = "flocculated", int(np.argmin(v[:top + 1])) if top > 0 else 0
-    elif -well >= barrier_threshold_kT:
-        verdict, bottom = "flocculated", k_out
-    elif -well > weak_threshold_kT:
-        verdict, bottom = "weakly flocculated", k_out
+    # the well the particles can reach: the whole curve when the barrier does not hold
+    k_reach = int(np.argmin(v)) if barrier < barrier_threshold_kT else k_out
+    depth = -float(min(v[k_reach], 0.0))
+    if depth >= barrier_threshold_kT:
+        verdict, bottom = "flocculated", k_reach
+    elif depth > weak_threshold_kT:
+        verdict, bottom = "weakly flocculated", k_reach
     else:
         verdict, bottom = "stable", None
     kt = BOLTZMANN * float(temperature_K)

@@ -23,6 +23,7 @@ import predictor as pr
 from predictor import (
     composition,
     emulsion,
+    interactions,
     liquids,
     packing,
     shear,
@@ -34,7 +35,8 @@ from predictor import (
 from predictor.errors import LoadlineError, ValidityWarning
 from tests.conftest import FUZZ_CASES, FUZZ_EXAMPLES
 
-MODULES = [suspension, emulsion, liquids, shear, stability, composition, viscosity, packing]
+MODULES = [suspension, emulsion, liquids, shear, stability, composition, viscosity, packing,
+           interactions]
 # Slow by design (seconds per call): fuzzed with few cases in their own tests.
 SLOW = {"jamming_simulation", "simulation", "simulation_fit", "max_packing_simulation"}
 
