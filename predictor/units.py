@@ -31,6 +31,9 @@ SI_UNITS = {
     "time": "s",
     "dimensionless": "",
     "consistency": "Pa*s",   # power-law consistency K: Pa*s^n, checked loosely (n varies)
+    "potential": "V",
+    "energy": "J",
+    "concentration": "mol/L",
 }
 
 _NUMBER = r"[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?"
