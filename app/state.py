@@ -143,6 +143,9 @@ DEFAULTS: dict[str, object] = {
     # Batch screen page
     "batch_files": {}, "batch_table_name": "", "batch_message": "", "batch_result": None,
     "batch_summary": {}, "batch_unit": "Pa*s",
+    # Particle forces page (salt in mmol/L, potential in mV, layer in nm, A in 1e-20 J)
+    "pf_ingredient": "", "pf_salt": 1.0, "pf_potential": 30.0, "pf_layer": 0.0,
+    "pf_hamaker": 4.8,
     # messages from callbacks, shown on the next run
     "scenario_message": "", "scenario_loaded": False,
 }
