@@ -501,3 +501,13 @@ def hamaker_table() -> pd.DataFrame:
                           "Across oil (estimate) [1e-20 J]": e.oil_J / 1e-20,
                           "Source": e.source}
                          for name, e in interactions.HAMAKER_CONSTANTS.items()])
+
+
+@st.cache_data(**CACHE)
+def particle_verdicts(scenario: str) -> dict:
+    """Verdict of each solid with interactions and the network yield stress now."""
+    def run():
+        form = formulation(scenario)
+        return {"rows": fm.interaction_rows(form),
+                "yield_stress_Pa": fm.flocculation_yield_stress(form)}
+    return dict(zip(("value", "warnings"), _captured(run), strict=True))

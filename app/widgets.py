@@ -384,6 +384,28 @@ def interaction_inputs(i: int) -> None:
                     help="Typical values: the table on the Particle forces page.")
 
 
+def interaction_summary(scenario: str) -> None:
+    """One line per solid with interactions: its verdict, and the network yield stress."""
+    try:
+        result = compute.particle_verdicts(scenario)["value"]
+    except predictor.LoadlineError as err:
+        show_error(err)
+        return
+    if not result["rows"]:
+        return
+    parts = []
+    for row in result["rows"]:
+        how = ("stated" if row["basis"] == "stated"
+               else f"barrier {fmt(row['barrier_kT'], 3)} kT")
+        parts.append(f"**{row['ingredient']}**: {row['verdict']} ({how})")
+    tau = result["yield_stress_Pa"]
+    text = "; ".join(parts) + (
+        f". Network yield stress {fmt(tau, 3)} Pa (YODEL), added to the flow curve."
+        if tau > 0 else ". No network yield stress at this loading.")
+    st.info(f"Particle forces: {text} Details on the Particle forces page.",
+            icon=":material/join_inner:")
+
+
 def sidebar() -> None:
     """The whole shared sidebar: scenario, units, liquid, ingredients, layout, cautions."""
     with st.sidebar:
