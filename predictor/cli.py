@@ -233,15 +233,33 @@ def _shear_rates(args) -> np.ndarray:
 
 
 def cmd_predict(args) -> int:
-    from .formulation import predict
+    from .formulation import interaction_rows, predict
 
     unit = _check_viscosity_unit(args.viscosity_unit)
     form = _scenario(args.scenario)
     curve = predict(form, _shear_rates(args))
     meta = {"scenario": form.name, **{k: _plain(v) for k, v in curve.attrs.items()}}
-    head = _scenario_head(form, meta)
+    meta["particle_interactions"] = interaction_rows(form)
+    meta["yield_stress_Pa"] = meta.get("markers", {}).get("flocculation_yield_stress_Pa", 0.0)
+    head = _scenario_head(form, meta) + _interaction_head(meta)
     _emit(args, unit_columns(curve, unit), meta, head)
     return EXIT_OK
+
+
+def _interaction_head(meta: dict) -> str:
+    """Lines naming each solid's verdict and the network yield stress (none: empty)."""
+    rows = meta.get("particle_interactions") or []
+    if not rows:
+        return ""
+    lines = []
+    for row in rows:
+        how = ("stated in the scenario" if row["basis"] == "stated" else
+               f"barrier {row['barrier_kT']:.3g} kT, well beyond it "
+               f"{row['secondary_minimum_kT']:.3g} kT; {row['criterion']}")
+        lines.append(f"particles: {row['ingredient']} {row['verdict']} ({how})")
+    lines.append(f"network yield stress (YODEL, Flatt & Bowen 2006) = "
+                 f"{meta['yield_stress_Pa']:.4g} Pa, added to the flow curve")
+    return "\n" + "\n".join(lines)
 
 
 def _plain(value):
