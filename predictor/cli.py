@@ -697,7 +697,8 @@ def build_parser() -> argparse.ArgumentParser:
     _add_output(p, machine=False)
 
     p = add("models", "the published relations Loadline knows, with their sources", cmd_models)
-    p.add_argument("--kind", choices=["suspension", "emulsion", "packing", "liquid", "shear"],
+    p.add_argument("--kind", choices=["suspension", "emulsion", "packing", "liquid", "shear",
+                                      "interaction"],
                    help="only relations of this kind")
     _add_output(p, viscosity=False)
 
