@@ -176,12 +176,12 @@ def _check_interactions(i: int, ing: Ingredient) -> None:
         raise InputRangeError(f"ingredients[{i}].flocculated", ing.flocculated, "true or false")
     wanted = ing.flocculated or ing.surface_potential_V is not None
     if ing.hamaker_J is not None:
-        _check_range(f"ingredients[{i}].hamaker_J", ing.hamaker_J, -1e-18, 1e-18)
-        if ing.hamaker_J < 0:
+        if isinstance(ing.hamaker_J, int | float) and ing.hamaker_J < 0:
             raise InputRangeError(
                 f"ingredients[{i}].hamaker_J", ing.hamaker_J, "a value from 0 to 1e-18 J",
                 "Particles of one material always attract across a liquid (A >= 0); a "
                 "negative Hamaker constant is physical only between two different materials.")
+        _check_range(f"ingredients[{i}].hamaker_J", ing.hamaker_J, 0.0, 1e-18)
     if wanted and ing.kind != SOLID:
         raise InputRangeError(f"ingredients[{i}].kind", ing.kind,
                               "'solid' for particle interactions (surface potential, "

@@ -65,7 +65,8 @@ CASES = [
          "(phi_m (phi_m - phi)), m1 = (1.8/pi^4) A a*/(12 H^2) / R^2",
          note="hand calculation: m1 = 0.0184785 * 4.8e-20 * 0.5e-6 / (12 * 4e-18) / 0.25e-12 "
               "= 36.96 Pa; shape 0.4 * 0.12^2 / (0.64 * 0.24) = 0.0375. Phi dependence from "
-              "memory; constants from a secondary restatement"),
+              "memory; constants from a secondary restatement; the paper's fitted values for "
+              "alumina were not reached"),
     Case("interactions.yodel_yield_stress",
          {"phi": 0.25, "phi_percolation": 0.28, "phi_max": 0.64, "diameter_m": 1e-6,
           "hamaker_J": 4.8e-20, "separation_m": 2e-9},
