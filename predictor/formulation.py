@@ -428,25 +428,32 @@ def particle_interactions(formulation: Formulation) -> tuple[ParticleInteraction
         if ing.kind != SOLID or not (ing.flocculated or ing.surface_potential_V is not None):
             continue
         dist = ing.distribution()
-        factor = float(np.clip(interactions.yodel_size_factor(dist.diameters_m, dist.fractions),
-                               0.01, 100.0))
+        d50, sauter, factor = _sizes_of(dist)
         if ing.flocculated:
             found.append(ParticleInteraction(
-                ing.name, "flocculated", True, ing.hamaker_J, dist.d50_m,
+                ing.name, "flocculated", True, ing.hamaker_J, d50,
                 max(2.0 * ing.layer_thickness_m, interactions.CLOSEST_APPROACH_m), factor, None))
             continue
-        detail = _verdict(dist.sauter_diameter_m, ing.hamaker_J, ing.surface_potential_V,
+        detail = _verdict(sauter, ing.hamaker_J, ing.surface_potential_V,
                           liq.ionic_strength_mol_per_L, ing.layer_thickness_m, liq.temperature_K,
                           liq.relative_permittivity)
         found.append(ParticleInteraction(ing.name, detail.verdict, False, ing.hamaker_J,
-                                         dist.d50_m, detail.bond_separation_m, factor, detail))
+                                         d50, detail.bond_separation_m, factor, detail))
     return tuple(found)
 
 
+# Sweeps and bisections ask the same questions many times: each answer is kept once.
 @functools.lru_cache(maxsize=256)
 def _verdict(*args) -> interactions.StabilityVerdict:
-    """`interactions.stability_verdict`, once per set of inputs (sweeps ask many times)."""
+    """`interactions.stability_verdict`, once per set of inputs."""
     return interactions.stability_verdict(*args)
+
+
+@functools.lru_cache(maxsize=256)
+def _sizes_of(dist: sizes.SizeDistribution) -> tuple[float, float, float]:
+    """(volume median diameter, Sauter diameter, YODEL size factor) of a distribution."""
+    factor = interactions.yodel_size_factor(dist.diameters_m, dist.fractions)
+    return dist.d50_m, dist.sauter_diameter_m, float(np.clip(factor, 0.01, 100.0))
 
 
 def flocculation_yield_stress(formulation: Formulation, mix: Mixture | None = None,
