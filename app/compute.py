@@ -471,7 +471,7 @@ def particle_forces(scenario: str, ingredient: str, ionic_strength_mol_per_L: fl
         curve = interactions.energy_curve(
             ing.distribution().sauter_diameter_m, hamaker_J, surface_potential_V,
             ionic_strength_mol_per_L, layer_thickness_m, liq.temperature_K,
-            liq.relative_permittivity)
+            liq.relative_permittivity, points=200)
         h_nm = curve.separation_m * 1e9
         energy = pd.concat([pd.DataFrame({"separation_nm": h_nm, "energy_kT": values,
                                           "term": term})
@@ -482,10 +482,11 @@ def particle_forces(scenario: str, ingredient: str, ionic_strength_mol_per_L: fl
                            ignore_index=True)
         mix = fm.mixture(variant)
         grid = np.linspace(0.0, 0.99 * mix.phi_max, n)
-        sweep = fm.loading_sweep(variant, phi=grid)
+        loading = pd.DataFrame({
+            "phi": grid, "mass_fraction": fm.solid_mass_fraction(variant, grid, mix),
+            "yield_stress_Pa": fm.flocculation_yield_stress(variant, mix, grid)})
         verdict = dataclasses.asdict(state.detail)
-        return {"verdict": verdict, "energy": energy,
-                "loading": sweep[["phi", "mass_fraction", "yield_stress_Pa"]],
+        return {"verdict": verdict, "energy": energy, "loading": loading,
                 "yield_stress_Pa": fm.flocculation_yield_stress(variant, mix),
                 "phi": mix.phi_solids_effective, "phi_max": mix.phi_max,
                 "diameter_m": ing.distribution().sauter_diameter_m}
