@@ -372,7 +372,7 @@ def interaction_inputs(i: int) -> None:
     ss = st.session_state
     k = functools.partial(state.ingredient_key, i)
     st.selectbox("Particle interactions", state.INTERACTIONS, key=k("interaction"),
-                 format_func=state.INTERACTION_LABELS.get, on_change=request_full_run)
+                 format_func=state.INTERACTION_LABELS.get)
     if ss[k("interaction")] == "none":
         return
     if ss[k("interaction")] == "charged":
