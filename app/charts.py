@@ -643,7 +643,11 @@ def energy_curve(frame: pd.DataFrame, *, threshold_kT: float, big: bool = False)
               scale=alt.Scale(domain=[bottom, top], clamp=True))
     curves = fig.chart(frame).mark_line(strokeWidth=2.4, clip=True).encode(
         x=alt.X("separation_nm:Q", title="Surface separation [nm]",
-                scale=alt.Scale(type="log")),
+                scale=alt.Scale(type="log", nice=False,
+                                domain=[float(frame["separation_nm"].min()),
+                                        float(frame["separation_nm"].max())]),
+                axis=alt.Axis(format="~g", values=decades(float(frame["separation_nm"].min()),
+                                                          float(frame["separation_nm"].max())))),
         y=y,
         color=alt.Color("term:N", title="Term", scale=_palette(names), sort=names),
         strokeDash=alt.condition(alt.datum.term == "total", alt.value([1, 0]), alt.value([5, 3])),

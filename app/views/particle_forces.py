@@ -15,6 +15,8 @@ from predictor.units import from_si, to_si
 state.init()
 ss = st.session_state
 SALTS = [float(f"{v:.3g}") for v in np.logspace(-4, 3, 29)]   # mmol/L, 4 steps a decade
+VERDICT_STYLE = {"stable": st.success, "weakly flocculated": st.info,
+                 "flocculated": st.warning}
 
 
 def _ingredient_index(name: str) -> int | None:
@@ -68,12 +70,12 @@ def controls(solids: list[str]) -> None:
                     step=1.0, min_value=0.0, max_value=1000.0)
     st.number_input("Hamaker constant across the liquid [×10⁻²⁰ J]", key="pf_hamaker",
                     format="%.3g", step=0.5, min_value=0.0, max_value=100.0)
-    a, b = st.columns(2)
-    a.button("From the ingredient", key="pf_take", on_click=take_from_ingredient,
-             icon=":material/download:", help="Take the sidebar's values for this solid.")
-    b.button("Apply to the scenario", key="pf_apply", on_click=apply_to_scenario,
-             icon=":material/upload:",
-             help="Set this solid to 'charged' with these values, and the liquid's salt.")
+    st.button("Take the ingredient's values", key="pf_take", on_click=take_from_ingredient,
+              icon=":material/download:", width="stretch",
+              help="Take the sidebar's values for this solid.")
+    st.button("Apply to the scenario", key="pf_apply", on_click=apply_to_scenario,
+              icon=":material/upload:", width="stretch",
+              help="Set this solid to 'charged' with these values, and the liquid's salt.")
 
 
 @widgets.page_body
@@ -103,8 +105,10 @@ def body() -> None:
     value = result["value"]
     verdict = value["verdict"]
     with metrics:
+        VERDICT_STYLE[verdict["verdict"]](
+            f"**{verdict['verdict'].capitalize()}** — criterion: {verdict['criterion']}.",
+            icon=":material/join_inner:")
         widgets.metric_row([
-            ("Verdict", verdict["verdict"], verdict["criterion"]),
             ("Barrier [kT]", widgets.fmt(verdict["barrier_kT"], 3),
              "Highest point of the pair energy between the particles and contact."),
             ("Secondary minimum [kT]", widgets.fmt(verdict["secondary_minimum_kT"], 3), None),
@@ -123,7 +127,8 @@ def body() -> None:
         widgets.chart_block(build(), value["energy"], "pair-energy", "pf_energy")
         widgets.show_warnings(result["warnings"] + list(verdict["notes"]))
         loading = value["loading"]
-        shown = loading[loading["yield_stress_Pa"] > 0]
+        tau = loading["yield_stress_Pa"]
+        shown = loading[(tau > 0) & (tau >= 1e-4 * tau[np.isfinite(tau)].max())]
         if shown.empty:
             st.info("No network yield stress at any loading: the particles stay apart "
                     "(or the loading never reaches percolation).", icon=":material/info:")
