@@ -492,10 +492,14 @@ def flocculation_yield_stress(formulation: Formulation, mix: Mixture | None = No
 
 def _with_added_yield_stress(curve: shear.FlowCurve, yield_stress_Pa: float) -> shear.FlowCurve:
     """The flow curve with a network yield stress added to its stress (Herschel-Bulkley-like:
-    sigma = tau_y + sigma_suspension(rate)), on top of any yield stress of the liquid."""
+    sigma = tau_y + sigma_suspension(rate)), on top of any yield stress of the liquid.
+
+    YODEL gives the suspension's own yield stress, so it is added as it is, not scaled by
+    the suspension factor that a liquid's yield stress gets in `shear.flow_curve`. Marker
+    ``flocculation_yield_stress_Pa`` (only when > 0).
+    """
     if yield_stress_Pa <= 0:
-        return dataclasses.replace(curve, markers={**curve.markers,
-                                                   "flocculation_yield_stress_Pa": 0.0})
+        return curve
     rates = curve.shear_rate_1_per_s
     sigma = curve.shear_stress_Pa + yield_stress_Pa
     viscosity = sigma / rates
@@ -571,8 +575,9 @@ def predict(formulation: Formulation, shear_rate_1_per_s=None) -> pd.DataFrame:
 def flow_curve_summary(formulation: Formulation, shear_rate_1_per_s=None) -> dict:
     """Markers and warnings of the flow curve as one plain dict (for the app and the CLI).
 
-    Keys: phi, phi_max, headroom, warnings, and every marker of `shear.flow_curve`
-    (``thinning_onset_1_per_s``, ``dst_low_1_per_s``, ``apparent_yield_stress_Pa``, ...).
+    Keys: phi, phi_max, headroom, warnings, every marker of `shear.flow_curve`
+    (``thinning_onset_1_per_s``, ``dst_low_1_per_s``, ``apparent_yield_stress_Pa``, ...),
+    and particle_interactions (`interaction_rows`; empty without interactions).
     """
     attrs = predict(formulation, shear_rate_1_per_s).attrs
     return {"phi": attrs["phi"], "phi_max": attrs["phi_max"], "headroom": attrs["headroom"],

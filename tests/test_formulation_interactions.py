@@ -39,7 +39,8 @@ def test_plain_formulations_are_unchanged():
     assert fm.particle_interactions(form) == ()
     assert fm.flocculation_yield_stress(form) == 0.0
     curve = fm.predict(form, [1.0])
-    assert curve.attrs["markers"]["flocculation_yield_stress_Pa"] == 0.0
+    assert "flocculation_yield_stress_Pa" not in curve.attrs["markers"]
+    assert fm.flow_curve_summary(form)["particle_interactions"] == []
 
 
 def test_charged_solid_uses_the_liquids_salt(mocker):
