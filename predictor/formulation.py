@@ -467,8 +467,10 @@ def flocculation_yield_stress(formulation: Formulation, mix: Mixture | None = No
     solids' phi_max, for each solid whose verdict (`particle_interactions`) is
     "flocculated" or "weakly flocculated", weighted by its share of the solids' effective
     volume (our own mixing rule, common practice, no source). The percolation threshold is
-    `interactions.YODEL_PERCOLATION`, lowered to half of phi_max for very loose packings.
-    0 when no solid is flocculated or below percolation; inf at and above phi_max.
+    `interactions.YODEL_PERCOLATION`, lowered to half of phi_max for very loose packings;
+    contacts held beyond 1 um (very weak secondary minima) are taken at 1 um, where the
+    yield stress is negligible. 0 when no solid is flocculated or below percolation; inf at
+    and above phi_max.
     """
     states = [s for s in particle_interactions(formulation) if s.verdict != "stable"]
     phi = None if phi_solids_effective is None else np.asarray(phi_solids_effective, float)

@@ -553,7 +553,8 @@ def energy_curve(diameter_m, hamaker_J, surface_potential_V, ionic_strength_mol_
     layer_thickness_m : float, optional
         Adsorbed layer on each surface (0: none). [m]
     temperature_K : float, optional
-        Temperature. [K]
+        Temperature: 273.15-373.15 K for water's permittivity, 150-700 K when the
+        permittivity is given. [K]
     relative_permittivity : float, optional
         Of the liquid; None: water at the temperature (`water_permittivity`). [-]
     boundary : {"constant-potential", "constant-charge"}, optional
@@ -589,7 +590,9 @@ def energy_curve(diameter_m, hamaker_J, surface_potential_V, ionic_strength_mol_
     d = float(in_range(diameter_m, "diameter_m", 1e-9, 1e-2))
     hamaker = float(_no_negative_hamaker(hamaker_J))
     layer = float(in_range(layer_thickness_m, "layer_thickness_m", 0.0, 1e-5))
-    temp = float(in_range(temperature_K, "temperature_K", 273.15, 373.15))
+    # water's permittivity is known from 0 to 100 C; a given permittivity allows any liquid
+    low, high = (273.15, 373.15) if relative_permittivity is None else (150.0, 700.0)
+    temp = float(in_range(temperature_K, "temperature_K", low, high))
     eps = float(_permittivity(relative_permittivity, temp))
     n = int(in_range(points, "points", 50, 5000))
     length = float(debye_length(ionic_strength_mol_per_L, temp, eps))

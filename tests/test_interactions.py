@@ -221,3 +221,13 @@ def test_hamaker_table_has_sources_and_sensible_values():
     for name, entry in it.HAMAKER_CONSTANTS.items():
         assert entry.source and ("memory" in entry.source or "checked" in entry.source), name
         assert 0 <= entry.oil_J < entry.vacuum_J and 0 < entry.water_J < entry.vacuum_J, name
+
+
+def test_temperature_range_follows_the_permittivity():
+    # water's permittivity is tabulated from 0 to 100 C only (Malmberg & Maryott 1956)
+    with pytest.raises(InputRangeError, match="temperature_K"):
+        it.energy_curve(1e-6, 1e-20, 0.03, 1e-3, temperature_K=400.0)
+    hot_oil = it.energy_curve(1e-6, 1e-20, 0.03, 1e-3, temperature_K=400.0,
+                              relative_permittivity=2.1)
+    assert hot_oil.debye_length_m == pytest.approx(
+        it.debye_length(1e-3, 400.0, 2.1))
