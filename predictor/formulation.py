@@ -394,130 +394,6 @@ def flow_curve_of(formulation: Formulation, shear_rate_1_per_s=None,
     return _with_added_yield_stress(curve, flocculation_yield_stress(formulation, mix))
 
 
-@dataclass(frozen=True)
-class ParticleInteraction:
-    """Interactions of one solid ingredient (see `particle_interactions`).
-
-    `separation_m` is the contact separation H that `interactions.yodel_yield_stress`
-    uses (inf when stable); `detail` the full `interactions.StabilityVerdict` when the
-    verdict was computed from a surface potential, None when the user stated "flocculated".
-    """
-
-    ingredient: str
-    verdict: str
-    stated: bool
-    hamaker_J: float
-    diameter_m: float
-    separation_m: float
-    size_factor: float
-    detail: interactions.StabilityVerdict | None
-
-
-def particle_interactions(formulation: Formulation) -> tuple[ParticleInteraction, ...]:
-    """Verdict of every solid that carries interactions (surface potential or flocculated).
-
-    A surface potential gives `interactions.stability_verdict` for the ingredient's Sauter
-    diameter, its adsorbed layer and the liquid's salt, temperature and permittivity. A
-    stated flocculated state has its contacts at twice the layer thickness, or at
-    `interactions.CLOSEST_APPROACH_m` without a layer. The YODEL size is the volume median
-    diameter with `interactions.yodel_size_factor` of the distribution.
-    """
-    liq = formulation.liquid
-    found = []
-    for ing in formulation.ingredients:
-        if ing.kind != SOLID or not (ing.flocculated or ing.surface_potential_V is not None):
-            continue
-        dist = ing.distribution()
-        d50, sauter, factor = _sizes_of(dist)
-        if ing.flocculated:
-            found.append(ParticleInteraction(
-                ing.name, "flocculated", True, ing.hamaker_J, d50,
-                max(2.0 * ing.layer_thickness_m, interactions.CLOSEST_APPROACH_m), factor, None))
-            continue
-        detail = _verdict(sauter, ing.hamaker_J, ing.surface_potential_V,
-                          liq.ionic_strength_mol_per_L, ing.layer_thickness_m, liq.temperature_K,
-                          liq.relative_permittivity)
-        found.append(ParticleInteraction(ing.name, detail.verdict, False, ing.hamaker_J,
-                                         d50, detail.bond_separation_m, factor, detail))
-    return tuple(found)
-
-
-# Sweeps and bisections ask the same questions many times: each answer is kept once.
-@functools.lru_cache(maxsize=256)
-def _verdict(*args) -> interactions.StabilityVerdict:
-    """`interactions.stability_verdict`, once per set of inputs."""
-    return interactions.stability_verdict(*args)
-
-
-@functools.lru_cache(maxsize=256)
-def _sizes_of(dist: sizes.SizeDistribution) -> tuple[float, float, float]:
-    """(volume median diameter, Sauter diameter, YODEL size factor) of a distribution."""
-    factor = interactions.yodel_size_factor(dist.diameters_m, dist.fractions)
-    return dist.d50_m, dist.sauter_diameter_m, float(np.clip(factor, 0.01, 100.0))
-
-
-def flocculation_yield_stress(formulation: Formulation, mix: Mixture | None = None,
-                              phi_solids_effective=None):
-    """Yield stress of the flocculated solids' network at the mixture's loading. [Pa]
-
-    At `phi_solids_effective` (an array: the loading sweep) when given, else at the
-    mixture's own effective solid fraction (a float).
-
-    `interactions.yodel_yield_stress` at the total effective solid fraction and the
-    solids' phi_max, for each solid whose verdict (`particle_interactions`) is
-    "flocculated" or "weakly flocculated", weighted by its share of the solids' effective
-    volume (our own mixing rule, common practice, no source). The percolation threshold is
-    `interactions.YODEL_PERCOLATION`, lowered to half of phi_max for very loose packings;
-    contacts held beyond 1 um (very weak secondary minima) are taken at 1 um, where the
-    yield stress is negligible. 0 when no solid is flocculated or below percolation; inf at
-    and above phi_max.
-    """
-    states = [s for s in particle_interactions(formulation) if s.verdict != "stable"]
-    phi = None if phi_solids_effective is None else np.asarray(phi_solids_effective, float)
-    if not states:
-        return 0.0 if phi is None else np.zeros_like(phi)
-    mix = mix or mixture(formulation)
-    phi = mix.phi_solids_effective if phi is None else phi
-    names = [i.name for i in formulation.ingredients]
-    volume = np.where(mix.is_solid, mix.phi * mix.swelling, 0.0)
-    total = volume.sum()
-    phi0 = min(interactions.YODEL_PERCOLATION, 0.5 * mix.phi_max)
-    tau = 0.0
-    for state in states:
-        k = names.index(state.ingredient)
-        share = volume[k] / total if total > 0 else 1.0 / len(states)
-        tau = tau + share * interactions.yodel_yield_stress(
-            np.minimum(phi, 1.0), phi0, mix.phi_max, state.diameter_m, state.hamaker_J,
-            min(state.separation_m, 1e-6), size_factor=state.size_factor)
-    return float(tau) if np.ndim(tau) == 0 else tau
-
-
-def _with_added_yield_stress(curve: shear.FlowCurve, yield_stress_Pa: float) -> shear.FlowCurve:
-    """The flow curve with a network yield stress added to its stress (Herschel-Bulkley-like:
-    sigma = tau_y + sigma_suspension(rate)), on top of any yield stress of the liquid.
-
-    YODEL gives the suspension's own yield stress, so it is added as it is, not scaled by
-    the suspension factor that a liquid's yield stress gets in `shear.flow_curve`. Marker
-    ``flocculation_yield_stress_Pa`` (only when > 0).
-    """
-    if yield_stress_Pa <= 0:
-        return curve
-    rates = curve.shear_rate_1_per_s
-    sigma = curve.shear_stress_Pa + yield_stress_Pa
-    viscosity = sigma / rates
-    regime = np.where((sigma < 2.0 * yield_stress_Pa) & (curve.regime != "jammed"), "yield",
-                      curve.regime)
-    markers = dict(curve.markers, flocculation_yield_stress_Pa=float(yield_stress_Pa))
-    markers["apparent_yield_stress_Pa"] = markers.get("apparent_yield_stress_Pa", 0.0) \
-        + yield_stress_Pa
-    note = (f"Flocculated solids: their network adds a yield stress of {yield_stress_Pa:.3g} Pa "
-            "(YODEL, Flatt & Bowen 2006) to the flow curve.")
-    return dataclasses.replace(curve, shear_stress_Pa=sigma, viscosity_Pa_s=viscosity,
-                               relative_viscosity=viscosity / curve.liquid_viscosity_Pa_s,
-                               regime=regime.astype(str), markers=markers,
-                               warnings=tuple(curve.warnings) + (note,))
-
-
 def _rates(shear_rate_1_per_s):
     if shear_rate_1_per_s is None:
         return np.logspace(*np.log10(DEFAULT_RANGE_1_PER_S), 61)
@@ -585,29 +461,6 @@ def flow_curve_summary(formulation: Formulation, shear_rate_1_per_s=None) -> dic
     return {"phi": attrs["phi"], "phi_max": attrs["phi_max"], "headroom": attrs["headroom"],
             **attrs["markers"], "warnings": attrs["warnings"],
             "particle_interactions": interaction_rows(formulation)}
-
-
-def interaction_rows(formulation: Formulation) -> list[dict]:
-    """`particle_interactions` as plain rows for tables, the CLI and the report.
-
-    Keys: ingredient, verdict, basis ("stated" or "pair energy"), barrier_kT,
-    secondary_minimum_kT, debye_length_m, kappa_a, criterion, notes (nan / "" where the
-    state was stated by the user).
-    """
-    rows = []
-    for s in particle_interactions(formulation):
-        d = s.detail
-        rows.append({
-            "ingredient": s.ingredient, "verdict": s.verdict,
-            "basis": "stated" if s.stated else "pair energy",
-            "barrier_kT": d.barrier_kT if d else float("nan"),
-            "secondary_minimum_kT": d.secondary_minimum_kT if d else float("nan"),
-            "debye_length_m": d.debye_length_m if d else float("nan"),
-            "kappa_a": d.kappa_a if d else float("nan"),
-            "criterion": d.criterion if d else "stated by the user",
-            "notes": " ".join(d.notes) if d else "",
-        })
-    return rows
 
 
 def process_viscosities(formulation: Formulation, windows=None) -> pd.DataFrame:
@@ -785,3 +638,153 @@ def with_solids_scaled(formulation: Formulation, phi_solids_effective: float) ->
         else:
             new.append(dataclasses.replace(ing, loading=float(mix.phi[k]), basis="volume"))
     return dataclasses.replace(formulation, ingredients=tuple(new))
+
+
+# --- particle interactions (predictor.interactions) in a formulation ---------------------
+
+
+@dataclass(frozen=True)
+class ParticleInteraction:
+    """Interactions of one solid ingredient (see `particle_interactions`).
+
+    `separation_m` is the contact separation H that `interactions.yodel_yield_stress`
+    uses (inf when stable); `detail` the full `interactions.StabilityVerdict` when the
+    verdict was computed from a surface potential, None when the user stated "flocculated".
+    """
+
+    ingredient: str
+    verdict: str
+    stated: bool
+    hamaker_J: float
+    diameter_m: float
+    separation_m: float
+    size_factor: float
+    detail: interactions.StabilityVerdict | None
+
+
+def particle_interactions(formulation: Formulation) -> tuple[ParticleInteraction, ...]:
+    """Verdict of every solid that carries interactions (surface potential or flocculated).
+
+    A surface potential gives `interactions.stability_verdict` for the ingredient's Sauter
+    diameter, its adsorbed layer and the liquid's salt, temperature and permittivity. A
+    stated flocculated state has its contacts at twice the layer thickness, or at
+    `interactions.CLOSEST_APPROACH_m` without a layer. The YODEL size is the volume median
+    diameter with `interactions.yodel_size_factor` of the distribution.
+    """
+    liq = formulation.liquid
+    found = []
+    for ing in formulation.ingredients:
+        if ing.kind != SOLID or not (ing.flocculated or ing.surface_potential_V is not None):
+            continue
+        dist = ing.distribution()
+        d50, sauter, factor = _sizes_of(dist)
+        if ing.flocculated:
+            found.append(ParticleInteraction(
+                ing.name, "flocculated", True, ing.hamaker_J, d50,
+                max(2.0 * ing.layer_thickness_m, interactions.CLOSEST_APPROACH_m), factor, None))
+            continue
+        detail = _verdict(sauter, ing.hamaker_J, ing.surface_potential_V,
+                          liq.ionic_strength_mol_per_L, ing.layer_thickness_m, liq.temperature_K,
+                          liq.relative_permittivity)
+        found.append(ParticleInteraction(ing.name, detail.verdict, False, ing.hamaker_J,
+                                         d50, detail.bond_separation_m, factor, detail))
+    return tuple(found)
+
+
+# Sweeps and bisections ask the same questions many times: each answer is kept once.
+@functools.lru_cache(maxsize=256)
+def _verdict(*args) -> interactions.StabilityVerdict:
+    """`interactions.stability_verdict`, once per set of inputs."""
+    return interactions.stability_verdict(*args)
+
+
+@functools.lru_cache(maxsize=256)
+def _sizes_of(dist: sizes.SizeDistribution) -> tuple[float, float, float]:
+    """(volume median diameter, Sauter diameter, YODEL size factor) of a distribution."""
+    factor = interactions.yodel_size_factor(dist.diameters_m, dist.fractions)
+    return dist.d50_m, dist.sauter_diameter_m, float(np.clip(factor, 0.01, 100.0))
+
+
+def flocculation_yield_stress(formulation: Formulation, mix: Mixture | None = None,
+                              phi_solids_effective=None):
+    """Yield stress of the flocculated solids' network at the mixture's loading. [Pa]
+
+    At `phi_solids_effective` (an array: the loading sweep) when given, else at the
+    mixture's own effective solid fraction (a float).
+
+    `interactions.yodel_yield_stress` at the total effective solid fraction and the
+    solids' phi_max, for each solid whose verdict (`particle_interactions`) is
+    "flocculated" or "weakly flocculated", weighted by its share of the solids' effective
+    volume (our own mixing rule, common practice, no source). The percolation threshold is
+    `interactions.YODEL_PERCOLATION`, lowered to half of phi_max for very loose packings;
+    contacts held beyond 1 um (very weak secondary minima) are taken at 1 um, where the
+    yield stress is negligible. 0 when no solid is flocculated or below percolation; inf at
+    and above phi_max.
+    """
+    states = [s for s in particle_interactions(formulation) if s.verdict != "stable"]
+    phi = None if phi_solids_effective is None else np.asarray(phi_solids_effective, float)
+    if not states:
+        return 0.0 if phi is None else np.zeros_like(phi)
+    mix = mix or mixture(formulation)
+    phi = mix.phi_solids_effective if phi is None else phi
+    names = [i.name for i in formulation.ingredients]
+    volume = np.where(mix.is_solid, mix.phi * mix.swelling, 0.0)
+    total = volume.sum()
+    phi0 = min(interactions.YODEL_PERCOLATION, 0.5 * mix.phi_max)
+    tau = 0.0
+    for state in states:
+        k = names.index(state.ingredient)
+        share = volume[k] / total if total > 0 else 1.0 / len(states)
+        tau = tau + share * interactions.yodel_yield_stress(
+            np.minimum(phi, 1.0), phi0, mix.phi_max, state.diameter_m, state.hamaker_J,
+            min(state.separation_m, 1e-6), size_factor=state.size_factor)
+    return float(tau) if np.ndim(tau) == 0 else tau
+
+
+def _with_added_yield_stress(curve: shear.FlowCurve, yield_stress_Pa: float) -> shear.FlowCurve:
+    """The flow curve with a network yield stress added to its stress (Herschel-Bulkley-like:
+    sigma = tau_y + sigma_suspension(rate)), on top of any yield stress of the liquid.
+
+    YODEL gives the suspension's own yield stress, so it is added as it is, not scaled by
+    the suspension factor that a liquid's yield stress gets in `shear.flow_curve`. Marker
+    ``flocculation_yield_stress_Pa`` (only when > 0).
+    """
+    if yield_stress_Pa <= 0:
+        return curve
+    rates = curve.shear_rate_1_per_s
+    sigma = curve.shear_stress_Pa + yield_stress_Pa
+    viscosity = sigma / rates
+    regime = np.where((sigma < 2.0 * yield_stress_Pa) & (curve.regime != "jammed"), "yield",
+                      curve.regime)
+    markers = dict(curve.markers, flocculation_yield_stress_Pa=float(yield_stress_Pa))
+    markers["apparent_yield_stress_Pa"] = markers.get("apparent_yield_stress_Pa", 0.0) \
+        + yield_stress_Pa
+    note = (f"Flocculated solids: their network adds a yield stress of {yield_stress_Pa:.3g} Pa "
+            "(YODEL, Flatt & Bowen 2006) to the flow curve.")
+    return dataclasses.replace(curve, shear_stress_Pa=sigma, viscosity_Pa_s=viscosity,
+                               relative_viscosity=viscosity / curve.liquid_viscosity_Pa_s,
+                               regime=regime.astype(str), markers=markers,
+                               warnings=tuple(curve.warnings) + (note,))
+
+
+def interaction_rows(formulation: Formulation) -> list[dict]:
+    """`particle_interactions` as plain rows for tables, the CLI and the report.
+
+    Keys: ingredient, verdict, basis ("stated" or "pair energy"), barrier_kT,
+    secondary_minimum_kT, debye_length_m, kappa_a, criterion, notes (nan / "" where the
+    state was stated by the user).
+    """
+    rows = []
+    for s in particle_interactions(formulation):
+        d = s.detail
+        rows.append({
+            "ingredient": s.ingredient, "verdict": s.verdict,
+            "basis": "stated" if s.stated else "pair energy",
+            "barrier_kT": d.barrier_kT if d else float("nan"),
+            "secondary_minimum_kT": d.secondary_minimum_kT if d else float("nan"),
+            "debye_length_m": d.debye_length_m if d else float("nan"),
+            "kappa_a": d.kappa_a if d else float("nan"),
+            "criterion": d.criterion if d else "stated by the user",
+            "notes": " ".join(d.notes) if d else "",
+        })
+    return rows
