@@ -254,8 +254,8 @@ def _interaction_head(meta: dict) -> str:
     lines = []
     for row in rows:
         how = ("stated in the scenario" if row["basis"] == "stated" else
-               f"barrier {row['barrier_kT']:.3g} kT, well beyond it "
-               f"{row['secondary_minimum_kT']:.3g} kT; {row['criterion']}")
+               f"barrier {row['barrier_kT']:.3g} kT, deepest reachable well "
+               f"{row['reachable_well_kT']:.3g} kT; {row['criterion']}")
         lines.append(f"particles: {row['ingredient']} {row['verdict']} ({how})")
     lines.append(f"network yield stress (YODEL, Flatt & Bowen 2006) = "
                  f"{meta['yield_stress_Pa']:.4g} Pa, added to the flow curve")

@@ -771,8 +771,8 @@ def interaction_rows(formulation: Formulation) -> list[dict]:
     """`particle_interactions` as plain rows for tables, the CLI and the report.
 
     Keys: ingredient, verdict, basis ("stated" or "pair energy"), barrier_kT,
-    secondary_minimum_kT, debye_length_m, kappa_a, criterion, notes (nan / "" where the
-    state was stated by the user).
+    secondary_minimum_kT, reachable_well_kT, debye_length_m, kappa_a, criterion, notes
+    (nan / "" where the state was stated by the user).
     """
     rows = []
     for s in particle_interactions(formulation):
@@ -782,6 +782,7 @@ def interaction_rows(formulation: Formulation) -> list[dict]:
             "basis": "stated" if s.stated else "pair energy",
             "barrier_kT": d.barrier_kT if d else float("nan"),
             "secondary_minimum_kT": d.secondary_minimum_kT if d else float("nan"),
+            "reachable_well_kT": d.reachable_well_kT if d else float("nan"),
             "debye_length_m": d.debye_length_m if d else float("nan"),
             "kappa_a": d.kappa_a if d else float("nan"),
             "criterion": d.criterion if d else "stated by the user",

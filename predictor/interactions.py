@@ -614,7 +614,9 @@ def energy_curve(diameter_m, hamaker_J, surface_potential_V, ionic_strength_mol_
 class StabilityVerdict:
     """What `stability_verdict` concludes, with the numbers behind it.
 
-    Energies are in k_B T (a minimum is negative); `bond_force_N` is the largest
+    Energies are in k_B T (a minimum is negative); `reachable_well_kT` is the deepest
+    point the particles can reach (the primary minimum when the barrier does not hold them
+    off, else the deepest point beyond the barrier; 0 if none); `bond_force_N` is the largest
     attractive force the pair resists when pulled out of its well (0 when stable);
     `bond_separation_m` the separation at which van der Waals attraction alone gives that
     force (the H of `yodel_yield_stress`).
@@ -625,6 +627,7 @@ class StabilityVerdict:
     secondary_minimum_kT: float
     secondary_minimum_separation_m: float
     primary_minimum_kT: float
+    reachable_well_kT: float
     debye_length_m: float
     kappa_a: float
     bond_force_N: float
@@ -744,7 +747,7 @@ def stability_verdict(diameter_m, hamaker_J, surface_potential_V, ionic_strength
     criterion = (f"energy barrier of at least {barrier_threshold_kT:g} kT keeps particles "
                  f"apart (rule of thumb, 15-25 kT); a reachable well deeper than "
                  f"{weak_threshold_kT:g} kT makes loose flocs")
-    return StabilityVerdict(verdict, barrier, well, float(h[k_out]), primary,
+    return StabilityVerdict(verdict, barrier, well, float(h[k_out]), primary, -depth,
                             curve.debye_length_m, curve.kappa_a, force, bond, criterion,
                             tuple(notes))
 

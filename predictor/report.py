@@ -306,7 +306,7 @@ def _interaction_section(form: fm.Formulation, rows: list[dict]) -> Section:
         "verdict": [r["verdict"] for r in rows],
         "from": [r["basis"] for r in rows],
         "barrier [kT]": [r["barrier_kT"] for r in rows],
-        "well beyond the barrier [kT]": [r["secondary_minimum_kT"] for r in rows],
+        "deepest reachable well [kT]": [r["reachable_well_kT"] for r in rows],
         "Debye length [nm]": [1e9 * r["debye_length_m"] for r in rows]})))
     tau = fm.flocculation_yield_stress(form)
     sec.paragraphs.append(

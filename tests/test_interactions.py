@@ -231,3 +231,10 @@ def test_temperature_range_follows_the_permittivity():
                               relative_permittivity=2.1)
     assert hot_oil.debye_length_m == pytest.approx(
         it.debye_length(1e-3, 400.0, 2.1))
+
+
+def test_reachable_well_is_the_primary_minimum_without_a_barrier():
+    coagulated = it.stability_verdict(1e-6, 4.8e-20, 0.03, 0.1)
+    assert coagulated.reachable_well_kT == pytest.approx(coagulated.primary_minimum_kT)
+    loose = it.stability_verdict(1e-6, 4.8e-20, 0.03, 1e-3)
+    assert loose.reachable_well_kT == pytest.approx(loose.secondary_minimum_kT)

@@ -111,7 +111,11 @@ def body() -> None:
         widgets.metric_row([
             ("Barrier [kT]", widgets.fmt(verdict["barrier_kT"], 3),
              "Highest point of the pair energy between the particles and contact."),
-            ("Secondary minimum [kT]", widgets.fmt(verdict["secondary_minimum_kT"], 3), None),
+            ("Secondary minimum [kT]", widgets.fmt(verdict["secondary_minimum_kT"], 3),
+             "Deepest point beyond the barrier."),
+            ("Deepest reachable well [kT]", widgets.fmt(verdict["reachable_well_kT"], 3),
+             "Where the particles end up: the primary minimum (contact) when the barrier "
+             "does not hold them off."),
             ("Debye length [nm]", widgets.fmt(verdict["debye_length_m"] * 1e9, 3),
              f"κa = {verdict['kappa_a']:.3g}"),
             ("Yield stress now [Pa]", widgets.fmt(value["yield_stress_Pa"], 3),
