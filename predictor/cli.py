@@ -296,6 +296,8 @@ def cmd_sweep(args) -> int:
         "relative viscosity [-]": sweep["relative_viscosity"].to_numpy(),
         f"viscosity [{unit}]": from_si(sweep["viscosity_Pa_s"].to_numpy(), unit, "viscosity"),
     })
+    if "yield_stress_Pa" in sweep and (sweep["yield_stress_Pa"] > 0).any():
+        frame["yield stress of flocs [Pa]"] = sweep["yield_stress_Pa"].to_numpy()
     meta = {"scenario": form.name, **{k: _plain(v) for k, v in sweep.attrs.items()}}
     head = (f"scenario: {form.name or '(unnamed)'}\n"
             f"phi_max = {meta.get('phi_max', float('nan')):.4g}, current phi = "

@@ -194,3 +194,15 @@ def test_cli_predict_shows_verdict_and_yield_stress(tmp_path, capsys):
 def test_cli_predict_without_interactions_says_nothing_of_them(capsys):
     assert main(["predict", str(DEMO / "ceramic_slip.loadline.json"), "--points", "3"]) == 0
     assert "particles:" not in capsys.readouterr().out
+
+
+def test_cli_sweep_adds_the_yield_stress_column_only_with_flocs(capsys):
+    demo = str(DEMO / "alumina_slip_near_iep.loadline.json")
+    assert main(["sweep", demo, "--points", "5", "--json"]) == 0
+    rows = json.loads(capsys.readouterr().out)["rows"]
+    expected = fm.loading_sweep(read_scenario(demo), n=5)["yield_stress_Pa"].to_numpy()
+    got = [r["yield stress of flocs [Pa]"] for r in rows]
+    assert got == pytest.approx(expected.tolist()) and max(got) > 0
+    assert main(["sweep", str(DEMO / "ceramic_slip.loadline.json"), "--points", "5",
+                 "--json"]) == 0
+    assert "yield stress of flocs [Pa]" not in json.loads(capsys.readouterr().out)["rows"][0]
