@@ -284,6 +284,15 @@ def droplet_inputs(scenario: str) -> list[dict]:
 
 
 @st.cache_data(**CACHE)
+def liquid_viscosity_at(scenario: str, shear_rate_1_per_s: float) -> float:
+    """Apparent viscosity of the scenario's liquid at a shear rate (its whole law, SI)."""
+    from predictor import liquids
+
+    law, params = fm.liquid_law_of(formulation(scenario).liquid)
+    return float(liquids.liquid_viscosity(shear_rate_1_per_s, law, **params))
+
+
+@st.cache_data(**CACHE)
 def phase_ratio(inputs: tuple, model: str, shear_rate_1_per_s: float, phi_max: float,
                 rigid: bool, jammed_yield: str, target_viscosity_Pa_s: float | None,
                 target_branch: str, thinning: bool = True) -> dict:

@@ -15,8 +15,8 @@ import streamlit as st
 
 import predictor
 from app import charts, compute, state
+from predictor import labels, sizes
 from predictor import scenario as sc
-from predictor import sizes
 from predictor.units import from_si, to_si
 
 LIQUID_PRESETS = {"water": "Water", "glycerol-water": "Glycerol–water",
@@ -78,7 +78,9 @@ def calibration_badge() -> None:
     if not text:
         return
     cal = json.loads(text)
-    params = ", ".join(f"{k} = {v:.4g}" for k, v in cal.get("params", {}).items())
+    params = ", ".join(
+        f"{labels.name_label(k, ('suspension', 'emulsion'), cal.get('model'))[0]} = {v:.4g}"
+        for k, v in cal.get("params", {}).items())
     st.info(f"Calibrated relation in use: **{cal.get('model')}** ({params}), fitted to "
             f"{cal.get('source', 'lab data')}. Reset on the Calibrate page.",
             icon=":material/verified:")
@@ -144,6 +146,11 @@ def _open_demo() -> None:
     path = state.demo_files().get(st.session_state.get("demo_choice"))
     if path is None:
         return
+    open_demo_file(path)
+
+
+def open_demo_file(path) -> None:
+    """Open a demo scenario file as the whole scenario (a callback: sidebar and pages)."""
     try:
         state.apply_formulation(sc.read_scenario(path), source=path.name)
     except predictor.LoadlineError as err:
@@ -288,10 +295,12 @@ def law_inputs() -> None:
         si = float(params.get(p.name, defaults.get(p.name, 0.0)))
         ss[f"liqp_{p.name}"] = state._clean(from_si(si, unit, dimension) if dimension
                                             and dimension != "time" else si)
-        st.number_input(f"{p.description} [{state.label(unit)}]", key=f"liqp_{p.name}",
+        shown_unit = state.label(unit) + ("ⁿ" if "Pa*s**n" in p.description else "")
+        st.number_input(f"{labels.param_words(p)} [{shown_unit}]", key=f"liqp_{p.name}",
                         format="%.6g", on_change=_law_param_changed,
                         args=(p.name, unit, dimension if dimension != "time" else None),
-                        help=f"Registry bounds {p.bounds[0]:g} to {p.bounds[1]:g} {p.unit}")
+                        help=f"{p.description[:1].upper()}{p.description[1:]}. Allowed "
+                        f"{p.bounds[0]:g} to {p.bounds[1]:g} {labels.param_unit(p)}.")
     st.number_input("Reference temperature of these values "
                     f"[{_u('unit_temperature')}]", key="liq_ref_temperature", format="%.2f")
     st.number_input("Activation temperature E/R [K] (empty: no temperature shift)",
@@ -483,6 +492,29 @@ def rate_text(value: float) -> str:
 def fmt(value: float, digits: int = 4) -> str:
     """The one number format of metrics (tests compare against it)."""
     return f"{value:.{digits}g}"
+
+
+def number_text(value, quantity: str = "", digits: int = 4, spec: str | None = None) -> str:
+    """`fmt` (or format `spec`), or words where there is no number (never a bare inf, ∞ or
+    nan on screen)."""
+    words = labels.value_words(value, quantity)
+    if words is not None:
+        return words
+    return format(float(value), spec) if spec else fmt(float(value), digits)
+
+
+def table_words(frame: pd.DataFrame) -> pd.DataFrame:
+    """`frame` for display: float columns holding an infinite value become text, the numbers
+    to 4 significant digits and the infinite ones in words (by the quantity the column
+    names); NaN stays an empty cell."""
+    out = frame.copy()
+    for col in out.columns:
+        values = out[col]
+        if values.dtype.kind != "f" or not values.abs().eq(float("inf")).any():
+            continue
+        quantity = labels.quantity_of(str(col))
+        out[col] = [("" if v != v else number_text(v, quantity)) for v in values]
+    return out
 
 
 def viscosity_value(value_Pa_s: float) -> str:

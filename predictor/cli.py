@@ -28,6 +28,7 @@ import numpy as np
 import pandas as pd
 
 from .errors import LoadlineError, UnitError
+from .labels import name_label, quantity_of, value_words
 from .units import from_si, parse_quantity
 
 CAUTIONS = (
@@ -105,12 +106,13 @@ def unit_columns(frame: pd.DataFrame, viscosity_unit: str = "Pa*s") -> pd.DataFr
     return pd.DataFrame(out)
 
 
-def _fmt(value) -> str:
+def _fmt(value, quantity: str = "") -> str:
+    """4 significant digits; words for an infinite value of `quantity` (never a bare inf)."""
     if isinstance(value, float | np.floating):
         if math.isnan(value):
             return ""
         if math.isinf(value):
-            return "inf" if value > 0 else "-inf"
+            return value_words(value, quantity)
         return f"{value:.4g}"
     return str(value)
 
@@ -118,7 +120,9 @@ def _fmt(value) -> str:
 def table_text(frame: pd.DataFrame, max_rows: int | None = None) -> str:
     """A plain aligned table with 4 significant digits."""
     shown = frame if max_rows is None else frame.head(max_rows)
-    cells = [[_fmt(v) for v in row] for row in shown.itertuples(index=False)]
+    quantities = [quantity_of(str(c)) for c in frame.columns]
+    cells = [[_fmt(v, q) for v, q in zip(row, quantities, strict=True)]
+             for row in shown.itertuples(index=False)]
     headers = [str(c) for c in frame.columns]
     widths = [max([len(h)] + [len(r[i]) for r in cells]) for i, h in enumerate(headers)]
     numeric = [pd.api.types.is_numeric_dtype(frame[c]) for c in frame.columns]
@@ -470,12 +474,13 @@ def cmd_fit(args) -> int:
     if args.shear_rate:
         data = data.at_shear_rate(_quantity(args.shear_rate, "shear_rate", "--shear-rate"))
     result = data.fit(args.model)
-    rows = [{"parameter": name, "value": float(value),
+    rows = [{"parameter": name, "meaning": _param_meaning(name, result.model),
+             "value": float(value),
              f"{100 * result.confidence:g} % low": float(result.intervals[name][0]),
              f"{100 * result.confidence:g} % high": float(result.intervals[name][1])}
             for name, value in result.params.items()]
-    rows += [{"parameter": f"{name} (fixed)", "value": float(value)}
-             for name, value in result.fixed.items()]
+    rows += [{"parameter": f"{name} (fixed)", "meaning": _param_meaning(name, result.model),
+              "value": float(value)} for name, value in result.fixed.items()]
     meta = {"model": result.model, "points": result.n_points, "rmse_ln": result.rmse,
             "r2_ln": result.r2, "aic": result.aic, "notes": list(result.notes)}
     head = (f"fit of {result.model} to {result.n_points} points from {args.data}\n"
@@ -484,6 +489,12 @@ def cmd_fit(args) -> int:
         head += f"\nnote: {note}"
     _emit(args, pd.DataFrame(rows), meta, head)
     return EXIT_OK
+
+
+def _param_meaning(name: str, model: str) -> str:
+    """A fitted parameter in words with its unit (``phi_max`` -> maximum packing fraction [–])."""
+    words, unit = name_label(name, ("suspension", "emulsion"), model)
+    return f"{words} [{unit}]"
 
 
 def cmd_report(args) -> int:
@@ -522,8 +533,8 @@ def cmd_demo(args) -> int:
         f"viscosity [{unit}]": from_si(sweep["viscosity_Pa_s"].to_numpy(), unit,
                                        "viscosity")})) + "\n\n")
     rows = []
-    for label, rate, limit in (("brushing", 1e4, 0.1), ("pumping", 100.0, 0.5),
-                               ("levelling", 0.1, 5.0)):
+    for label, rate, limit in (("brushing", 1e4, 0.2), ("pumping", 100.0, 1.0),
+                               ("levelling", 0.1, 10.0)):
         phi = max_loading(form, limit, rate)
         rows.append({"window": label, "shear rate [1/s]": rate,
                      f"limit [{unit}]": from_si(limit, unit, "viscosity"),

@@ -53,7 +53,8 @@ PAL_VARIANT = Param(
 )
 
 #: Viscosity ratio at and above which simple shear cannot break a droplet: the pole of
-#: de Bruijn's fit (Grace 1982 data); from memory, not checked against the source.
+#: de Bruijn's fit (Grace 1982 data); checked against a secondary restatement of the fit
+#: (citing Fortelny's 2019 review).
 NO_BREAKUP_VISCOSITY_RATIO = 4.08
 
 #: Volume fractions used by the Princen & Kiss relations (from memory, not checked against the
@@ -133,8 +134,9 @@ def taylor(phi, viscosity_ratio=1.0):
     The limits: lambda -> inf gives Einstein's rigid spheres, 1 + 2.5 phi; lambda = 0 gives
     bubbles, 1 + phi. First order in phi: valid for phi below a few percent (0.03 is used
     as the range here, as for Einstein's relation; common practice, no source). Equation as
-    in [1]_ from memory, not checked against the paper; it is the one consistent with the
-    limits of [2]_ and [3]_.
+    in [1]_, checked against secondary restatements (several notes citing [1]_ write
+    1 + 2.5 phi (lambda + 0.4)/(lambda + 1), the same expression); it is the one consistent
+    with the limits of [2]_ and [3]_.
 
     References
     ----------
@@ -742,12 +744,17 @@ def critical_capillary_de_bruijn(viscosity_ratio):
 
     Notes
     -----
-    .. math:: \log_{10}\mathrm{Ca}_{crit} = -0.506 - 0.0994\,\log_{10}\lambda
+    .. math:: \log_{10}\mathrm{Ca}_{crit} = -0.506 - 0.0995\,\log_{10}\lambda
               + 0.124\,(\log_{10}\lambda)^2 - \frac{0.115}{\log_{10}\lambda - \log_{10}4.08}
 
-    Coefficients from memory, not checked against [1]_; the shape (minimum about 0.4-0.5 near
-    lambda = 1, no breakup above lambda of about 4) agrees with the breakup curve as
-    described in the abstract of [3]_ (seen). Steady simple shear only: elongational flow
+    Coefficients checked against a secondary restatement of the fit (one that cites
+    Fortelny's 2019 review). It prints 0.0995 for the coefficient of log(lambda), where we
+    had recalled 0.0994; we use 0.0995 because it is the written source (the two differ by
+    under 0.1 % in Ca_crit between lambda = 1e-2 and 4). The restatement does not name the
+    log base; base 10 is kept because it gives Ca_crit = 0.481 at lambda = 1, the commonly
+    quoted minimum of about 0.5, where natural logs would not. The shape (minimum about
+    0.4-0.5 near lambda = 1, no breakup above lambda of about 4) agrees with the breakup
+    curve as described in the abstract of [3]_ (seen). Steady simple shear only: elongational flow
     breaks droplets at any lambda and at lower Ca, and real mixers combine both.
 
     References
@@ -776,7 +783,7 @@ def critical_capillary_de_bruijn(viscosity_ratio):
               f"({DE_BRUIJN_LOWEST_RATIO:g} to {NO_BREAKUP_VISCOSITY_RATIO:g}).")
     breaks = (lam > 0.0) & (lam < NO_BREAKUP_VISCOSITY_RATIO)
     x = np.log10(np.where(breaks, lam, 1.0))
-    log_ca = (-0.506 - 0.0994 * x + 0.124 * x**2
+    log_ca = (-0.506 - 0.0995 * x + 0.124 * x**2
               - 0.115 / (x - np.log10(NO_BREAKUP_VISCOSITY_RATIO)))
     # lambda = 0 (bubbles): the fit grows without bound as lambda -> 0; below about 1e-40
     # it passes the float range, which is the same answer (no breakup), so overflow is inf.
@@ -917,9 +924,10 @@ def relaxation_time_oldroyd(viscosity_ratio):
     -----
     .. math:: \hat\lambda = \frac{(19\lambda + 16)(2\lambda + 3)}{40(\lambda + 1)}
 
-    The dilute (first order in phi) limit of Oldroyd's relaxation time [1]_; from memory,
-    not checked against the paper. At lambda = 0 it is 6/5, the constant that Llewellin,
-    Mader & Wilson [2]_ use for bubbles (from memory). It grows like 19 lambda / 20 for
+    The dilute (first order in phi) limit of Oldroyd's relaxation time [1]_, checked
+    against a secondary restatement (a thesis code citing [1]_). At lambda = 0 it is 6/5,
+    the constant K = 6/5 that Llewellin, Mader & Wilson [2]_ use for bubbles (seen restated
+    in two independent codes). It grows like 19 lambda / 20 for
     viscous droplets.
 
     References
@@ -1017,14 +1025,16 @@ def deformation_thinning(phi, capillary_number, viscosity_ratio=1.0, model="phan
 
     *Bubbles (lambda = 0)*: hat-lambda = 6/5, eta_0 = 1/(1 - phi) (the bubble limit of
     Phan-Thien & Pham) and the exponent 8/3, so eta_inf = (1 - phi)^(5/3): the relation of
-    [1]_ in the form recommended in [2]_. From memory, not checked against the papers; the
-    same form is in two public codes (a MATLAB function citing [1]_ as extended by [2]_,
-    and pyflowgo's bubble relative-viscosity model).
+    [1]_ in the form recommended in [2]_, with K = 6/5 and m = 2: checked against secondary
+    restatements, the same form being in two independent public codes (a MATLAB function
+    citing [1]_ as extended by Eqs. 2-3 of [2]_, and pyflowgo's bubble relative-viscosity
+    model).
 
     *Any lambda (our construction)*: hat-lambda is Oldroyd's dilute relaxation time [3]_;
     [eta]_0 = (5 lambda + 2)/(2 lambda + 2) is Taylor's intrinsic viscosity and
     [eta]_inf = 5 (lambda - 1)/(2 lambda + 3) the one of Oldroyd's dilute theory at high Ca
-    [3]_ (from memory; -5/3 at lambda = 0, 5/2 for rigid spheres). Their difference, the
+    [3]_ (it follows from the restated relaxation time; -5/3 at lambda = 0, 5/2 for rigid
+    spheres). Their difference, the
     dilute loss of intrinsic viscosity on deformation, is carried to concentrations by the
     differential scheme as a factor on eta_0, as [1]_ and [2]_ do for bubbles. It is
     positive for every lambda, so the relation never thickens; it vanishes like
@@ -1236,7 +1246,11 @@ def yield_stress_princen_kiss(phi, interfacial_tension_N_per_m, sauter_diameter_
     .. math:: \tau_y = \frac{\Gamma}{R_{32}}\,\phi^{1/3}\,Y(\phi),\qquad
               Y(\phi) = -0.080 - 0.114\,\log_{10}(1 - \phi)
 
-    Equation and fitted range (0.83 to 0.98) from memory, not checked against [1]_.
+    Y(phi) checked against a secondary restatement, which does not state the log base;
+    base 10 is kept, as recalled: it puts the zero of Y at phi = 0.80, near where the
+    droplets unjam (about 0.71), whereas natural logs would put it at phi = 0.50, far below
+    droplet packing. The fitted
+    range (0.83 to 0.98) is from memory, not checked against [1]_.
 
     References
     ----------

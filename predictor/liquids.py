@@ -316,8 +316,9 @@ def arrhenius_shift(temperature_K, reference_temperature_K, activation_temperatu
 
     References
     ----------
-    .. [1] E. N. da C. Andrade, "A theory of the viscosity of liquids. Part I," Phil. Mag.,
-       vol. 17, no. 112, pp. 497-511, 1934 (from memory, not checked against the source).
+    .. [1] E. N. da C. Andrade, "A theory of the viscosity of liquids. Part I," Phil. Mag.
+       Ser. 7, vol. 17, no. 112, pp. 497-511, 1934; Part II, pp. 698-732, 1934 (Part II's
+       citation seen).
 
     Examples
     --------
@@ -357,8 +358,8 @@ def arrhenius_viscosity(temperature_K, reference_viscosity_Pa_s, reference_tempe
 
     References
     ----------
-    .. [1] E. N. da C. Andrade, Phil. Mag., vol. 17, pp. 497-511, 1934 (from memory, not
-       checked against the source).
+    .. [1] E. N. da C. Andrade, "A theory of the viscosity of liquids," Phil. Mag. Ser. 7,
+       vol. 17, pp. 497-511 and 698-732, 1934 (Part II's citation seen).
 
     Examples
     --------
@@ -402,8 +403,8 @@ def arrhenius_from_two_points(temperature_1_K, viscosity_1_Pa_s, temperature_2_K
 
     References
     ----------
-    .. [1] E. N. da C. Andrade, Phil. Mag., vol. 17, pp. 497-511, 1934 (from memory, not
-       checked against the source).
+    .. [1] E. N. da C. Andrade, "A theory of the viscosity of liquids," Phil. Mag. Ser. 7,
+       vol. 17, pp. 497-511 and 698-732, 1934 (Part II's citation seen).
 
     Examples
     --------

@@ -211,9 +211,11 @@ def ouchiyama_tanaka(diameters_m, fractions, phi_mono=0.64):
         \frac{\sum (D_i+\bar D)^2\left(1 - \frac{3}{8}\frac{\bar D}{D_i+\bar D}\right) f_i}
              {\sum\left[D_i^3 - (D_i-\bar D)^3 H(D_i-\bar D)\right] f_i}
 
-    For equal spheres :math:`\beta = 8\phi_0` and :math:`\phi = \phi_0`. The equations are
-    written from memory (not checked against the source); they pass the equal-sphere
-    limit, which the test suite checks. No fitted range; compared by the authors with
+    For equal spheres :math:`\beta = 8\phi_0` and :math:`\phi = \phi_0`. The coordination
+    constant (4/13)(8 phi_0 - 1), the factor (1 - (3/8) D/(D_i + D)) and the porosity sum
+    were checked against a secondary restatement (open code citing Ouchiyama & Tanaka,
+    Ind. Eng. Chem. Fundam. 25, 125, 1986); they pass the equal-sphere limit, which the
+    test suite checks. No fitted range; compared by the authors with
     packings of mixed beads. As written here the expression exceeds the Furnas bound for
     blends of very different sizes (ratio above about 5) rich in the coarse size: treat it
     as the fine-matrix picture there.
@@ -1246,7 +1248,8 @@ def packing_estimates(diameters_m, fractions=None, basis: str = "volume",
 # non-spherical particles
 # ------------------------------------------------------------------------------------------
 #: phi_m1 and b of the phi_max(aspect ratio) fit of Mueller, Llewellin & Mader (2011), for
-#: smooth and rough particles (from memory, not checked against the source).
+#: smooth and rough particles (checked against a secondary restatement: two independent
+#: volcanology codes citing Eq. 49 of Mader, Llewellin & Mueller 2013).
 ASPECT_RATIO_FITS = {"smooth": (0.656, 1.08), "rough": (0.55, 1.00)}
 
 
@@ -1279,8 +1282,9 @@ def phi_max_for_aspect_ratio(aspect_ratio, surface: str = "smooth"):
     -----
     .. math:: \phi_m = \phi_{m1}\exp\left[-\frac{(\log_{10} r_p)^2}{2 b^2}\right]
 
-    smooth :math:`\phi_{m1} = 0.656`, :math:`b = 1.08`; rough 0.55 and 1.00 (from memory,
-    not checked against the source). Valid 0.04 <= r_p <= 22 (seen in [2]_). Note that
+    smooth :math:`\phi_{m1} = 0.656`, :math:`b = 1.08`; rough 0.55 and 1.00 (checked
+    against a secondary restatement: two independent codes citing Eq. 49 of Mader,
+    Llewellin & Mueller 2013). Valid 0.04 <= r_p <= 22 (seen in [2]_). Note that
     phi_m1 = 0.656 for spheres is the fit's value, not the random close packing 0.64.
 
     References

@@ -23,7 +23,7 @@ from dataclasses import dataclass, field
 import numpy as np
 import pandas as pd
 
-from . import charts_export, design
+from . import charts_export, design, labels
 from . import formulation as fm
 from .cli import CAUTIONS
 from .errors import LoadlineError
@@ -55,12 +55,15 @@ class Report:
     notes: list[str]
 
 
-def _g(value, digits: int = 4) -> str:
+def _g(value, digits: int = 4, quantity: str = "") -> str:
+    """A number to 4 significant digits; words where there is no number (see labels)."""
     if value is None:
         return ""
     if isinstance(value, float | np.floating):
         if math.isnan(value):
             return ""
+        if math.isinf(value):
+            return labels.value_words(value, quantity)
         return f"{value:.{digits}g}"
     return str(value)
 
@@ -91,12 +94,14 @@ def liquid_table(formulation: fm.Formulation, viscosity_unit: str) -> pd.DataFra
     rows = [("name", liq.name, ""), ("kind", liq.preset or liq.law, ""),
             ("temperature", f"{liq.temperature_K - 273.15:.4g}", "degC"),
             ("density", _g(liq.density_kg_per_m3), "kg/m3"),
-            ("Newtonian-view viscosity", _g(from_si(mix.liquid_viscosity_Pa_s, viscosity_unit,
-                                                    "viscosity")), viscosity_unit)]
+            ("Newtonian-view viscosity" if liq.preset or liq.law == "newtonian"
+             else "apparent viscosity at 1 1/s",
+             _g(from_si(mix.liquid_viscosity_Pa_s, viscosity_unit, "viscosity")), viscosity_unit)]
     if liq.preset == "glycerol-water":
         rows.append(("glycerol", _g(100 * liq.glycerol_mass_fraction), "wt%"))
     for name, value in liq.params.items():
-        rows.append((name, _g(float(value)), ""))
+        words, unit = labels.name_label(name, ("liquid",))
+        rows.append((words, _g(float(value)), unit))
     return pd.DataFrame(rows, columns=["quantity", "value", "unit"])
 
 
@@ -152,7 +157,9 @@ def build_report(form: fm.Formulation, viscosity_unit: str = "Pa*s",
     if mix.phi_droplets > 0:
         rel.append(("droplets relation", form.droplet_model))
     for name, value in form.model_params.items():
-        rel.append((f"parameter {name}", _g(float(value))))
+        words, unit = labels.name_label(name, ("suspension", "emulsion"), form.model)
+        rel.append((f"parameter: {words}" + ("" if unit == "–" else f" [{unit}]"),
+                    _g(float(value))))
     sec.tables.append(("Relations chosen", pd.DataFrame(rel, columns=["item", "value"])))
     sections.append(sec)
 
@@ -388,11 +395,12 @@ padding:.6rem 1rem}.sub{color:#555}figure{margin:1rem 0}
 def _html_table(frame: pd.DataFrame) -> str:
     head = "".join(f"<th>{html.escape(str(c))}</th>" for c in frame.columns)
     body = []
+    quantities = [labels.quantity_of(str(c)) for c in frame.columns]
     for row in frame.itertuples(index=False):
         cells = []
-        for value in row:
+        for value, quantity in zip(row, quantities, strict=True):
             numeric = isinstance(value, int | float | np.number) and not isinstance(value, bool)
-            text = _g(value) if numeric else str(value)
+            text = _g(value, quantity=quantity) if numeric else str(value)
             cells.append(f"<td class='n'>{html.escape(text)}</td>" if numeric
                          else f"<td>{html.escape(text)}</td>")
         body.append("<tr>" + "".join(cells) + "</tr>")
@@ -482,7 +490,9 @@ def render_svg(report: Report) -> str:
 
 
 def _text_table(frame: pd.DataFrame) -> str:
-    cells = [[(_g(v) if isinstance(v, float | np.floating) else str(v))[:60] for v in row]
+    quantities = [labels.quantity_of(str(c)) for c in frame.columns]
+    cells = [[(_g(v, quantity=q) if isinstance(v, float | np.floating) else str(v))[:60]
+              for v, q in zip(row, quantities, strict=True)]
              for row in frame.itertuples(index=False)]
     heads = [str(c) for c in frame.columns]
     widths = [max([len(h)] + [len(r[i]) for r in cells]) for i, h in enumerate(heads)]

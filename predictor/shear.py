@@ -294,8 +294,14 @@ def wyart_cates_jamming_fraction(shear_stress_Pa, onset_stress_Pa, phi_frictionl
     .. math::
         \phi_J = f\,\phi_\mu + (1-f)\,\phi_0, \qquad f = 1 - e^{-\sigma/\sigma^*}
 
-    From Wyart & Cates [1]_ (formula from memory; the two jamming points are described in
-    the abstract of [2]_).
+    The form of phi_J is from Wyart & Cates [1]_ (from memory; the two jamming points are
+    described in the abstract of [2]_). The fraction of frictional contacts f is our
+    choice: public research codes write either f = 1 - exp(-sigma/sigma*) or
+    f = exp(-sigma*/sigma), and which one [1]_ and [2]_ use was not checked. We use the
+    first because it rises linearly from zero (f ~ sigma/sigma*), so the thickening sets in
+    gradually from the onset stress, and f(sigma*) = 1 - 1/e; the second stays
+    exponentially small up to about sigma*/3 and gives f(sigma*) = 1/e. The shear jamming
+    fraction at stresses far above sigma* is the same either way.
 
     References
     ----------

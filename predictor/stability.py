@@ -139,7 +139,8 @@ def richardson_zaki_exponent(reynolds):
     r"""Richardson-Zaki exponent n from the particle Reynolds number (no wall effect).
 
     The piecewise correlation of Richardson & Zaki [1]_ for a vessel much wider than the
-    particles (d/D -> 0). Coefficients from memory, not checked against the source.
+    particles (d/D -> 0). Coefficients checked against a secondary restatement (a
+    transcription of the 1997 reprint of [1]_).
 
     Parameters
     ----------

@@ -213,10 +213,18 @@ def quemada(phi, phi_max=0.64):
 
     Its dilute limit is 1 + (2/phi_max) phi, i.e. Einstein's only for phi_max = 0.8.
 
+    Citation: the form (1 - phi/phi_m)^-2 was checked against open codes; one of them cites
+    Quemada's 1998 paper [2]_ for it rather than the 1977 one [1]_. We cite [1]_ as the
+    origin, where Quemada derived the exponent 2 from minimum energy dissipation, and [2]_
+    as the restatement actually read; both give the same formula, so the choice changes no
+    number.
+
     References
     ----------
     .. [1] D. Quemada, "Rheology of concentrated disperse systems and minimum energy
        dissipation principle," Rheol. Acta, vol. 16, pp. 82-94, 1977.
+    .. [2] D. Quemada, "Rheological modelling of complex fluids. I. The concept of effective
+       volume fraction revisited," Eur. Phys. J. Appl. Phys., vol. 1, pp. 119-127, 1998.
 
     Examples
     --------
@@ -445,8 +453,8 @@ def thomas(phi):
     -----
     .. math:: \eta_r = 1 + 2.5\,\phi + 10.05\,\phi^2 + 0.00273\,e^{16.6\,\phi}
 
-    Coefficients from memory, not checked against [1]_. It does not diverge; do not use it
-    past phi of about 0.6.
+    Coefficients checked against a secondary restatement (an open CFD code's slurry
+    viscosity model citing [1]_). It does not diverge; do not use it past phi of about 0.6.
 
     References
     ----------

@@ -43,10 +43,10 @@ def test_demo_table_every_row_predicted(demo_result):
 
 
 def test_row_equals_single_formulation_built_by_hand(demo_result):
-    # Outside check: "paint B1 (one size)" built by hand with the public dataclasses,
+    # Outside check: "paint base B1 (one size)" built by hand with the public dataclasses,
     # then formulation.predict and formulation.max_loading, compared with its batch row.
     _, frame = demo_result
-    row = frame[frame["candidate"] == "paint B1 (one size)"].iloc[0]
+    row = frame[frame["candidate"] == "paint base B1 (one size)"].iloc[0]
     form = fm.Formulation(
         liquid=fm.Liquid(name="water", preset="water", temperature_K=298.15,
                          density_kg_per_m3=997.0),

@@ -20,7 +20,7 @@ phis = st.floats(0.0, 0.99)
 
 
 def taylor_coefficient(lam):
-    """(2.5 lambda + 1)/(lambda + 1): Taylor, Proc. R. Soc. A 138, 41, 1932 (from memory)."""
+    """(2.5 lambda + 1)/(lambda + 1): Taylor, Proc. R. Soc. A 138, 41, 1932 (restated)."""
     return 2.5 if np.isinf(lam) else (2.5 * lam + 1.0) / (lam + 1.0)
 
 
@@ -59,7 +59,7 @@ def test_taylor_rigid_limit_is_einstein(phi):
 
 
 def test_taylor_bubble_limit():
-    # Taylor 1932 with lambda = 0: 1 + phi (from memory).
+    # Taylor 1932 with lambda = 0: 1 + phi (checked against a secondary restatement).
     assert emulsion.taylor(0.02, 0.0) == pytest.approx(1.02)
 
 
@@ -331,7 +331,8 @@ def test_jammed_flow_refuses_unknown_relation():
 
 # ---- Shear thinning by droplet deformation --------------------------------------------------
 #
-# Sources for the checks below (all from memory, not checked against the papers):
+# Sources for the checks below (checked against secondary restatements: two independent
+# codes and a thesis code):
 # LMW 2002 = E. W. Llewellin, H. M. Mader and S. D. R. Wilson, "The constitutive equation and
 #   flow dynamics of bubbly magmas", Geophys. Res. Lett. 29(24), 2170, 2002, steady-flow form
 #   eta_r = eta_inf + (eta_0 - eta_inf) / (1 + (6/5 Ca)^2);
@@ -352,7 +353,7 @@ def llewellin_mader(phi, ca):
 
 
 def high_shear_intrinsic(lam):
-    """Oldroyd 1953 (from memory): 5(K - 1)/(2K + 3); 5/2 for rigid spheres."""
+    """Oldroyd 1953 (secondary restatement): 5(K - 1)/(2K + 3); 5/2 for rigid spheres."""
     return 2.5 if np.isinf(lam) else 5.0 * (lam - 1.0) / (2.0 * lam + 3.0)
 
 
@@ -361,7 +362,7 @@ def high_shear_intrinsic(lam):
 @pytest.mark.parametrize("phi", [0.01, 0.1, 0.3, 0.5, 0.7])
 @pytest.mark.parametrize("ca", [0.0, 0.05, 0.5, 0.8333, 3.0, 100.0])
 def test_bubbles_follow_llewellin_mader(phi, ca):
-    # LMW 2002, Eq. of the steady-flow viscosity, as recommended by MLM 2013 (from memory).
+    # LMW 2002, steady-flow viscosity as recommended by MLM 2013 (secondary restatement).
     got = emulsion.deformation_thinning(phi, ca, viscosity_ratio=0.0)
     assert got == pytest.approx(llewellin_mader(phi, ca), rel=1e-12)
 
@@ -374,7 +375,7 @@ def test_bubble_relation_is_half_thinned_at_ca_five_sixths():
 
 
 def test_oldroyd_relaxation_time_at_the_limits():
-    # Oldroyd 1953 (from memory): 6/5 for bubbles, the constant of LMW 2002; 35*5/80 for
+    # Oldroyd 1953 (restated): 6/5 for bubbles, the constant of LMW 2002; 35*5/80 for
     # equal viscosities (hand calculation); grows like 19K/20; rigid spheres never relax.
     assert emulsion.relaxation_time_oldroyd(0.0) == pytest.approx(6.0 / 5.0, rel=1e-15)
     assert emulsion.relaxation_time_oldroyd(1.0) == pytest.approx(35.0 * 5.0 / 80.0, rel=1e-15)
@@ -410,7 +411,7 @@ def test_zero_capillary_number_gives_the_chosen_relation(model, lam):
 @pytest.mark.filterwarnings("ignore::predictor.errors.ValidityWarning")
 @pytest.mark.parametrize("lam", [0.0, 0.3, 1.0, 10.0])
 def test_dilute_slopes_are_taylor_at_rest_and_oldroyd_at_high_shear(lam):
-    # Taylor 1932: slope (2.5K + 1)/(K + 1) at Ca -> 0; Oldroyd 1953 (from memory):
+    # Taylor 1932: slope (2.5K + 1)/(K + 1) at Ca -> 0; Oldroyd 1953 (restated):
     # 5(K - 1)/(2K + 3) at Ca -> inf; at K = 0 that is -5/3 (LMW 2002, MLM 2013).
     phi = 1e-7
     rest = (emulsion.deformation_thinning(phi, 0.0, lam) - 1.0) / phi
@@ -423,7 +424,7 @@ def test_dilute_slopes_are_taylor_at_rest_and_oldroyd_at_high_shear(lam):
 @pytest.mark.filterwarnings("ignore::predictor.errors.ValidityWarning")
 @pytest.mark.parametrize("phi", [0.05, 0.3, 0.6, 0.9])
 def test_bubbles_at_high_capillary_number_tend_to_five_thirds_power(phi):
-    # MLM 2013 (from memory): eta_inf = (1 - phi)^(5/3) for bubbles; dilute slope -5/3.
+    # MLM 2013 (restated): eta_inf = (1 - phi)^(5/3) for bubbles; dilute slope -5/3.
     got = emulsion.deformation_thinning(phi, 1e8, 0.0)
     assert got == pytest.approx((1.0 - phi) ** (5.0 / 3.0), rel=1e-12)
     assert got < 1.0       # deformed bubbles make the flow easier than the liquid alone

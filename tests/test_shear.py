@@ -2,9 +2,9 @@
 
 Outside references: the definitions of the Peclet number and reduced stress (Bergenholtz,
 Brady & Vicic 2002; Krieger 1972); the limits of the Krieger interpolation and of the
-Wyart-Cates model (Phys. Rev. Lett. 112, 098302, 2014; formulas from memory); a closed-form
-(quadratic) solution of Krieger's interpolation in a Newtonian liquid (algebra); a plain
-scipy root finder point by point; a brute-force evaluation of the Wyart-Cates flow curve for
+Wyart-Cates model (Phys. Rev. Lett. 112, 098302, 2014; phi_J from memory, f our choice); a
+closed-form (quadratic) solution of Krieger's interpolation in a Newtonian liquid (algebra); a
+plain scipy root finder point by point; a brute-force evaluation of the Wyart-Cates flow curve for
 the S-shape; the Chateau-Ovarlez-Trung closed form for a Herschel-Bulkley liquid; the
 closed form for a Newtonian liquid against the flow-curve solve, its plateaus (Krieger &
 Dougherty 1959; Krieger 1972) and its midpoint by hand.

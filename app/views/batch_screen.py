@@ -137,9 +137,10 @@ def results() -> None:
              or re.search(r"\] *$", c) and not c.startswith(("ingredient", "liquid ", "glycerol",
                                                               "temperature"))
              or c.endswith(("verdict", "regime")) or c in ("settling", "warnings")]
-    st.dataframe(flagged[shown], hide_index=True, width="stretch",
+    table = widgets.table_words(flagged[shown])
+    st.dataframe(table, hide_index=True, width="stretch",
                  column_config={c: st.column_config.NumberColumn(format="%.4g")
-                                for c in shown if flagged[c].dtype.kind == "f"})
+                                for c in shown if table[c].dtype.kind == "f"})
     st.download_button("Results (CSV)", data=functools.partial(widgets.csv_bytes, result),
                        file_name="batch-screen-results.csv", mime="text/csv",
                        key="batch_download", on_click="ignore", icon=":material/download:")

@@ -152,7 +152,7 @@ def body() -> None:
         widgets.show_warnings(messages)
     if fit["comparison"]:
         st.subheader("Relations compared on the same data", anchor=False)
-        comp = pd.DataFrame(fit["comparison"])
+        comp = widgets.table_words(pd.DataFrame(fit["comparison"]))
         st.dataframe(comp, hide_index=True, width="stretch", column_config={
             c: st.column_config.NumberColumn(COMPARISON_HEADERS.get(c, c), format="%.4g")
             if comp[c].dtype.kind == "f" else st.column_config.Column(

@@ -8,12 +8,19 @@ import streamlit as st
 
 import predictor
 from app import charts, compute, state, widgets
+from predictor import labels
 from predictor.units import from_si, to_si
 
 state.init()
 ss = st.session_state
 JAMMED = {"mason": "Mason et al.", "princen-kiss": "Princen & Kiss"}
 BRANCH_NAMES = {"direct": "as designed", "inverted": "inverted"}
+CREAM_DEMO = "hand_cream.loadline.json"
+
+
+def _open_cream() -> None:
+    widgets.open_demo_file(state.DEMO_DIR / CREAM_DEMO)
+    widgets.request_full_run()          # the sidebar shows the new scenario
 
 
 def controls(drops: list[dict]) -> None:
@@ -60,6 +67,8 @@ def body() -> None:
         st.info("This scenario has no droplet ingredient. Add one in the sidebar (kind: "
                 "Droplets) to explore phase ratios, or open the hand-cream demo.",
                 icon=":material/info:")
+        st.button("Open the hand-cream demo (invented)", key="drop_open_cream",
+                  on_click=_open_cream, icon=":material/science:")
         return
     metrics = st.container()
     left, right = st.columns([1, 3], gap="large")
@@ -78,8 +87,10 @@ def body() -> None:
                      "process shear rate")
         target = None if ss["drop_target"] is None else to_si(
             ss["drop_target"], v_unit, "viscosity", "target viscosity")
+        # A thickened (non-Newtonian) continuous phase counts at the process shear rate.
+        eta_c = compute.liquid_viscosity_at(scenario, rate)
         result = compute.phase_ratio(
-            (drop["continuous_viscosity_Pa_s"], drop["droplet_viscosity_Pa_s"],
+            (eta_c, drop["droplet_viscosity_Pa_s"],
              drop["interfacial_tension_N_per_m"], drop["sauter_diameter_m"]),
             ss["droplet_model"], rate, float(ss["drop_phi_max"]), bool(ss["drop_rigid"]),
             ss["drop_jammed"], target, ss["drop_branch"], bool(ss["drop_thinning"]))
@@ -106,11 +117,13 @@ def body() -> None:
              "Which liquid as the continuous phase gives the thinner emulsion here: the one "
              "designed to be continuous, or the other (inverted)."),
             (f"Largest stable droplet [{state.label(s_unit)}]",
-             "∞" if not np.isfinite(breakup)
+             "no breakup" if not np.isfinite(breakup)
              else widgets.fmt(from_si(breakup, s_unit, "length"), 3),
-             "In simple shear at the process shear rate; larger droplets break. ∞: simple "
-             "shear cannot break these droplets (viscosity ratio too high).",
-             f"now D32 {widgets.fmt(from_si(drop['sauter_diameter_m'], s_unit, 'length'), 3)}"),
+             "In simple shear at the process shear rate; larger droplets break. "
+             + labels.value_words(float("inf"), "breakup diameter").capitalize() + ": "
+             "simple shear cannot break droplets that viscous, whatever their size.",
+             f"now D32 {widgets.fmt(from_si(drop['sauter_diameter_m'], s_unit, 'length'), 3)}"
+             if np.isfinite(breakup) else "viscosity ratio above 4 (simple shear)"),
             ("Deformation thinning", "–" if row is None or row["regime"] == "jammed"
              else f"× {row['thinning_factor']:.3g}",
              "Viscosity with the droplets deformed at the process shear rate over the "

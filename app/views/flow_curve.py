@@ -88,10 +88,13 @@ def body() -> None:
             (f"Viscosity [{state.label(v_unit)}]",
              widgets.viscosity_value(point["viscosity_Pa_s"]), "At the process shear rate.",
              f"at {widgets.fmt(ss['process_shear_rate'])} {state.label(r_unit)}"),
-            ("Shear stress there [Pa]", widgets.fmt(point["shear_stress_Pa"]), None),
+            ("Shear stress there [Pa]",
+             widgets.number_text(point["shear_stress_Pa"], "shear stress"), None),
             ("Regime there", str(regime) if regime is not None else "–",
              "Plateau, thinning, thickening, yield or jammed, from the flow curve."),
-            ("Headroom φ/φmax", f"{curve.attrs.get('headroom', float('nan')):.2f}", None),
+            ("Headroom φ/φmax",
+             widgets.number_text(curve.attrs.get("headroom"), "headroom", spec=".2f"),
+             "Effective solids volume fraction over the packing limit; 1 = jammed."),
         ]
         for key, rate_si in list(onsets.items())[:2]:
             items.append((_marker_label(key) + f" [{state.label(r_unit)}]",
@@ -109,11 +112,12 @@ def body() -> None:
                              "label": _marker_label(k)} for k, v in onsets.items()])
     drawable = np.isfinite(frame["viscosity"]) & (frame["viscosity"] > 0)
     if not drawable.any():
+        headroom = widgets.number_text(curve.attrs.get("headroom"), "headroom", spec=".2f")
         with right:
             st.warning(f"No flow at any shear rate from {widgets.rate_text(low)} to "
                        f"{widgets.rate_text(high)} 1/s: the solids are at or above the packing "
-                       f"limit (headroom φ/φmax = {curve.attrs.get('headroom', float('nan')):.2f})"
-                       ", so there is no flow curve to draw. Lower the loading on the sidebar.",
+                       f"limit (headroom φ/φmax = {headroom}), so there is no flow curve to "
+                       "draw. Lower the loading on the sidebar.",
                        icon=":material/block:")
             widgets.show_warnings(messages)
         process_table()
@@ -166,9 +170,10 @@ def process_table() -> None:
                                 for a, b in zip(raw["regime_low"], raw["regime_high"],
                                                 strict=True)],
     })
+    frame = widgets.table_words(frame)
     st.dataframe(frame, hide_index=True, width="stretch",
                  column_config={c: st.column_config.NumberColumn(format="%.4g")
-                                for c in frame.columns[1:5]})
+                                for c in frame.columns[1:5] if frame[c].dtype.kind == "f"})
     st.download_button("Table (CSV)", data=functools.partial(widgets.csv_bytes, raw),
                        file_name="process-windows.csv", mime="text/csv", key="process_csv",
                        on_click="ignore", icon=":material/table:")

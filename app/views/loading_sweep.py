@@ -5,6 +5,7 @@ import streamlit as st
 
 import predictor
 from app import charts, compute, state, widgets
+from predictor import labels
 from predictor import scenario as sc
 from predictor.units import from_si, to_si
 
@@ -57,12 +58,11 @@ def relation_controls(summary: dict | None) -> None:
         low, high = p.bounds
         value = ss.get(key, spec.defaults().get(p.name, low))
         if value is None or not low <= float(value) <= high:
-            st.warning(f"{p.name} = {value} lies outside {low:g} to {high:g}; set to the "
-                       "nearest bound.")
+            st.warning(f"{labels.param_words(p).capitalize()} = {value} lies outside "
+                       f"{low:g} to {high:g}; set to the nearest bound.")
             value = low if value is None or float(value) < low else high
         ss[key] = float(value)
-        unit = "" if p.unit in ("-", "") else f" [{p.unit}]"
-        st.slider(f"{p.description}{unit}", min_value=float(low), max_value=float(high),
+        st.slider(labels.param_label(p), min_value=float(low), max_value=float(high),
                   step=_step(low, high), key=key, format="%.3f",
                   on_change=_clear_calibration)
     others = [n for n in names if n != ss["model"]]
@@ -160,7 +160,8 @@ def body() -> None:
         widgets.metric_row([*[
             (f"Viscosity now [{state.label(unit)}]", widgets.viscosity_value(s["viscosity_Pa_s"]),
              "At the current loading, Newtonian (low-shear) view."),
-            ("Relative viscosity", "∞" if jammed else widgets.fmt(s["relative_viscosity"]),
+            ("Relative viscosity", widgets.number_text(
+                float("inf") if jammed else s["relative_viscosity"], "relative viscosity"),
              "Viscosity of the formulation over that of the liquid."),
             ("Headroom φ/φmax", f"{s['headroom']:.2f}",
              "Effective solids volume fraction over the packing limit; 1 = jammed."),

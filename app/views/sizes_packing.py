@@ -21,6 +21,14 @@ SOURCES = {"ingredient": "An ingredient of the scenario", "table": "A measured s
 KINDS = {"lognormal": "Lognormal (median, geometric std)",
          "rosin-rammler": "Rosin-Rammler (x63, uniformity)"}
 THIS = "(the distribution above)"
+DEMO_SIZES = "sizes_filler_coarse.csv"
+
+
+def _use_demo_table() -> None:
+    """The invented demo size table, as if uploaded."""
+    path = state.DEMO_DIR / DEMO_SIZES
+    ss["sz_table_bytes"], ss["sz_table_name"] = path.read_bytes(), path.name
+    ss["sz_source"], ss["sz_message"] = "table", ""
 
 
 def _uploaded() -> None:
@@ -55,6 +63,9 @@ def distribution(solids: list[dict]) -> str | None:
              format_func=SOURCES.get)
     st.file_uploader("Size table (CSV: 'size [um]' and 'passing [vol%]' or 'amount [vol%]')",
                      type=["csv"], key="sz_upload", on_change=_uploaded)
+    st.button("Use the demo size table (invented)", key="sz_demo", on_click=_use_demo_table,
+              icon=":material/science:",
+              help=f"{DEMO_SIZES}: an invented coarse filler, 7 size classes.")
     if ss.get("sz_message"):
         st.error(ss["sz_message"], icon=":material/error:")
     source = ss["sz_source"]
@@ -69,7 +80,7 @@ def distribution(solids: list[dict]) -> str | None:
         return next(s["dist_json"] for s in solids if s["name"] == ss["sz_ingredient"])
     if source == "table":
         if not ss.get("sz_table_bytes"):
-            st.info("Upload a size table above.")
+            st.info("Upload a size table above, or use the demo size table.")
             return None
         st.caption(f"Table: **{ss['sz_table_name']}**")
         return json.dumps(compute.size_table(ss["sz_table_bytes"], ss["sz_table_name"]),
@@ -169,8 +180,9 @@ def blend_section(dist_json: str | None, solids: list[dict]) -> None:
     if res["best_farris_shares"] is not None:
         farris = ", ".join(f"{n} {100 * s:.0f} %" for n, s in
                            zip(chosen, res["best_farris_shares"], strict=True))
+        eta_r = widgets.number_text(res["best_relative_viscosity_farris"], "relative viscosity")
         st.caption(f"Lowest viscosity in the multimodal (Farris) view: {farris}, relative "
-                   f"viscosity {res['best_relative_viscosity_farris']:.4g}.")
+                   f"viscosity {eta_r}.")
     widgets.show_warnings(result["warnings"])
 
 

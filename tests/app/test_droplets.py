@@ -6,7 +6,7 @@ import numpy as np
 import pytest
 
 from app import widgets
-from predictor import emulsion, phase_ratio
+from predictor import emulsion, formulation, liquids, phase_ratio
 from predictor.units import from_si
 from tests.app.conftest import chart_specs, delta, demo, messages, metric, page
 
@@ -14,9 +14,12 @@ from tests.app.conftest import chart_specs, delta, demo, messages, metric, page
 pytestmark = pytest.mark.filterwarnings("ignore::predictor.ValidityWarning")
 
 
-def _inputs(form):
+def _inputs(form, rate=100.0):
+    """The page's inputs: the continuous phase counts at the process shear rate (the cream's
+    water phase is a thickened, shear-thinning gel)."""
     ing = form.ingredients[0]
-    eta_c = form.liquid.newtonian_viscosity_Pa_s()
+    law, params = formulation.liquid_law_of(form.liquid)
+    eta_c = float(liquids.liquid_viscosity(rate, law, **params))
     return (eta_c, ing.droplet_viscosity_Pa_s, ing.interfacial_tension_N_per_m,
             ing.distribution().sauter_diameter_m)
 
@@ -39,19 +42,30 @@ def test_process_rate_changes_the_breakup_size():
     at = page("droplets", scenario="hand_cream", droplet_model="taylor").run()
     at.number_input(key="process_shear_rate").set_value(5000.0).run()
     assert not at.exception
-    eta_c, eta_d, gamma, _ = _inputs(demo("hand_cream"))
+    eta_c, eta_d, gamma, _ = _inputs(demo("hand_cream"), 5000.0)
     d = emulsion.max_stable_droplet_diameter(eta_c, 5000.0, gamma, eta_d / eta_c)
     shown = metric(at, "Largest stable droplet")
-    assert shown == ("∞" if not np.isfinite(d) else widgets.fmt(d * 1e6, 3))
+    assert np.isfinite(d) and shown == widgets.fmt(d * 1e6, 3)
+
+
+def test_droplets_too_viscous_to_break_are_said_in_words():
+    # de Bruijn's fit: simple shear cannot break droplets above a viscosity ratio of about 4
+    # (Grace's curve, from memory); the page says so instead of a bare infinity.
+    at = page("droplets", scenario="hand_cream", ing0_droplet_viscosity=1e6).run()
+    assert not at.exception
+    assert metric(at, "Largest stable droplet") == "no breakup"
+    assert delta(at, "Largest stable droplet") == "viscosity ratio above 4 (simple shear)"
+    shown = " ".join(str(m.value) for m in at.metric)
+    assert "∞" not in shown and "inf" not in shown
 
 
 def test_target_viscosity_gives_the_fraction():
     at = page("droplets", scenario="hand_cream").run()
-    at.number_input(key="drop_target").set_value(10.0).run()
+    at.number_input(key="drop_target").set_value(1000.0).run()
     assert not at.exception
     eta_c, eta_d, gamma, d32 = _inputs(demo("hand_cream"))
     phi = phase_ratio.phase_ratio_for_target(eta_c, eta_d, gamma, d32, 100.0,
-                                             target_viscosity_Pa_s=0.010,
+                                             target_viscosity_Pa_s=1.0,
                                              model="phan-thien-pham")
     assert metric(at, "Fraction for the target") == f"φ {phi:.3f}"
 
@@ -69,6 +83,15 @@ def test_scenario_without_droplets_says_so():
     assert "no droplet ingredient" in messages(at)
 
 
+def test_scenario_without_droplets_opens_the_cream_demo_in_one_click():
+    at = page("droplets", scenario="ceramic_slip").run()
+    at.button(key="drop_open_cream").click().run()
+    assert not at.exception
+    assert at.session_state["sc_name"] == demo("hand_cream").name
+    assert metric(at, "Viscosity now")          # the explorer is shown, on the cream
+    assert "no droplet ingredient" not in messages(at)
+
+
 def test_missing_interfacial_tension_is_named():
     at = page("droplets", scenario="hand_cream", ing0_tension=None).run()
     assert not at.exception
@@ -79,7 +102,7 @@ def test_deformation_thinning_is_shown_and_can_be_switched_off():
     at = page("droplets", scenario="hand_cream").run()
     at.number_input(key="process_shear_rate").set_value(3e4).run()
     assert not at.exception
-    eta_c, eta_d, gamma, d32 = _inputs(demo("hand_cream"))
+    eta_c, eta_d, gamma, d32 = _inputs(demo("hand_cream"), 3e4)
     on, off = (phase_ratio.phase_ratio_sweep(eta_c, eta_d, gamma, d32, 3e4,
                                              model="phan-thien-pham", deformation_thinning=t)
                for t in (True, False))

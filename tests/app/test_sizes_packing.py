@@ -34,6 +34,18 @@ def test_uploaded_size_table_is_read_and_given_to_an_ingredient():
     assert at.session_state["ing0_size_json"] == at.session_state["sz_dist_json"]
 
 
+def test_demo_size_table_in_one_click():
+    # No file to hand: one button loads the invented demo table, read as predictor reads it.
+    at = page("sizes_packing", scenario="ceramic_slip").run()
+    at.button(key="sz_demo").click().run()
+    assert not at.exception
+    assert at.session_state["sz_source"] == "table"
+    demo_table = pathlib.Path(__file__).parents[2] / "data_demo" / "sizes_filler_coarse.csv"
+    dist = batch.read_size_table(demo_table)
+    assert metric(at, "D50") == widgets.fmt(dist.d50_m * 1e6, 3)
+    assert metric(at, "φmax") == f"{packing.packing_estimates(dist).default:.3f}"
+
+
 def test_bad_size_table_names_the_problem():
     at = page("sizes_packing", scenario="ceramic_slip").run()
     at.file_uploader(key="sz_upload").set_value(

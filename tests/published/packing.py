@@ -3,6 +3,8 @@
 from tests.published import Case
 
 _ONE = {"diameters_m": [1e-6], "fractions": [1.0]}
+SEC_MLM = ("checked against a secondary restatement: two independent codes citing Eq. 49 of "
+           "Mader, Llewellin & Mueller 2013")
 _BERRYMAN = ("Berryman, Phys. Rev. A 27, 1053 (1983): random close packing of equal spheres "
              "0.64 +- 0.02")
 
@@ -28,10 +30,10 @@ CASES = [
          "(geometry, infinite size ratio)", models=("furnas",)),
     Case("packing.phi_max_for_aspect_ratio", {"aspect_ratio": 1.0}, "0.656",
          "Mueller, Llewellin & Mader, Geophys. Res. Lett. 38, L13316 (2011): phi_m1 of "
-         "smooth particles", note="from memory, not checked against the source"),
+         "smooth particles", note=SEC_MLM),
     Case("packing.phi_max_for_aspect_ratio", {"aspect_ratio": 1.0, "surface": "rough"},
          "0.55", "Mueller, Llewellin & Mader (2011): phi_m1 of rough particles",
-         note="from memory, not checked against the source"),
+         note=SEC_MLM),
     Case("packing.intrinsic_viscosity_for_aspect_ratio", {"aspect_ratio": 1.0}, "2.5",
          "Einstein, Ann. Phys. 1906/1911: [eta] = 2.5 for spheres"),
 ]

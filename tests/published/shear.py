@@ -1,8 +1,10 @@
 """Shear-rate relations: hand calculations from the defining equations as quoted.
 
 Peclet number and reduced stress follow their definitions (Bergenholtz, Brady & Vicic 2002;
-Krieger 1972); the Krieger interpolation and the Wyart-Cates model are recalled from memory
-(not checked against the papers), so those rows say so.
+Krieger 1972); the Krieger interpolation and the Wyart-Cates form of phi_J are recalled from
+memory (not checked against the papers), so those rows say so. The fraction of frictional
+contacts f = 1 - exp(-sigma/sigma*) is Loadline's choice between the two forms found in public
+code (see `shear.wyart_cates_jamming_fraction`); the last rows pin that choice.
 """
 
 from tests.published import Case
@@ -31,4 +33,20 @@ CASES = [
                                                 "phi_frictional": 0.58}, "0.58812",
          "Wyart & Cates (2014): f = 1 - e**-2 = 0.864665; 0.64 - 0.06 f",
          "hand calculation; from memory"),
+    # The choice of f: at sigma = sigma*, 1 - 1/e = 0.632121 of the contacts are frictional
+    # (the other form, exp(-sigma*/sigma), would give 1/e = 0.367879: phi_J = 0.617927).
+    Case("shear.wyart_cates_jamming_fraction", {"shear_stress_Pa": 1.0,
+                                                "onset_stress_Pa": 1.0,
+                                                "phi_frictionless": 0.64,
+                                                "phi_frictional": 0.58}, "0.602073",
+         "Loadline's choice f = 1 - exp(-sigma/sigma*): 0.64 - 0.06 (1 - 1/e)",
+         "hand calculation"),
+    # ... and at sigma = sigma*/10 f is nearly linear, 1 - e**-0.1 = 0.0951626 (the other
+    # form would give e**-10 = 4.5e-5, phi_J = 0.639997).
+    Case("shear.wyart_cates_jamming_fraction", {"shear_stress_Pa": 0.1,
+                                                "onset_stress_Pa": 1.0,
+                                                "phi_frictionless": 0.64,
+                                                "phi_frictional": 0.58}, "0.634290",
+         "Loadline's choice f = 1 - exp(-sigma/sigma*): 0.64 - 0.06 * 0.0951626",
+         "hand calculation"),
 ]

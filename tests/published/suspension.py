@@ -25,11 +25,12 @@ CASES = [
          "[eta] = 3.13, phi_max = 0.57: (1 - 0.4/0.57)**-1.7841 = 8.66",
          "hand calculation; parameters from memory", models=("krieger-dougherty",)),
     Case("suspension.quemada", {"phi": 0.4, "phi_max": 0.64}, "7.111",
-         "Quemada, Rheol. Acta 16 (1977) 82: (1 - 0.4/0.64)**-2 = 7.111",
-         "hand calculation; from memory", models=("quemada",)),
+         "Quemada, Rheol. Acta 16 (1977) 82: (1 - 0.4/0.64)**-2 = 7.111 (form restated with "
+         "Quemada, Eur. Phys. J. Appl. Phys. 1 (1998) 119)",
+         "hand calculation; checked against a secondary restatement", models=("quemada",)),
     Case("suspension.maron_pierce", {"phi": 0.3, "phi_max": 0.6}, "4.0",
          "Maron & Pierce, J. Colloid Sci. 11 (1956) 80: (1 - 0.5)**-2", "hand calculation; "
-         "from memory", models=("maron-pierce",)),
+         "checked against a secondary restatement (open codes)", models=("maron-pierce",)),
     Case("suspension.eilers", {"phi": 0.4, "phi_max": 0.64}, "5.444",
          "Eilers, Kolloid-Z. 97 (1941) 313: [1 + 1.25*0.4/(1 - 0.625)]**2 = (7/3)**2",
          "hand calculation; from memory", models=("eilers",)),
@@ -42,7 +43,8 @@ CASES = [
          "(1 + 0.75*1)**2", "hand calculation; from memory", models=("chong",)),
     Case("suspension.thomas", {"phi": 0.2}, "1.9775",
          "Thomas, J. Colloid Sci. 20 (1965) 267: 1 + 0.5 + 0.402 + 0.00273 exp(3.32)",
-         "hand calculation; from memory", models=("thomas",)),
+         "hand calculation; checked against a secondary restatement (an open CFD code)",
+         models=("thomas",)),
     Case("suspension.frankel_acrivos", {"phi": 0.5, "phi_max": 0.64}, "13.12",
          "Frankel & Acrivos, Chem. Eng. Sci. 22 (1967) 847: (9/8) c/(1 - c), "
          "c = 0.78125**(1/3) = 0.92083", "hand calculation; from memory",
