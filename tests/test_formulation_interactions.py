@@ -206,3 +206,22 @@ def test_cli_sweep_adds_the_yield_stress_column_only_with_flocs(capsys):
     assert main(["sweep", str(DEMO / "ceramic_slip.loadline.json"), "--points", "5",
                  "--json"]) == 0
     assert "yield stress of flocs [Pa]" not in json.loads(capsys.readouterr().out)["rows"][0]
+
+
+@pytest.mark.parametrize("argv, command", [
+    (["predict", "--shear-rate", "1 1/s"], "predict"), (["sweep", "--points", "5"], "sweep")])
+def test_json_with_interactions_validates_against_the_schema(argv, command, capsys):
+    import jsonschema
+
+    demo = str(DEMO / "alumina_slip_near_iep.loadline.json")
+    assert main([argv[0], demo, *argv[1:], "--json"]) == 0
+    out = json.loads(capsys.readouterr().out)
+    schema = json.loads((pathlib.Path(pr.__file__).parent / "schemas" /
+                         f"{command}.schema.json").read_text())
+    jsonschema.Draft202012Validator(schema).validate(out)
+    if command == "predict":
+        assert out["particle_interactions"][0]["verdict"] == "flocculated"
+        bad = dict(out, particle_interactions=[{**out["particle_interactions"][0],
+                                                "verdict": "sticky"}])
+        with pytest.raises(jsonschema.ValidationError):
+            jsonschema.Draft202012Validator(schema).validate(bad)
