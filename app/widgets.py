@@ -409,7 +409,8 @@ def interaction_summary(scenario: str) -> None:
         parts.append(f"**{row['ingredient']}**: {row['verdict']} ({how})")
     tau = result["yield_stress_Pa"]
     text = "; ".join(parts) + (
-        f". Network yield stress {fmt(tau, 3)} Pa (YODEL), added to the flow curve."
+        f". Network yield stress {number_text(tau, 'shear stress', 3)} Pa (YODEL), added to "
+        "the flow curve."
         if tau > 0 else ". No network yield stress at this loading.")
     st.info(f"Particle forces: {text} Details on the Particle forces page.",
             icon=":material/join_inner:")

@@ -321,8 +321,9 @@ def _interaction_section(form: fm.Formulation, rows: list[dict]) -> Section:
         "Pair energies of equal spheres in the Derjaguin approximation (van der Waals, "
         "double layer at constant potential after Hogg, Healy & Fuerstenau 1966, steric "
         "after Alexander and de Gennes).")
+    shown = f"{tau:.4g} Pa" if math.isfinite(tau) else "no flow (jammed)"
     sec.paragraphs.append(
-        f"Network yield stress at this loading: {tau:.4g} Pa (YODEL, Flatt & Bowen, J. Am. "
+        f"Network yield stress at this loading: {shown} (YODEL, Flatt & Bowen, J. Am. "
         "Ceram. Soc. 89, 1244, 2006), added to the flow curve. A yield stress changes pump "
         "start-up, line restart and mixing: confirm by measurement.")
     for row in rows:

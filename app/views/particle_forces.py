@@ -118,7 +118,8 @@ def body() -> None:
              "does not hold them off."),
             ("Debye length [nm]", widgets.fmt(verdict["debye_length_m"] * 1e9, 3),
              f"κa = {verdict['kappa_a']:.3g}"),
-            ("Yield stress now [Pa]", widgets.fmt(value["yield_stress_Pa"], 3),
+            ("Yield stress now [Pa]", widgets.number_text(value["yield_stress_Pa"],
+                                                          "shear stress", 3),
              "YODEL (Flatt & Bowen 2006) at the scenario's loading; 0 when stable or below "
              "percolation.", f"at φ = {value['phi']:.3f}"),
         ])

@@ -104,3 +104,13 @@ def test_hamaker_table_lists_the_module_table():
     at = page("particle_forces", scenario="ceramic_slip").run()
     table = at.dataframe[0].value
     assert list(table["Material"]) == list(interactions.HAMAKER_CONSTANTS)
+
+
+def test_a_jammed_slip_is_said_in_words():
+    # 95 wt% alumina is past the packing limit: no bare inf (tests/app/test_words.py rule)
+    at = page("particle_forces", scenario="ceramic_slip", ing0_loading=95.0,
+              pf_salt=1000.0).run()
+    assert not at.exception
+    shown = [str(m.value) for m in at.metric]
+    assert not [c for c in shown if c.strip().lower() in ("inf", "nan", "∞", "-inf")], shown
+    assert metric(at, "Yield stress now") == "no flow (jammed)"
