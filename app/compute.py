@@ -73,7 +73,9 @@ def safe_file_name(name: str, default: str = "upload") -> str:
 @st.cache_data(**CACHE)
 def scenario_json(document_text: str) -> str:
     """Canonical scenario JSON of a scenario document; LoadlineError if it is not valid."""
-    return sc.dumps(sc.scenario_from_dict(json.loads(document_text)))
+    from predictor.files import load_json
+
+    return sc.dumps(sc.scenario_from_dict(load_json(document_text)))
 
 
 def formulation(scenario: str) -> fm.Formulation:
@@ -380,7 +382,8 @@ def calibrate(text: str, source: str, scenario: str, model: str, shear_rate: flo
 
 @st.cache_data(**CACHE)
 def size_table(data: bytes, name: str) -> dict:
-    """A measured size distribution from an uploaded CSV (predictor.batch.read_size_table)."""
+    """A measured size distribution from an uploaded CSV (predictor.batch.read_size_table):
+    ``{"dist": its to_dict(), "notes": [warnings, e.g. a rebinned table]}``."""
     import pathlib
     import tempfile
 
@@ -390,7 +393,8 @@ def size_table(data: bytes, name: str) -> dict:
         path = pathlib.Path(folder) / safe_file_name(name, "sizes.csv")
         path.write_bytes(data)
         with reading(name):
-            return batch.read_size_table(path, field=name).to_dict()
+            dist, notes = _captured(batch.read_size_table, path, field=name)
+    return {"dist": dist.to_dict(), "notes": notes}
 
 
 @st.cache_data(**CACHE)

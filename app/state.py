@@ -147,7 +147,7 @@ DEFAULTS: dict[str, object] = {
     "pf_ingredient": "", "pf_salt": 1.0, "pf_potential": 30.0, "pf_layer": 0.0,
     "pf_hamaker": 4.8,
     # messages from callbacks, shown on the next run
-    "scenario_message": "", "scenario_loaded": False,
+    "scenario_message": "", "scenario_warning": "", "scenario_loaded": False,
 }
 
 
@@ -199,7 +199,9 @@ def init(ss: MutableMapping | None = None) -> None:
         ss["scenario_loaded"] = True
         path = opening_scenario_path()
         try:
-            apply_formulation(sc.read_scenario(path), ss, source=path.name)
+            form, notes = with_notes(sc.read_scenario, path)
+            apply_formulation(form, ss, source=path.name)
+            ss["scenario_warning"] = " ".join(notes)
         except predictor.LoadlineError as err:
             ss["scenario_message"] = f"The opening scenario could not be read: {err}"
 
@@ -456,11 +458,26 @@ def apply_formulation(formulation, ss: MutableMapping | None = None, source: str
     ss["calibration_json"] = ""
     ss["sc_source"] = source
     ss["scenario_message"] = ""
+    ss["scenario_warning"] = ""
+
+
+def with_notes(read, *args):
+    """`read(*args)` and the warnings it raised (unknown keys, rebinned size tables), as
+    texts for the user: a warning must reach the page, not only the server log."""
+    import warnings
+
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
+        value = read(*args)
+    return value, list(dict.fromkeys(str(w.message) for w in caught))
 
 
 def apply_text(text: str, ss: MutableMapping | None = None, source: str = "") -> None:
-    """Load a scenario from JSON text; a `LoadlineError` names what is wrong."""
-    apply_formulation(sc.loads(text), ss, source=source)
+    """Load a scenario from JSON text; a `LoadlineError` names what is wrong. Warnings
+    (unknown keys ...) are kept in ``scenario_warning`` for the page to show."""
+    form, notes = with_notes(sc.loads, text, source or "the scenario")
+    apply_formulation(form, ss, source=source)
+    _session(ss)["scenario_warning"] = " ".join(notes)
 
 
 def add_ingredient(ss: MutableMapping | None = None) -> None:

@@ -14,8 +14,8 @@ import pandas as pd
 import streamlit as st
 
 import predictor
-from app import charts, compute, state
-from predictor import labels, sizes
+from app import compute, state
+from predictor import charts, labels, sizes
 from predictor import scenario as sc
 from predictor.units import from_si, to_si
 
@@ -152,7 +152,9 @@ def _open_demo() -> None:
 def open_demo_file(path) -> None:
     """Open a demo scenario file as the whole scenario (a callback: sidebar and pages)."""
     try:
-        state.apply_formulation(sc.read_scenario(path), source=path.name)
+        form, notes = state.with_notes(sc.read_scenario, path)
+        state.apply_formulation(form, source=path.name)
+        st.session_state["scenario_warning"] = " ".join(notes)
     except predictor.LoadlineError as err:
         st.session_state["scenario_message"] = str(err)
 
@@ -183,6 +185,8 @@ def scenario_box() -> None:
     message = st.session_state.get("scenario_message")
     if message:
         st.error(message, icon=":material/error:")
+    if st.session_state.get("scenario_warning"):
+        st.warning(st.session_state["scenario_warning"], icon=":material/warning:")
     with st.expander("Open, save, demos", icon=":material/folder_open:"):
         st.file_uploader("Open a saved scenario (*.loadline.json)", type=["json"],
                          key="open_file", on_change=_open_uploaded,
@@ -452,7 +456,7 @@ def metric_row(items: list[tuple]) -> None:
 
 
 def chart_block(chart, data: pd.DataFrame, stem: str, key: str, export=None) -> None:
-    """The chart (a Vega-Lite spec from app/charts.py), then downloads of its data (CSV)
+    """The chart (a Vega-Lite spec from predictor/charts.py), then downloads of its data (CSV)
     and of the chart itself (PNG, SVG).
 
     `chart` may be a list of panels sharing an x axis, drawn one under the other; then

@@ -14,6 +14,7 @@ formats; it computes nothing itself. Human-readable tables by default, ``--json`
 from __future__ import annotations
 
 import argparse
+import contextlib
 import io
 import json
 import math
@@ -21,22 +22,19 @@ import pathlib
 import re
 import sys
 import textwrap
-import time
 import warnings
 
-import numpy as np
-import pandas as pd
-
+from . import __version__
+from ._lazy import LazyModule
+from .cautions import CAUTIONS
 from .errors import LoadlineError, UnitError
 from .labels import name_label, quantity_of, value_words
-from .units import from_si, parse_quantity
 
-CAUTIONS = (
-    "Predictions are screening estimates for idealised particles and droplets. Confirm them "
-    "by measurement before scale-up, pump or pressure-equipment selection, and follow local "
-    "codes, licensed engineering practice and the materials' safety data sheets (fine "
-    "powders, solvents)."
-)
+# Imported on first use: `loadline --help` and `loadline models` never load the numeric stack.
+np = LazyModule("numpy")
+pd = LazyModule("pandas")
+units = LazyModule("predictor.units")
+
 EXIT_OK, EXIT_INPUT, EXIT_USAGE, EXIT_ROWS, EXIT_MISSING = 0, 1, 2, 3, 4
 DEMO_SCENARIO = "mineral_coating.loadline.json"
 DEMO_TABLE = "candidates.csv"
@@ -96,7 +94,7 @@ def unit_columns(frame: pd.DataFrame, viscosity_unit: str = "Pa*s") -> pd.DataFr
             if name.endswith(suffix) and pd.api.types.is_numeric_dtype(values):
                 unit = viscosity_unit if dimension == "viscosity" else _SHOWN_UNITS[dimension]
                 label = name[: -len(suffix)].replace("_", " ")
-                out[f"{label} [{unit}]"] = from_si(values.to_numpy(dtype=float), unit,
+                out[f"{label} [{unit}]"] = units.from_si(values.to_numpy(dtype=float), unit,
                                                    dimension)
                 break
         else:
@@ -118,20 +116,27 @@ def _fmt(value, quantity: str = "") -> str:
 
 
 def table_text(frame: pd.DataFrame, max_rows: int | None = None) -> str:
-    """A plain aligned table with 4 significant digits."""
+    """An aligned plain-text table (rich), numbers to 4 significant digits.
+
+    Never wrapped or cut to the terminal's width (the text is also written to files and
+    pipes) and without colour codes.
+    """
+    from rich import box
+    from rich.console import Console
+    from rich.table import Table
+
     shown = frame if max_rows is None else frame.head(max_rows)
     quantities = [quantity_of(str(c)) for c in frame.columns]
-    cells = [[_fmt(v, q) for v, q in zip(row, quantities, strict=True)]
-             for row in shown.itertuples(index=False)]
-    headers = [str(c) for c in frame.columns]
-    widths = [max([len(h)] + [len(r[i]) for r in cells]) for i, h in enumerate(headers)]
-    numeric = [pd.api.types.is_numeric_dtype(frame[c]) for c in frame.columns]
-
-    def line(items):
-        return "  ".join(s.rjust(w) if num else s.ljust(w)
-                         for s, w, num in zip(items, widths, numeric, strict=True)).rstrip()
-
-    lines = [line(headers), line(["-" * w for w in widths])] + [line(r) for r in cells]
+    table = Table(box=box.SIMPLE_HEAD, show_edge=False, pad_edge=False, highlight=False)
+    for col in frame.columns:
+        numeric = pd.api.types.is_numeric_dtype(frame[col])
+        table.add_column(str(col), justify="right" if numeric else "left", no_wrap=True)
+    for row in shown.itertuples(index=False):
+        table.add_row(*(_fmt(v, q) for v, q in zip(row, quantities, strict=True)))
+    out = io.StringIO()
+    Console(file=out, width=100_000, color_system=None, highlight=False, markup=False,
+            emoji=False).print(table)
+    lines = [ln.rstrip() for ln in out.getvalue().splitlines() if ln.strip()]
     if max_rows is not None and len(frame) > max_rows:
         lines.append(f"... {len(frame) - max_rows} more rows (use --json, --csv or -o)")
     return "\n".join(lines)
@@ -139,13 +144,13 @@ def table_text(frame: pd.DataFrame, max_rows: int | None = None) -> str:
 
 def _emit(args, frame: pd.DataFrame, meta: dict | None = None, text_before: str = "") -> None:
     """Print `frame` as the user asked: table (default), JSON or CSV."""
-    from .batch import csv_text
-
     if getattr(args, "json", False):
         doc = dict(meta or {})
         doc["rows"] = frame.astype(object).where(frame.notna(), None).to_dict("records")
         print(json.dumps(_finite(doc), indent=1, default=_json_default))
     elif getattr(args, "csv", False):
+        from .batch import csv_text
+
         sys.stdout.write(csv_text(frame))
     else:
         if text_before:
@@ -174,12 +179,12 @@ def _json_default(value):
 
 
 def _quantity(text: str, dimension: str, option: str) -> float:
-    return parse_quantity(text, dimension, option)
+    return units.parse_quantity(text, dimension, option)
 
 
 def _check_viscosity_unit(unit: str) -> str:
     try:
-        from_si(1.0, unit, "viscosity")
+        units.from_si(1.0, unit, "viscosity")
     except Exception:  # pint raises several kinds; one message for all
         raise UnitError(f"--viscosity-unit = {unit!r} is not a viscosity unit; write e.g. "
                         "'Pa*s', 'mPa*s' or 'cP'.") from None
@@ -187,31 +192,73 @@ def _check_viscosity_unit(unit: str) -> str:
 
 
 class Progress:
-    """A one-line progress bar on stderr (only drawn when stderr is a terminal or forced)."""
+    """A progress bar on stderr (rich), drawn only when stderr is a terminal or forced.
+
+    Called with the number of rows done so far; `close` ends the bar.
+    """
 
     def __init__(self, total: int | None, label: str, enabled: bool, stream=None):
-        self.total, self.label, self.enabled = total, label, enabled
-        self.stream = stream or sys.stderr
-        self.start = time.perf_counter()
+        self.enabled, self.bar = enabled, None
+        if not enabled:
+            return
+        from rich.console import Console
+        from rich.progress import (
+            BarColumn,
+            MofNCompleteColumn,
+            TaskProgressColumn,
+            TextColumn,
+            TimeElapsedColumn,
+        )
+        from rich.progress import Progress as Bar
+
+        console = Console(file=stream or sys.stderr)   # plain text when not a terminal
+        self.bar = Bar(TextColumn(label), BarColumn(), TaskProgressColumn(),
+                       MofNCompleteColumn(), TextColumn("rows"), TimeElapsedColumn(),
+                       console=console, transient=False)
+        self.task = self.bar.add_task(label, total=total)
+        self.bar.start()
 
     def __call__(self, done: int) -> None:
-        if not self.enabled:
-            return
-        elapsed = time.perf_counter() - self.start
-        rate = done / elapsed if elapsed > 0 else 0.0
-        if self.total:
-            frac = min(done / self.total, 1.0)
-            bar = "#" * int(30 * frac) + "." * (30 - int(30 * frac))
-            text = f"\r{self.label} [{bar}] {100 * frac:5.1f} % {done}/{self.total} rows"
-        else:
-            text = f"\r{self.label} {done} rows"
-        self.stream.write(f"{text}  {rate:,.0f} rows/s")
-        self.stream.flush()
+        if self.bar is not None:
+            self.bar.update(self.task, completed=done)
 
     def close(self) -> None:
-        if self.enabled:
-            self.stream.write("\n")
-            self.stream.flush()
+        if self.bar is not None:
+            self.bar.stop()
+
+
+#: Seconds between two redraws of `elapsed_ticker`.
+TICK_SECONDS = 1.0
+
+
+@contextlib.contextmanager
+def elapsed_ticker(label: str, enabled: bool, stream=None):
+    """A line on stderr, redrawn every `TICK_SECONDS`, saying how long a step that reports no
+    progress of its own (the jamming simulation) has been running."""
+    if not enabled:
+        yield
+        return
+    import threading
+
+    stream = stream or sys.stderr
+    every_s = TICK_SECONDS
+    stop = threading.Event()
+    start = time.perf_counter()
+
+    def tick():
+        while not stop.wait(every_s):
+            stream.write(f"\r{label}: {time.perf_counter() - start:.0f} s (Ctrl+C stops it)")
+            stream.flush()
+
+    thread = threading.Thread(target=tick, daemon=True)
+    thread.start()
+    try:
+        yield
+    finally:
+        stop.set()
+        thread.join()
+        stream.write(f"\r{label}: done in {time.perf_counter() - start:.1f} s\n")
+        stream.flush()
 
 
 # -- commands ---------------------------------------------------------------------------------
@@ -286,19 +333,20 @@ def _scenario_head(form, meta: dict) -> str:
 
 
 def cmd_sweep(args) -> int:
-    from .formulation import loading_sweep
+    from .formulation import loading_sweep, mixture, require_solid
 
     unit = _check_viscosity_unit(args.viscosity_unit)
     if not 2 <= args.points <= 100_000:
         raise UnitError(f"--points = {args.points} is not allowed; expected 2 to 100000.")
     form = _scenario(args.scenario)
+    require_solid(mixture(form))   # a solids sweep is not asked of droplets alone (as max-load)
     rate = _quantity(args.shear_rate, "shear_rate", "--shear-rate") if args.shear_rate else None
     sweep = _sweep(loading_sweep, form, args.points, rate)
     frame = pd.DataFrame({
         "phi solids [-]": sweep["phi"].to_numpy(),
         "solids [wt%]": 100 * sweep["mass_fraction"].to_numpy(),
         "relative viscosity [-]": sweep["relative_viscosity"].to_numpy(),
-        f"viscosity [{unit}]": from_si(sweep["viscosity_Pa_s"].to_numpy(), unit, "viscosity"),
+        f"viscosity [{unit}]": units.from_si(sweep["viscosity_Pa_s"].to_numpy(), unit, "viscosity"),
     })
     if "yield_stress_Pa" in sweep and (sweep["yield_stress_Pa"] > 0).any():
         frame["yield stress of flocs [Pa]"] = sweep["yield_stress_Pa"].to_numpy()
@@ -331,6 +379,7 @@ def _sweep_basis(rate: float | None) -> str:
 def cmd_max_load(args) -> int:
     from .formulation import max_loading, mixture, solid_mass_fraction
 
+    _check_viscosity_unit(args.viscosity_unit)
     form = _scenario(args.scenario)
     limits = [_quantity(t, "viscosity", "--limit") for t in args.limit]
     rates = [_quantity(t, "shear_rate", "--shear-rate") for t in (args.shear_rate or ["1 1/s"])]
@@ -345,7 +394,7 @@ def cmd_max_load(args) -> int:
         phi = max_loading(form, limit, rate)
         rows.append({
             "shear rate [1/s]": rate,
-            f"viscosity limit [{args.viscosity_unit}]": from_si(limit, args.viscosity_unit,
+            f"viscosity limit [{args.viscosity_unit}]": units.from_si(limit, args.viscosity_unit,
                                                                 "viscosity"),
             "max phi solids [-]": phi,
             "max solids [wt%]": 100 * float(solid_mass_fraction(form, phi, mix)[0]),
@@ -358,28 +407,52 @@ def cmd_max_load(args) -> int:
     return EXIT_OK
 
 
-def cmd_models(args) -> int:
-    from .registry import models
+def relations_snapshot(kind: str | None = None) -> list[dict]:
+    """The registry's relations from the static snapshot `predictor/data/models.json`.
 
-    rows = []
-    for spec in models(args.kind):
-        defaults = spec.defaults()
-        params = "; ".join(
-            f"{p.name}={defaults.get(p.name, '')} [{p.unit}] ({p.bounds[0]:g}..{p.bounds[1]:g})"
-            for p in spec.params)
-        rows.append({"name": spec.name, "kind": spec.kind, "parameters": params or "-",
-                     "validity": spec.validity, "source": spec.source})
-    frame = pd.DataFrame(rows, columns=["name", "kind", "parameters", "validity", "source"])
-    if not (args.json or args.csv):
-        for row in rows:
-            print(f"{row['name']}  ({row['kind']})  source: {row['source']}")
-            print(textwrap.fill(f"parameters: {row['parameters']}", 100,
-                                initial_indent="    ", subsequent_indent="      "))
-            print(textwrap.fill(f"validity: {row['validity']}", 100, initial_indent="    ",
-                                subsequent_indent="      "))
-        print(f"\n{len(rows)} relations.")
+    The snapshot is generated from the registry (``python -m predictor.registry
+    --snapshot``; tests/test_registry.py fails when it is stale), so listing the relations
+    imports no numeric library.
+    """
+    from .registry import SNAPSHOT
+
+    path = pathlib.Path(__file__).resolve().parent / SNAPSHOT
+    relations = json.loads(path.read_text(encoding="utf-8"))
+    return [r for r in relations if kind is None or r["kind"] == kind]
+
+
+def _parameters_text(relation: dict) -> str:
+    def bound(x):
+        return "inf" if x is None else f"{x:g}"
+
+    return "; ".join(
+        f"{p['name']}={'' if p['default'] is None else format(p['default'], 'g')} "
+        f"[{p['unit']}] ({bound(p['bounds'][0])}..{bound(p['bounds'][1])})"
+        for p in relation["parameters"]) or "-"
+
+
+def cmd_models(args) -> int:
+    relations = relations_snapshot(args.kind)
+    if args.json:
+        print(json.dumps({"count": len(relations), "rows": relations}, indent=1,
+                         ensure_ascii=False))
         return EXIT_OK
-    _emit(args, frame, {"count": len(rows)})
+    if args.csv:
+        import csv
+
+        writer = csv.writer(sys.stdout, lineterminator="\n")
+        writer.writerow(["name", "kind", "parameters", "validity", "source"])
+        for r in relations:
+            writer.writerow([r["name"], r["kind"], _parameters_text(r), r["validity"],
+                             r["source"]])
+        return EXIT_OK
+    for r in relations:
+        print(f"{r['name']}  ({r['kind']})  source: {r['source']}")
+        print(textwrap.fill(f"parameters: {_parameters_text(r)}", 100,
+                            initial_indent="    ", subsequent_indent="      "))
+        print(textwrap.fill(f"validity: {r['validity']}", 100, initial_indent="    ",
+                            subsequent_indent="      "))
+    print(f"\n{len(relations)} relations.")
     return EXIT_OK
 
 
@@ -395,7 +468,8 @@ def cmd_screen(args) -> int:
     keep = -1 if (args.json or args.csv) else args.show
     try:
         summary, shown = screen_file(path, args.output, viscosity_unit=unit,
-                                     chunk_rows=args.chunk_rows, progress=progress, keep=keep)
+                                     chunk_rows=args.chunk_rows, progress=progress, keep=keep,
+                                     dask=args.dask)
     finally:
         progress.close()
     for header in summary.unrecognised:
@@ -437,8 +511,10 @@ def cmd_pack(args) -> int:
 
     packing = _need("packing", "packing_estimates")
     dist = read_size_table(args.sizes, field=str(args.sizes))
-    est = packing.packing_estimates(dist.diameters_m, dist.fractions,
-                                    include_simulation=args.simulation)
+    show = args.progress if args.progress is not None else sys.stderr.isatty()
+    with elapsed_ticker("pack: jamming simulation", show and args.simulation):
+        est = packing.packing_estimates(dist.diameters_m, dist.fractions,
+                                        include_simulation=args.simulation)
     rows = [{"method": name, "phi_max [-]": float(value), "note": ""}
             for name, value in est.estimates.items()]
     rows += [{"method": name, "phi_max [-]": float("nan"), "note": f"skipped: {reason}"}
@@ -530,14 +606,14 @@ def cmd_demo(args) -> int:
       + ")\n" + table_text(pd.DataFrame({
         "phi solids [-]": sweep["phi"], "solids [wt%]": 100 * sweep["mass_fraction"],
         "relative viscosity [-]": sweep["relative_viscosity"],
-        f"viscosity [{unit}]": from_si(sweep["viscosity_Pa_s"].to_numpy(), unit,
+        f"viscosity [{unit}]": units.from_si(sweep["viscosity_Pa_s"].to_numpy(), unit,
                                        "viscosity")})) + "\n\n")
     rows = []
     for label, rate, limit in (("brushing", 1e4, 0.2), ("pumping", 100.0, 1.0),
                                ("levelling", 0.1, 10.0)):
         phi = max_loading(form, limit, rate)
         rows.append({"window": label, "shear rate [1/s]": rate,
-                     f"limit [{unit}]": from_si(limit, unit, "viscosity"),
+                     f"limit [{unit}]": units.from_si(limit, unit, "viscosity"),
                      "max phi solids [-]": phi,
                      "max solids [wt%]": 100 * float(solid_mass_fraction(form, phi, mix)[0])})
     w("Highest solids loading under a viscosity limit (example windows, invented limits)\n"
@@ -576,6 +652,8 @@ examples:
   loadline screen doe.csv -o doe_results.csv --viscosity-unit mPa*s
   loadline screen doe.xlsx -o doe_results.xlsx --progress
   loadline screen doe.csv --json > doe_results.json
+  loadline screen big_doe.parquet -o big_results.parquet --chunk-rows 100000 --dask
+  loadline screen big_doe.parquet -o big_results.parquet --dask tcp://10.0.0.5:8786
 
 The table has one candidate per row; the columns (units in square brackets) are described
 in predictor/batch.py and the README, e.g. 'ingredient 1 loading [wt%]', 'ingredient 1 d50
@@ -632,13 +710,7 @@ def build_parser() -> argparse.ArgumentParser:
         epilog="commands: predict, sweep, max-load, screen, pack, fit, report, models, demo. "
                "Run 'loadline COMMAND --help' for examples.\n\n" + _EPILOG,
         formatter_class=argparse.RawDescriptionHelpFormatter)
-    from importlib import metadata
-
-    try:
-        version = metadata.version("loadline")
-    except metadata.PackageNotFoundError:
-        version = "unknown"
-    parser.add_argument("--version", action="version", version=f"loadline {version}")
+    parser.add_argument("--version", action="version", version=f"loadline {__version__}")
     sub = parser.add_subparsers(dest="command", metavar="COMMAND")
 
     def add(name, help_text, func):
@@ -675,20 +747,29 @@ def build_parser() -> argparse.ArgumentParser:
                    help='shear rate of the limit, e.g. "100 1/s" (default 1 1/s)')
     _add_output(p)
 
-    p = add("screen", "predict a table of candidate formulations (CSV or Excel)", cmd_screen)
-    p.add_argument("table", help="candidate table (.csv or .xlsx)")
-    p.add_argument("-o", "--output", help="write all result rows here (.csv, .xlsx or .json)")
+    p = add("screen", "predict a table of candidate formulations (CSV, Excel or Parquet)",
+            cmd_screen)
+    p.add_argument("table", help="candidate table (.csv, .xlsx or .parquet)")
+    p.add_argument("-o", "--output",
+                   help="write all result rows here (.csv, .xlsx, .parquet or .json)")
     p.add_argument("--chunk-rows", type=int, default=50_000,
                    help="rows computed at once; bounds the memory (default 50000)")
     p.add_argument("--show", type=int, default=20, help="rows shown in the table (default 20)")
     p.add_argument("--progress", action=argparse.BooleanOptionalAction, default=None,
                    help="progress bar on stderr (default: when stderr is a terminal)")
+    p.add_argument("--dask", nargs="?", const="", default=None, metavar="ADDRESS",
+                   help="compute the chunks on a Dask cluster: a local one by default, or the "
+                        "scheduler at ADDRESS (e.g. tcp://host:8786); needs "
+                        "'pip install loadline[dask]'. Give it after the table.")
     _add_output(p)
 
     p = add("pack", "packing limit phi_max of a size table, every estimator", cmd_pack)
     p.add_argument("sizes", help="size table CSV")
     p.add_argument("--simulation", action="store_true",
                    help="also run the jamming simulation (takes seconds)")
+    p.add_argument("--progress", action=argparse.BooleanOptionalAction, default=None,
+                   help="elapsed time of the simulation on stderr (default: when stderr is "
+                        "a terminal)")
     _add_output(p, viscosity=False)
 
     p = add("fit", "calibrate a relation to lab viscosities (CSV)", cmd_fit)

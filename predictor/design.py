@@ -28,7 +28,6 @@ from dataclasses import dataclass
 
 import numpy as np
 import pandas as pd
-from scipy import optimize
 
 from . import composition, packing, uncertainty
 from . import formulation as fm
@@ -383,6 +382,8 @@ def _solve_loading(ctx: _Context, limit: float, rate: float) -> tuple[float, str
     def g(phi):
         eta = ctx.viscosity(phi, rate)
         return np.log(min(eta, 1e300)) - np.log(limit)
+
+    from scipy import optimize  # on first use (about 0.3 s): the app's first page skips it
 
     phi = float(optimize.brentq(g, 0.0, top, xtol=1e-10, rtol=1e-12))
     ctx.viscosity(phi, rate, quiet=False)     # let the answer's own warnings through
@@ -767,7 +768,10 @@ def storage_check(formulation: fm.Formulation, *, storage_time_s: float = 180 * 
                      "clear_layer_time_s": v.clear_layer_time_s,
                      "gravitational_peclet": v.gravitational_peclet,
                      "yield_parameter": v.yield_parameter})
-    return pd.DataFrame(rows)
+    # The columns are named even with no ingredient (an empty table, not a column-less one).
+    return pd.DataFrame(rows, columns=["ingredient", "diameter_m", "stable", "reason",
+                                       "message", "velocity_m_per_s", "clear_layer_time_s",
+                                       "gravitational_peclet", "yield_parameter"])
 
 
 def phase_ratio_for_target(*args, **kwargs):

@@ -34,6 +34,10 @@ from .registry import get_model
 from .viscosity import relative_viscosity
 
 SOLID, DROPLET = "solid", "droplet"
+#: Most dispersed ingredients read from a file (scenario or candidate table). A real
+#: formulation has a handful (the app edits up to 6); 50 is generous and bounds the work of
+#: every question, which solves for all ingredients at once (our limit, no source).
+MAX_INGREDIENTS = 50
 RANDOM_CLOSE_SPHERES = 0.64  # Berryman, Phys. Rev. A 27, 1053 (1983): 0.64 +- 0.02
 
 
@@ -602,11 +606,7 @@ def max_loading(formulation: Formulation, viscosity_limit_Pa_s: float,
     rate = float(shear_rate_1_per_s)
     if not np.isfinite(rate) or rate <= 0:
         raise InputRangeError("shear_rate_1_per_s", rate, "a positive, finite shear rate")
-    mix = mixture(formulation)
-    if not mix.is_solid.any():
-        raise InputRangeError("ingredients", "no solid",
-                              "at least one solid ingredient to scale (for droplets, use the "
-                              "phase-ratio questions in predictor.phase_ratio)")
+    mix = require_solid(mixture(formulation))
     rates = np.array([rate])
 
     def too_thick(x):
@@ -617,11 +617,26 @@ def max_loading(formulation: Formulation, viscosity_limit_Pa_s: float,
 
     low, high = 0.0, mix.phi_max
     if too_thick(low):
+        eta = flow_curve_of(formulation, rates, _at_loading(mix, 0.0)).viscosity_Pa_s[0]
+        warnings.warn(f"even the liquid without solids (with its droplets, if any) is "
+                      f"{eta:.4g} Pa*s at {rate:g} 1/s, above the limit {limit:.4g} Pa*s: no "
+                      "solid loading meets it (the answer 0 means none).", UserWarning,
+                      stacklevel=2)
         return 0.0
     while high - low > 1e-9:
         mid = 0.5 * (low + high)
         low, high = (low, mid) if too_thick(mid) else (mid, high)
     return low
+
+
+def require_solid(mix: Mixture) -> Mixture:
+    """`mix`, or `InputRangeError` when it has no solid ingredient to scale: the solids
+    questions (`max_loading`, a loading sweep) are not asked of droplets alone."""
+    if not mix.is_solid.any():
+        raise InputRangeError("ingredients", "no solid",
+                              "at least one solid ingredient to scale (for droplets, use the "
+                              "phase-ratio questions in predictor.phase_ratio)")
+    return mix
 
 
 def with_solids_scaled(formulation: Formulation, phi_solids_effective: float) -> Formulation:

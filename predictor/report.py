@@ -23,9 +23,9 @@ from dataclasses import dataclass, field
 import numpy as np
 import pandas as pd
 
-from . import charts_export, design, labels
+from . import charts, design, labels
 from . import formulation as fm
-from .cli import CAUTIONS
+from .cautions import CAUTIONS
 from .errors import LoadlineError
 from .registry import get_model, models
 from .units import from_si
@@ -178,10 +178,12 @@ def build_report(form: fm.Formulation, viscosity_unit: str = "Pa*s",
     sections.append(sec)
 
     sec = Section("Flow curve")
-    plot = pd.DataFrame({"shear rate [1/s]": curve["shear_rate_1_per_s"].to_numpy(),
-                         f"viscosity [{vu}]": from_si(curve["viscosity_Pa_s"].to_numpy(), vu,
-                                                      "viscosity")})
-    sec.charts.append(charts_export.flow_curve_chart(plot, vu))
+    chart = _flow_curve_chart(curve, vu)
+    if chart is None:
+        sec.paragraphs.append("No flow at any shear rate of the curve: the solids are at or "
+                              "above the packing limit, so there is no flow curve to draw.")
+    else:
+        sec.charts.append(chart)
     rates = np.array([1e-3, 1e-1, 1e1, 1e3, 1e5])
     few = fm.predict(form, rates)
     shown = pd.DataFrame({"shear rate [1/s]": rates,
@@ -233,15 +235,26 @@ def build_report(form: fm.Formulation, viscosity_unit: str = "Pa*s",
         sec.paragraphs.append("Viscosity in the sweep: the Newtonian view (the relation at "
                               "phi_max times the liquid's Newtonian viscosity), with the band "
                               "from the spread of the packing estimators.")
-        plot = pd.DataFrame({"phi solids [-]": sweep["phi"].to_numpy(),
-                             f"viscosity [{vu}]": from_si(sweep["viscosity_Pa_s"].to_numpy(),
-                                                          vu, "viscosity")})
+        plot = pd.DataFrame({"phi": sweep["phi"].to_numpy(),
+                             "viscosity": from_si(sweep["viscosity_Pa_s"].to_numpy(), vu,
+                                                  "viscosity"), "relation": form.model})
+        band = None
         if "viscosity_low_Pa_s" in sweep:
-            plot["low"] = from_si(sweep["viscosity_low_Pa_s"].to_numpy(), vu, "viscosity")
-            plot["high"] = from_si(sweep["viscosity_high_Pa_s"].to_numpy(), vu, "viscosity")
-        finite = np.isfinite(plot[f"viscosity [{vu}]"])
-        sec.charts.append(charts_export.loading_sweep_chart(
-            plot[finite], vu, mix.phi_solids_effective, mix.phi_max, packing_range))
+            band = pd.DataFrame({
+                "phi": plot["phi"],
+                "low": from_si(sweep["viscosity_low_Pa_s"].to_numpy(), vu, "viscosity"),
+                "high": from_si(sweep["viscosity_high_Pa_s"].to_numpy(), vu, "viscosity")})
+            band = band[np.isfinite(band["low"]) & np.isfinite(band["high"])]
+        finite = np.isfinite(plot["viscosity"])
+        # the sweep's own Newtonian view at the current loading (as the app's summary)
+        current = from_si(float(fm.relative_viscosity_at(form, mix.phi_solids_effective, mix))
+                          * mix.liquid_viscosity_Pa_s, vu, "viscosity")
+        sec.charts.append(charts.loading_sweep(
+            plot[finite], y_title=f"Viscosity [{vu}]", phi_max=mix.phi_max,
+            phi_max_range=packing_range, band=band,
+            current={"phi": mix.phi_solids_effective, "viscosity": current,
+                     "label": "current loading"} if math.isfinite(current) else None))
+        plot = plot.rename(columns={"viscosity": f"viscosity [{vu}]"})
         pick = np.linspace(0, len(sweep) - 1, 8).round().astype(int)
         sec.tables.append(("Selected loadings", pd.DataFrame({
             "phi solids [-]": sweep["phi"].to_numpy()[pick],
@@ -332,6 +345,27 @@ def _interaction_section(form: fm.Formulation, rows: list[dict]) -> Section:
     return sec
 
 
+def _flow_curve_chart(curve: pd.DataFrame, vu: str) -> dict | None:
+    """The app's flow-curve panels (process windows, viscosity, stress) as one chart; None
+    when no point flows (jammed)."""
+    from . import shear
+
+    frame = pd.DataFrame({"rate": curve["shear_rate_1_per_s"].to_numpy(),
+                          "viscosity": from_si(curve["viscosity_Pa_s"].to_numpy(), vu,
+                                               "viscosity"),
+                          "stress": curve["shear_stress_Pa"].to_numpy()})
+    if "regime" in curve:
+        frame["regime"] = curve["regime"].astype(str).to_numpy()
+    windows = pd.DataFrame([tuple(w) for w in getattr(shear, "PROCESS_SHEAR_RATES", ())],
+                           columns=["name", "low", "high"])
+    drawable = np.isfinite(frame["viscosity"]) & (frame["viscosity"] > 0)
+    if not drawable.any():
+        return None
+    return charts.flow_curve(frame[drawable], windows=windows, x_title="Shear rate [1/s]",
+                             y_title=f"Viscosity [{vu}]", stress_title="Shear stress [Pa]",
+                             joined=True, width=CHART_WIDTH)
+
+
 def _marker_row(key: str, value: float, viscosity_unit: str) -> tuple:
     """(name, value, unit) of a flow-curve marker named with an SI suffix."""
     for suffix, unit, dimension in (("_Pa_s", viscosity_unit, "viscosity"),
@@ -419,7 +453,7 @@ def render_html(report: Report) -> str:
         slug = re.sub(r"[^a-z]+", "-", sec.title.lower()).strip("-")
         parts.append(f"<section id='{slug}'><h2>{k}. {html.escape(sec.title)}</h2>")
         for chart in sec.charts:
-            parts.append(f"<figure>{charts_export.to_svg(chart)}</figure>")
+            parts.append(f"<figure>{charts.to_svg(chart, CHART_WIDTH)}</figure>")
         for text in sec.paragraphs:
             parts.append(f"<p>{html.escape(text)}</p>")
         for caption, table in sec.tables:
@@ -437,6 +471,8 @@ def render_html(report: Report) -> str:
 # -- PDF --------------------------------------------------------------------------------------
 
 _PAGE_W = 900
+#: Plot width of the report's charts: with their axes they fit the page's 900 px.
+CHART_WIDTH = 700
 _LINE = 16
 
 
@@ -471,7 +507,7 @@ def render_svg(report: Report) -> str:
         y += 12
         text(f"{k}. {sec.title}", 16, "bold")
         for chart in sec.charts:
-            svg = charts_export.to_svg(chart)
+            svg = charts.to_svg(chart, CHART_WIDTH)
             height = float(re.search(r'height="([\d.]+)"', svg).group(1))
             body = re.sub(r"^<svg", f"<svg x='40' y='{y}'", svg.strip(), count=1)
             items.append(body)
@@ -504,20 +540,24 @@ def _text_table(frame: pd.DataFrame) -> str:
 
 def write_report(scenario_path, html_path, pdf_path=None,
                  viscosity_unit: str = "Pa*s") -> list[pathlib.Path]:
-    """Read a scenario file and write its HTML report (and PDF); returns the paths written."""
+    """Read a scenario file and write its HTML report (and PDF); returns the paths written.
+
+    Both outputs go through `files.atomic_write`: neither may be the scenario (or the other
+    output), and each is replaced whole or not at all.
+    """
+    from .files import atomic_write, check_output
     from .scenario import read_scenario
 
+    check_output(html_path, [scenario_path])
+    if pdf_path:
+        check_output(pdf_path, [scenario_path, html_path])
     form = read_scenario(scenario_path)
     report = build_report(form, viscosity_unit, source=str(scenario_path))
-    html_path = pathlib.Path(html_path)
-    html_path.parent.mkdir(parents=True, exist_ok=True)
-    html_path.write_text(render_html(report), encoding="utf-8")
-    written = [html_path]
+    html = render_html(report)
+    pdf = render_pdf(report) if pdf_path else None
+    written = [atomic_write(html_path, html, [scenario_path])]
     if pdf_path:
-        pdf_path = pathlib.Path(pdf_path)
-        pdf_path.parent.mkdir(parents=True, exist_ok=True)
-        pdf_path.write_bytes(render_pdf(report))
-        written.append(pdf_path)
+        written.append(atomic_write(pdf_path, pdf, [scenario_path, html_path]))
     return written
 
 

@@ -714,7 +714,13 @@ def flow_curve(shear_rate_1_per_s, phi, *, liquid_law_name="newtonian", liquid_p
     sig_hi = min(sig_hi, sig_jam)
     if not np.isfinite(sig_hi):     # g unbounded without a jamming stress: cannot happen
         sig_hi = sig_lo * 1e12       # with the checks above; kept as a guard
-    sig_lo = max(sig_lo, 1e-300)
+    if not sig_lo >= _TINY:
+        # The stress at the lowest rate underflows: no grid can hold it, and a floor would
+        # answer for another rate (1e-300 1/s once returned exactly 1 Pa*s). Refuse instead.
+        lowest = float(rates.min()) * (_TINY / sig_lo) if sig_lo > 0 else float("inf")
+        raise InputRangeError("shear_rate_1_per_s", float(rates.min()),
+                              f"a rate whose shear stress is a representable number (here "
+                              f"above about {min(lowest, 1e300):.2g} 1/s)")
     if np.isfinite(sig_jam) and sig_lo >= sig_jam:
         sig_lo = sig_jam * 1e-6
     for scale in (model.stress_scale, model.star):   # show the features near the range too
@@ -782,6 +788,11 @@ def flow_curve(shear_rate_1_per_s, phi, *, liquid_law_name="newtonian", liquid_p
     relative = viscosity / eta_l
     return FlowCurve(rates, sigma, viscosity, relative, eta_l, regime.astype(str), markers,
                      tuple(messages))
+
+
+#: Smallest stress the flow-curve grid holds: the smallest normal float, times 1e4 so the
+#: grid below the lowest stress and the bisection keep full precision. [Pa]
+_TINY = float(np.finfo(float).tiny) * 1e4
 
 
 def _plateau_markers(model, law, critical_reduced_stress):

@@ -118,3 +118,18 @@ def test_report_shows_particle_forces_when_a_solid_carries_them(tmp_path):
     tau = fm.flocculation_yield_stress(form)
     assert f"Network yield stress at this loading: {tau:.4g} Pa" in text
     assert "flocculated" in text and "rule of thumb" in text
+
+
+def test_report_charts_are_the_app_charts_and_fit_the_pdf_page():
+    # One chart module (issue 13): the report draws predictor.charts' flow-curve panels and
+    # loading sweep, and their SVG fits the PDF page with its 40 px margin.
+    from predictor import charts, report
+
+    built = report.build_report(read_scenario(DEMO / "ceramic_slip.loadline.json"))
+    specs = [c for sec in built.sections for c in sec.charts]
+    assert len(specs) == 2 and all(s["$schema"] == charts.alt.SCHEMA_URL for s in specs)
+    assert "vconcat" in specs[0]                       # the app's stacked flow-curve panels
+    for spec in specs:
+        svg = charts.to_svg(spec, report.CHART_WIDTH)
+        width = float(re.search(r'width="([\d.]+)"', svg).group(1))
+        assert width <= report._PAGE_W - 40

@@ -1,4 +1,5 @@
-"""Real-browser end-to-end tests: `streamlit run app/main.py` driven by Debian's chromium.
+"""Real-browser end-to-end tests: the app (`python -m app.serve`, as `make run` starts it)
+driven by Debian's chromium.
 
 One server per pytest(-xdist) worker, on a free loopback port, killed by its PID at the end.
 Screenshots of every page go to artifacts/screenshots/ (for people to look at; no
@@ -72,7 +73,7 @@ def server():
     log = tempfile.TemporaryFile()
     env = {**os.environ, "LOADLINE_SCENARIO": "data_demo/mineral_coating.loadline.json"}
     proc = subprocess.Popen(
-        [sys.executable, "-m", "streamlit", "run", "app/main.py", "--server.headless", "true",
+        [sys.executable, "-m", "app.serve", "--server.headless", "true",
          "--server.port", str(port), "--server.address", "127.0.0.1",
          "--browser.gatherUsageStats", "false", "--server.fileWatcherType", "none"],
         cwd=REPO, env=env, stdout=log, stderr=subprocess.STDOUT, start_new_session=True)

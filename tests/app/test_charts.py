@@ -9,7 +9,7 @@ import numpy as np
 import pandas as pd
 import pytest
 
-from app import charts
+from predictor import charts
 
 
 def _sweep():

@@ -136,3 +136,17 @@ def test_charged_solid_in_salt_shows_the_verdict():
     assert (f"calcined alumina**: flocculated (barrier {widgets.fmt(row['barrier_kT'], 3)} kT)"
             in text)
     assert f"Network yield stress {widgets.fmt(fm.flocculation_yield_stress(form), 3)} Pa" in text
+
+
+# issue 20: the Compare uploader refuses deep nesting with a message and shows unknown keys.
+def test_deep_or_odd_comparison_files_are_explained():
+    doc = json.loads(sc.dumps(demo()))
+    doc["supplier"] = "nobody"
+    at = page("loading_sweep").run()
+    at.file_uploader(key="compare_upload").set_value(
+        [("deep.loadline.json", b"[" * 100_000 + b"]" * 100_000, "application/json"),
+         ("extra.loadline.json", json.dumps(doc).encode(), "application/json")]).run()
+    assert not at.exception
+    assert "deep.loadline.json" in messages(at) and "levels deep" in messages(at)
+    assert "supplier" in messages(at)
+    assert len(at.session_state["compare_scenarios"]) == 1

@@ -166,3 +166,29 @@ def test_sidebar_particle_interactions_reach_the_scenario():
     shown = state.values_from_formulation(form, values)
     assert shown["ing1_interaction"] == "charged" and shown["ing1_potential"] == -40.0
     assert shown["liq_salt"] == 20.0
+
+
+# issue 20: hostile uploads in the Open box. Deep nesting once raised a RecursionError (a red
+# exception box); unknown keys once warned only in the server log.
+def test_deeply_nested_upload_is_refused_with_a_message():
+    at = _app().run()
+    deep = b"[" * 100_000 + b"]" * 100_000
+    at.file_uploader(key="open_file").set_value(
+        ("deep.loadline.json", deep, "application/json")).run()
+    assert not at.exception
+    assert "deep.loadline.json" in messages(at) and "levels deep" in messages(at)
+    assert at.session_state["sc_name"] == demo().name      # the scenario is kept
+
+
+def test_unknown_keys_of_an_upload_reach_the_user():
+    import json
+
+    at = _app().run()
+    doc = json.loads(sc.dumps(demo()))
+    doc["colour"] = "blue"
+    doc["relations"]["parameters"]["phi_maxx"] = 0.6
+    at.file_uploader(key="open_file").set_value(
+        ("extra.loadline.json", json.dumps(doc).encode(), "application/json")).run()
+    assert not at.exception
+    shown = " ".join(w.value for w in at.warning)
+    assert "colour" in shown and "relations.parameters.phi_maxx" in shown

@@ -1,5 +1,6 @@
-"""Altair chart builders: DataFrames in, a Vega-Lite spec (dict) out; no physics, no
-Streamlit.
+"""Altair chart builders of the app and the report: DataFrames in, a Vega-Lite spec (dict)
+out; no physics, no Streamlit. One module for both (the report renders the same specs to
+SVG offline with `to_svg`); Altair is imported when the first chart is built.
 
 Colours are the Okabe-Ito palette (distinguishable with the common colour-vision
 deficiencies). Every axis carries a quantity and a unit. `big=True` is the presentation
@@ -11,10 +12,10 @@ from __future__ import annotations
 import json
 import math
 
-import altair as alt
 import numpy as np
 import pandas as pd
-from altair.utils import schemapi
+
+from ._lazy import LazyModule
 
 OKABE_ITO = ["#0072B2", "#D55E00", "#009E73", "#CC79A7", "#E69F00", "#56B4E9", "#000000",
              "#F0E442"]
@@ -41,10 +42,16 @@ def config(big: bool = False) -> dict:
     }
 
 
-# Altair checks every object against the Vega-Lite schema as it is built; that costs more
-# than the rest of a page run. The finished specs are checked once, in the tests
-# (tests/app/test_charts.py validates every builder's output), so the eager check is off.
-schemapi.disable_debug_mode()
+def _quiet_schema_checks(altair) -> None:
+    # Altair checks every object against the Vega-Lite schema as it is built; that costs
+    # more than the rest of a page run. The finished specs are checked once, in the tests
+    # (tests/app/test_charts.py validates every builder's output), so the eager check is off.
+    from altair.utils import schemapi
+
+    schemapi.disable_debug_mode()
+
+
+alt = LazyModule("altair", on_import=_quiet_schema_checks)
 
 
 class Figure:
@@ -227,21 +234,26 @@ def lines(data: pd.DataFrame, *, x: str, y: str, series: str, x_title: str, y_ti
     return fig.spec(chart, big)
 
 
-def to_png(spec: dict) -> bytes:
+#: Width in pixels of an exported chart (PNG/SVG) drawn at the page's container width.
+EXPORT_WIDTH = 820
+
+
+def to_png(spec: dict, width: int = EXPORT_WIDTH) -> bytes:
     """The chart as PNG bytes, rendered offline by vl-convert."""
     import vl_convert as vlc
 
-    return vlc.vegalite_to_png(export_json(spec), scale=2)
+    return vlc.vegalite_to_png(export_json(spec, width), scale=2)
 
 
-def to_svg(spec: dict) -> str:
+def to_svg(spec: dict, width: int = EXPORT_WIDTH) -> str:
+    """The chart as SVG text, rendered offline by vl-convert (fonts bundled, no network)."""
     import vl_convert as vlc
 
-    return vlc.vegalite_to_svg(export_json(spec))
+    return vlc.vegalite_to_svg(export_json(spec, width))
 
 
-def export_json(spec: dict) -> str:
-    """The spec as standalone Vega-Lite JSON: data inlined, fixed width instead of the
+def export_json(spec: dict, width: int = EXPORT_WIDTH) -> str:
+    """The spec as standalone Vega-Lite JSON: data inlined, `width` pixels instead of the
     page's container width."""
     out = {k: v for k, v in spec.items() if k != "datasets"}
     out["datasets"] = {name: _records(frame) for name, frame in spec.get("datasets", {}).items()}
@@ -249,7 +261,7 @@ def export_json(spec: dict) -> str:
     def fix(node):
         if isinstance(node, dict):
             if node.get("width") == "container":
-                node["width"] = 820
+                node["width"] = width
             for value in node.values():
                 fix(value)
         elif isinstance(node, list):
@@ -282,8 +294,8 @@ def flow_curve(curve: pd.DataFrame, *, windows: pd.DataFrame, x_title: str, y_ti
     fixed width (for PNG/SVG export).
     """
     fig = Figure()
-    if joined:
-        width = 820
+    if joined and width == "container":
+        width = EXPORT_WIDTH
     lo = float(curve["rate"].min())
     hi = float(curve["rate"].max())
     x_scale = alt.Scale(type="log", domain=[lo, hi], nice=False)
