@@ -22,6 +22,7 @@ import pathlib
 import re
 import sys
 import textwrap
+import time
 import warnings
 
 from . import __version__

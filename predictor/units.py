@@ -182,13 +182,14 @@ def check_dimension(quantity, expected: str, field: str, power_law: bool = False
 
     Examples
     --------
+    >>> Q_ = registry().Quantity
     >>> check_dimension(Q_(800, "mPa*s"), "Pa*s", "zero_shear_viscosity_Pa_s")
     >>> check_dimension(Q_(800, "mm"), "Pa*s", "eta_0")  # doctest: +ELLIPSIS
     Traceback (most recent call last):
     ...
     predictor.errors.UnitError: eta_0: unit 'mm' has the dimension [length]; expected a ...
     """
-    target = ureg.parse_units("" if expected.strip() in ("", "-") else expected)
+    target = registry().parse_units("" if expected.strip() in ("", "-") else expected)
     dims = dict(quantity.dimensionality)
     if power_law:
         ok = dims.get("[mass]") == 1 and dims.get("[length]") == -1 and set(dims) <= {
