@@ -524,4 +524,45 @@ def particle_verdicts(scenario: str) -> dict:
         form = formulation(scenario)
         return {"rows": fm.interaction_rows(form),
                 "yield_stress_Pa": fm.flocculation_yield_stress(form)}
+
+
+# --- Process checks ----------------------------------------------------------------------------
+
+
+@st.cache_data(**CACHE)
+def pipe_flow(scenario: str, flows_m3_per_s: float | tuple[float, ...], diameter_m: float,
+              length_m: float, roughness_m: float) -> dict:
+    """`process.pipe_flow_of` at one flow rate (a float) or each of a tuple of them:
+    {"value": PipeFlow, "warnings": [...]}."""
+    from predictor import process
+
+    flows = np.asarray(flows_m3_per_s) if isinstance(flows_m3_per_s, tuple) else flows_m3_per_s
+
+    def run():
+        return process.pipe_flow_of(formulation(scenario), flows, diameter_m, length_m,
+                                    roughness_m)
+    return dict(zip(("value", "warnings"), _captured(run), strict=True))
+
+
+@st.cache_data(**CACHE)
+def stirred_tank(scenario: str, speed_1_per_s: float, impeller_diameter_m: float,
+                 tank_diameter_m: float, impeller: str) -> dict:
+    """`process.stirred_tank_of`: {"value": StirredTank, "warnings": [...]}."""
+    from predictor import process
+
+    def run():
+        return process.stirred_tank_of(formulation(scenario), speed_1_per_s,
+                                       impeller_diameter_m, tank_diameter_m, impeller)
+    return dict(zip(("value", "warnings"), _captured(run), strict=True))
+
+
+@st.cache_data(**CACHE)
+def coating(scenario: str, thickness_m: float, wavelength_m: float,
+            surface_tension_N_per_m: float) -> dict:
+    """`process.coating_of`: {"value": Coating, "warnings": [...]}."""
+    from predictor import process
+
+    def run():
+        return process.coating_of(formulation(scenario), thickness_m, wavelength_m,
+                                  surface_tension_N_per_m=surface_tension_N_per_m)
     return dict(zip(("value", "warnings"), _captured(run), strict=True))

@@ -128,6 +128,11 @@ DEFAULTS: dict[str, object] = {
     # Flow curve page
     "process_shear_rate": 100.0, "flow_process": "(my own shear rate)",
     "flow_low": 1e-3, "flow_high": 1e5, "flow_show_stress": True,
+    # Process checks page (units fixed in the labels)
+    "pc_flow": 10.0, "pc_flow_max": 100.0, "pc_diameter": 25.0, "pc_length": 10.0,
+    "pc_roughness": 0.0, "pc_impeller": "disc turbine", "pc_speed": 120.0,
+    "pc_impeller_d": 100.0, "pc_tank_d": 300.0, "pc_thickness": 100.0,
+    "pc_wavelength": 1.0, "pc_surface_tension": 35.0,
     # Sizes & packing page
     "sz_source": "generated", "sz_ingredient": "", "sz_table_bytes": b"",
     "sz_table_name": "", "sz_message": "", "sz_kind": "lognormal", "sz_size": 5.0,

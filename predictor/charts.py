@@ -234,6 +234,36 @@ def lines(data: pd.DataFrame, *, x: str, y: str, series: str, x_title: str, y_ti
     return fig.spec(chart, big)
 
 
+def system_curve(curve: pd.DataFrame, *, x_title: str, y_title: str,
+                 point: dict | None = None, restart: float | None = None,
+                 big: bool = False) -> dict:
+    """Pressure drop against flow rate (columns flow, pressure, regime), the operating point
+    and the restart pressure as a dashed rule; log-log, to lay over a pump curve."""
+    fig = Figure()
+    regimes = ["laminar", "transitional", "turbulent"]
+    colour = alt.Color("regime:N", title="Regime", sort=regimes,
+                       scale=alt.Scale(domain=regimes, range=["#1f77b4", "#ff7f0e", "#d62728"]))
+    x = alt.X("flow:Q", title=x_title, scale=alt.Scale(type="log"))
+    y = alt.Y("pressure:Q", title=y_title, scale=alt.Scale(type="log"))
+    tips = [alt.Tooltip("flow:Q", format=".4g", title=x_title),
+            alt.Tooltip("pressure:Q", format=".4g", title=y_title),
+            alt.Tooltip("regime:N", title="Regime")]
+    parts = [fig.chart(curve).mark_line(strokeWidth=2.4, color="#555").encode(x=x, y=y),
+             fig.chart(curve).mark_circle(size=38).encode(x=x, y=y, color=colour,
+                                                          tooltip=tips)]
+    if restart is not None and restart > 0:
+        parts.append(fig.chart(pd.DataFrame({"pressure": [restart]})).mark_rule(
+            strokeDash=[6, 4], color="#7f7f7f").encode(
+            y="pressure:Q", tooltip=[alt.Tooltip("pressure:Q", format=".4g",
+                                                 title="Restart pressure")]))
+    if point is not None:
+        parts.append(fig.chart(pd.DataFrame([point])).mark_point(
+            shape="diamond", size=180, filled=True, color="black").encode(
+            x="flow:Q", y="pressure:Q", tooltip=tips[:2]))
+    chart = fig.layer(*parts, height=_height(big), width="container")
+    return fig.spec(chart, big)
+
+
 #: Width in pixels of an exported chart (PNG/SVG) drawn at the page's container width.
 EXPORT_WIDTH = 820
 

@@ -585,6 +585,76 @@ def cmd_report(args) -> int:
     return EXIT_OK
 
 
+def _pipe_flows(args) -> np.ndarray:
+    flows = [_quantity(t, "flow_rate", "--flow") for t in args.flow]
+    if args.flow_to is None:
+        return np.array(flows)
+    high = _quantity(args.flow_to, "flow_rate", "--flow-to")
+    if len(flows) != 1 or not 0 < flows[0] < high:
+        raise UnitError(f"--flow-to = {args.flow_to!r} needs one --flow below it "
+                        "(the start of the range).")
+    if not 2 <= args.points <= 10_000:
+        raise UnitError(f"--points = {args.points} is not allowed; expected 2 to 10000.")
+    return np.geomspace(flows[0], high, args.points)
+
+
+def pipe_table(flow, flow_unit: str = "L/min", pressure_unit: str = "bar") -> pd.DataFrame:
+    """The rows of a `process.PipeFlow` in the units people read (table, CSV, JSON, report).
+
+    The friction factor is Fanning's (a quarter of Darcy's)."""
+    rows = pd.DataFrame(flow.rows())
+    return pd.DataFrame({
+        f"flow [{flow_unit}]": units.from_si(rows["flow_rate_m3_per_s"].to_numpy(), flow_unit,
+                                       "flow_rate"),
+        "velocity [m/s]": rows["mean_velocity_m_per_s"],
+        f"pressure drop [{pressure_unit}]": units.from_si(rows["pressure_drop_Pa"].to_numpy(),
+                                                    pressure_unit, "pressure"),
+        "regime": rows["regime"],
+        "Reynolds [-]": rows["reynolds"],
+        "critical Reynolds [-]": rows["critical_reynolds"],
+        "n' [-]": rows["flow_index"],
+        "friction factor [-]": rows["friction_factor"],
+        "wall stress [Pa]": rows["wall_shear_stress_Pa"],
+        "wall shear rate [1/s]": rows["wall_shear_rate_1_per_s"],
+        "plug radius [mm]": 1e3 * rows["plug_radius_m"],
+        "correlation": rows["correlation"],
+    })
+
+
+def cmd_pipe(args) -> int:
+    from .process import CAUTION, pipe_flow_of
+
+    form = _scenario(args.scenario)
+    flows = _pipe_flows(args)
+    diameter = _quantity(args.diameter, "length", "--diameter")
+    length = _quantity(args.length, "length", "--length")
+    roughness = _quantity(args.roughness, "length", "--roughness")
+    for unit, dimension, option in ((args.flow_unit, "flow_rate", "--flow-unit"),
+                                    (args.pressure_unit, "pressure", "--pressure-unit")):
+        try:
+            units.from_si(1.0, unit, dimension)
+        except Exception:  # pint raises several kinds; one message for all
+            raise UnitError(f"{option} = {unit!r} is not a {dimension.replace('_', ' ')} "
+                            "unit.") from None
+    flow = pipe_flow_of(form, flows, diameter, length, roughness)
+    meta = {"scenario": form.name, "diameter_m": diameter, "length_m": length,
+            "roughness_m": roughness, "density_kg_per_m3": flow.density_kg_per_m3,
+            "yield_stress_Pa": flow.yield_stress_Pa,
+            "startup_pressure_Pa": flow.startup_pressure_Pa,
+            "hedstrom_number": flow.hedstrom_number, "warnings": list(flow.warnings),
+            "caution": CAUTION}
+    pu = args.pressure_unit
+    restart = units.from_si(flow.startup_pressure_Pa, pu, "pressure")
+    head = (f"scenario: {form.name or '(unnamed)'}\n"
+            f"pipe: D = {1e3 * diameter:.4g} mm, L = {length:.4g} m, roughness "
+            f"{1e3 * roughness:.3g} mm; density {flow.density_kg_per_m3:.4g} kg/m3\n"
+            f"apparent yield stress {flow.yield_stress_Pa:.3g} Pa; restart pressure of the "
+            f"standing line 4 tau_y L/D = {restart:.4g} {pu}\n"
+            f"Caution: {CAUTION}\n")
+    _emit(args, pipe_table(flow, args.flow_unit, pu), meta, head)
+    return EXIT_OK
+
+
 def cmd_demo(args) -> int:
     from .formulation import loading_sweep, max_loading, mixture, predict, solid_mass_fraction
     from .report import inputs_table, liquid_table
@@ -685,6 +755,16 @@ examples:
   loadline report slip.loadline.json -o slip.html --pdf slip.pdf --viscosity-unit mPa*s
 
 The HTML file is self-contained (charts embedded as SVG); it opens without a network.""",
+    "pipe": """\
+examples:
+  loadline pipe data_demo/mineral_coating.loadline.json --flow "10 L/min" \\
+      --diameter "25 mm" --length "10 m"
+  loadline pipe paint.loadline.json --flow "1 L/min" --flow-to "100 L/min" --points 20 \\
+      --diameter "1 in" --length "30 m" --csv > system_curve.csv
+
+Laminar flow from the predicted flow curve (Rabinowitsch-Mooney); transition by the
+Metzner-Reed Reynolds number (Hanks for Bingham liquids); turbulent friction by Colebrook,
+Dodge-Metzner or Darby. The restart pressure 4 tau_y L/D is printed above the table.""",
     "demo": """\
 examples:
   loadline demo
@@ -708,7 +788,8 @@ def build_parser() -> argparse.ArgumentParser:
         prog="loadline",
         description="Loadline: viscosity of suspensions and emulsions from what is known "
                     "before the lab trial.",
-        epilog="commands: predict, sweep, max-load, screen, pack, fit, report, models, demo. "
+        epilog="commands: predict, sweep, max-load, screen, pack, fit, report, pipe, models, "
+               "demo. "
                "Run 'loadline COMMAND --help' for examples.\n\n" + _EPILOG,
         formatter_class=argparse.RawDescriptionHelpFormatter)
     parser.add_argument("--version", action="version", version=f"loadline {__version__}")
@@ -791,9 +872,28 @@ def build_parser() -> argparse.ArgumentParser:
     p.add_argument("--pdf", help="also write this PDF file")
     _add_output(p, machine=False)
 
+    p = add("pipe", "pressure drop, regime and restart pressure in a pipe or hose", cmd_pipe)
+    p.add_argument("scenario", help="scenario file (*.loadline.json)")
+    p.add_argument("--flow", action="append", required=True, metavar="FLOW",
+                   help='flow rate with its unit, e.g. "10 L/min" (repeatable)')
+    p.add_argument("--flow-to", metavar="FLOW",
+                   help="end of a flow range from --flow (a system curve)")
+    p.add_argument("--points", type=int, default=11,
+                   help="points of the flow range (default 11)")
+    p.add_argument("--diameter", required=True, metavar="LENGTH",
+                   help='inner diameter, e.g. "25 mm"')
+    p.add_argument("--length", required=True, metavar="LENGTH", help='length, e.g. "10 m"')
+    p.add_argument("--roughness", default="0 m", metavar="LENGTH",
+                   help='wall roughness, e.g. "0.05 mm" (default 0: smooth)')
+    p.add_argument("--flow-unit", default="L/min", metavar="UNIT",
+                   help="unit of flow rates in the table (default L/min)")
+    p.add_argument("--pressure-unit", default="bar", metavar="UNIT",
+                   help="unit of pressures in the table (default bar)")
+    _add_output(p, viscosity=False)
+
     p = add("models", "the published relations Loadline knows, with their sources", cmd_models)
     p.add_argument("--kind", choices=["suspension", "emulsion", "packing", "liquid", "shear",
-                                      "interaction"],
+                                      "process", "interaction"],
                    help="only relations of this kind")
     _add_output(p, viscosity=False)
 

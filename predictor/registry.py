@@ -13,7 +13,7 @@ from dataclasses import dataclass
 
 from .errors import InputRangeError, UnknownModelError
 
-KINDS = ("suspension", "emulsion", "packing", "liquid", "shear", "interaction")
+KINDS = ("suspension", "emulsion", "packing", "liquid", "shear", "process", "interaction")
 
 
 @dataclass(frozen=True)
@@ -101,7 +101,7 @@ class ModelSpec:
 _MODELS: dict[str, ModelSpec] = {}
 #: The modules that register relations; `models()` and `get_model()` import them on first use.
 MODEL_MODULES = ("suspension", "emulsion", "packing", "liquids", "shear", "sizes", "stability",
-                 "interactions")
+                 "process", "interactions")
 _LOADED: list[bool] = []
 
 

@@ -2,7 +2,8 @@
 
 The report formats what `predictor` computes; it computes nothing itself. Sections: inputs
 echoed with units, summary, flow curve, loading sweep with the packing range, process
-windows, uncertainty, storage, the relations used with their sources, and the cautions.
+windows, process checks (pipe, mixer, film at reference conditions), uncertainty, storage,
+the relations used with their sources, and the cautions.
 
 Charts are Altair charts rendered offline by vl-convert and embedded as inline SVG, so the
 HTML opens without a network. The PDF is one long vector page: the same text, tables and
@@ -270,6 +271,8 @@ def build_report(form: fm.Formulation, viscosity_unit: str = "Pa*s",
     sec.paragraphs.append(f"Shear rates: {origin}.")
     sections.append(sec)
 
+    sections.append(_process_checks_section(form, notes))
+
     sec = Section("Uncertainty")
     if has_solids:
         try:
@@ -342,6 +345,64 @@ def _interaction_section(form: fm.Formulation, rows: list[dict]) -> Section:
     for row in rows:
         if row["notes"]:
             sec.paragraphs.append(f"Note ({row['ingredient']}): {row['notes']}")
+
+
+#: Reference conditions of the report's process checks (our own round numbers, to be
+#: replaced by the real line, mixer and film: app page "Process checks", `loadline pipe`).
+PROCESS_REFERENCE = {"flows_L_per_min": (1.0, 10.0, 100.0), "diameter_m": 0.025,
+                     "length_m": 10.0, "impeller": "disc turbine", "speed_rpm": 120.0,
+                     "impeller_diameter_m": 0.1, "tank_diameter_m": 0.3,
+                     "film_thickness_m": 100e-6, "wavelength_m": 1e-3,
+                     "surface_tension_N_per_m": 0.035}
+
+
+def _process_checks_section(form, notes: list[str]) -> Section:
+    """Pipe, mixer and coating numbers at `PROCESS_REFERENCE` (the `loadline pipe` table)."""
+    from . import process
+    from .cli import pipe_table
+
+    ref = PROCESS_REFERENCE
+    sec = Section("Process checks")
+    sec.paragraphs.append(
+        f"At reference conditions: a smooth pipe or hose of {1e3 * ref['diameter_m']:g} mm "
+        f"bore and {ref['length_m']:g} m; a {ref['impeller']} of "
+        f"{1e3 * ref['impeller_diameter_m']:g} mm at {ref['speed_rpm']:g} rpm in a "
+        f"{1e3 * ref['tank_diameter_m']:g} mm tank; a {1e6 * ref['film_thickness_m']:g} um "
+        "wet film on a vertical wall. Use the app's Process checks page or loadline pipe "
+        "for your own line, mixer and film.")
+    try:
+        with warnings.catch_warnings(record=True) as caught:
+            warnings.simplefilter("always")
+            flows = np.array(ref["flows_L_per_min"]) / 60e3
+            flow = process.pipe_flow_of(form, flows, ref["diameter_m"], ref["length_m"])
+            tank = process.stirred_tank_of(form, ref["speed_rpm"] / 60,
+                                           ref["impeller_diameter_m"], ref["tank_diameter_m"],
+                                           ref["impeller"])
+            film = process.coating_of(form, ref["film_thickness_m"], ref["wavelength_m"],
+                                      surface_tension_N_per_m=ref["surface_tension_N_per_m"])
+    except LoadlineError as err:
+        sec.paragraphs.append(f"No process checks: {err}")
+        return sec
+    sec.tables.append(("Pipe or hose", pipe_table(flow)))
+    level = ("never (a yield stress holds the ripple)" if not math.isfinite(
+        film.levelling_time_s) else _g(film.levelling_time_s))
+    sec.tables.append(("Restart, mixer and film", pd.DataFrame([
+        ("apparent yield stress", _g(flow.yield_stress_Pa), "Pa"),
+        ("restart pressure of the standing line, 4 tau_y L/D",
+         _g(flow.startup_pressure_Pa / 1e5), "bar"),
+        ("mixer: Metzner-Otto shear rate", _g(tank.effective_shear_rate_1_per_s), "1/s"),
+        ("mixer: viscosity at that rate", _g(tank.viscosity_Pa_s), "Pa*s"),
+        ("mixer: impeller Reynolds number", _g(tank.reynolds), f"- ({tank.regime})"),
+        ("mixer: power", _g(tank.power_W), "W"),
+        ("mixer: cavern (flow does not reach the wall)", "yes" if tank.cavern else "no", ""),
+        ("film: wall stress rho g h", _g(film.wall_shear_stress_Pa), "Pa"),
+        ("film: stands (no sag)", "yes" if film.stands else "no", ""),
+        ("film: sag velocity of the surface", _g(1e3 * film.sag_velocity_m_per_s), "mm/s"),
+        (f"film: levelling time (ripple down {process.LEVELLING_FACTOR:g}-fold)", level, "s"),
+    ], columns=["quantity", "value", "unit"])))
+    for message in dict.fromkeys(str(w.message) for w in caught):
+        sec.paragraphs.append(f"Note: {message}")
+    sec.paragraphs.append(f"Caution: {process.CAUTION}")
     return sec
 
 

@@ -53,6 +53,8 @@ SI_UNITS = {
     "time": "s",
     "dimensionless": "",
     "consistency": "Pa*s",   # power-law consistency K: Pa*s^n, checked loosely (n varies)
+    "flow_rate": "m**3/s",
+    "pressure": "Pa",
     "potential": "V",
     "energy": "J",
     "concentration": "mol/L",

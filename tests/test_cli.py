@@ -19,7 +19,8 @@ from predictor.scenario import read_scenario
 
 DEMO = pathlib.Path(__file__).resolve().parents[1] / "data_demo"
 SCENARIO = str(DEMO / "mineral_coating.loadline.json")
-COMMANDS = ["predict", "sweep", "max-load", "screen", "pack", "fit", "report", "models", "demo"]
+COMMANDS = ["predict", "sweep", "max-load", "screen", "pack", "fit", "report", "pipe", "models",
+            "demo"]
 
 
 def run(capsys, *argv):

@@ -27,6 +27,7 @@ from predictor import (
     interactions,
     liquids,
     packing,
+    process,
     shear,
     sizes,
     stability,
@@ -37,7 +38,7 @@ from predictor.errors import LoadlineError, ValidityWarning
 from tests.conftest import FUZZ_CASES, FUZZ_EXAMPLES
 
 MODULES = [suspension, emulsion, liquids, shear, stability, composition, viscosity, packing,
-           interactions]
+           process, interactions]
 # Slow by design (seconds per call): fuzzed with few cases in their own tests.
 SLOW = {"jamming_simulation", "simulation", "simulation_fit", "max_packing_simulation"}
 

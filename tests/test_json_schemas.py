@@ -29,6 +29,11 @@ RUNS = {
     "fit": [["fit", str(DEMO / "lab_loading_series.csv"), "--particle-density",
              "2700 kg/m**3", "--liquid-density", "997 kg/m**3", "--liquid-viscosity",
              "0.89 mPa*s"]],
+    "pipe": [["pipe", SLIP, "--flow", "10 L/min", "--flow", "300 L/min", "--diameter",
+              "25 mm", "--length", "10 m"],
+             ["pipe", str(DEMO / "mineral_coating.loadline.json"), "--flow", "1 L/min",
+              "--flow-to", "1 m**3/h", "--points", "4", "--diameter", "1 in", "--length",
+              "30 m", "--flow-unit", "m**3/h", "--pressure-unit", "kPa"]],
     "screen": [["screen", str(DEMO / "candidates.csv")],
                ["screen", str(DEMO / "candidates_with_errors.csv")]],
 }

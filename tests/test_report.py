@@ -15,7 +15,7 @@ from predictor.scenario import read_scenario
 
 DEMO = pathlib.Path(__file__).resolve().parents[1] / "data_demo"
 SECTIONS = ["Inputs", "Summary", "Flow curve", "Loading sweep and packing range",
-            "Process windows", "Uncertainty", "Storage (settling and creaming)",
+            "Process windows", "Process checks", "Uncertainty", "Storage (settling and creaming)",
             "Relations used and their sources", "Cautions"]
 
 
@@ -85,6 +85,20 @@ def test_cautions_models_and_sources(coating):
     text = coating[0].read_text(encoding="utf-8").replace("&#x27;", "'")
     assert text.count(CAUTIONS) == 2                # top box and last section
     assert "krieger-dougherty" in text and "Krieger &amp; Dougherty" in text
+
+
+def test_process_checks_match_the_core(coating):
+    # The pipe table is process.pipe_flow_of at the reference conditions, with its caution.
+    from predictor import process
+    from predictor.report import PROCESS_REFERENCE, _g
+
+    text = coating[0].read_text(encoding="utf-8").replace("&#x27;", "'")
+    form = read_scenario(DEMO / "mineral_coating.loadline.json")
+    ref = PROCESS_REFERENCE
+    flow = process.pipe_flow_of(form, ref["flows_L_per_min"][1] / 60e3, ref["diameter_m"],
+                                ref["length_m"])
+    assert f"<td class='n'>{_g(flow.pressure_drop_Pa / 1e5)}</td>" in text
+    assert process.CAUTION in text
 
 
 def test_pdf_written(coating):

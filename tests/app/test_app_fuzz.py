@@ -32,7 +32,7 @@ BASE_SEED = int(os.environ.get("LOADLINE_APP_FUZZ_SEED", "0"))
 # (seed, opening scenario): every demo is a starting point; more walks under a long run.
 WALKS = [(1, "mineral_coating"), (2, "hand_cream"), (3, "ceramic_slip"), (4, "mineral_coating")]
 PAGES = ["loading_sweep", "flow_curve", "sizes_packing", "droplets", "calibrate",
-         "batch_screen", "particle_forces"]
+         "batch_screen", "process_checks", "particle_forces"]
 # Buttons left out of the walk: the jamming simulation runs for seconds to minutes.
 SLOW_BUTTONS = {"sz_run"}
 TRACEBACK = "Traceback (most recent call last)"

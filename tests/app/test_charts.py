@@ -134,6 +134,11 @@ def test_every_builder_writes_valid_vega_lite(big):
                               big=big),
         charts.blend_curve(blend2, names=["coarse", "fine"], big=big),
         charts.blend_curve(blend3, names=["a", "b", "c"], big=big),
+        charts.system_curve(pd.DataFrame({"flow": [1.0, 10.0, 100.0],
+                                          "pressure": [0.1, 0.3, 2.0],
+                                          "regime": ["laminar", "laminar", "turbulent"]}),
+                            x_title="Flow rate [L/min]", y_title="Pressure drop [bar]",
+                            point={"flow": 10.0, "pressure": 0.3}, restart=0.5, big=big),
     ]
     for spec in specs:
         _valid(spec)  # schema validation; raises on an invalid spec
