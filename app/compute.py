@@ -524,6 +524,7 @@ def particle_verdicts(scenario: str) -> dict:
         form = formulation(scenario)
         return {"rows": fm.interaction_rows(form),
                 "yield_stress_Pa": fm.flocculation_yield_stress(form)}
+    return dict(zip(("value", "warnings"), _captured(run), strict=True))
 
 
 # --- Process checks ----------------------------------------------------------------------------

@@ -345,6 +345,7 @@ def _interaction_section(form: fm.Formulation, rows: list[dict]) -> Section:
     for row in rows:
         if row["notes"]:
             sec.paragraphs.append(f"Note ({row['ingredient']}): {row['notes']}")
+    return sec
 
 
 #: Reference conditions of the report's process checks (our own round numbers, to be
