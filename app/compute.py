@@ -567,3 +567,56 @@ def coating(scenario: str, thickness_m: float, wavelength_m: float,
         return process.coating_of(formulation(scenario), thickness_m, wavelength_m,
                                   surface_tension_N_per_m=surface_tension_N_per_m)
     return dict(zip(("value", "warnings"), _captured(run), strict=True))
+
+
+# --- Design map ----------------------------------------------------------------------------
+
+
+@st.cache_data(**CACHE)
+def loading_map(scenario: str, x: int, y: int, x_range: tuple[float, float],
+                y_range: tuple[float, float], shear_rate_1_per_s: float, n: int, basis: str,
+                windows: tuple[tuple, ...]) -> dict:
+    """`design.loading_map` of the scenario (windows as (name, rate, max, min) tuples)."""
+    from predictor import design
+
+    def run():
+        grid = design.loading_map(formulation(scenario), x, y, x_range, y_range,
+                                  shear_rate_1_per_s, n=n, basis=basis,
+                                  windows=list(windows) or None)
+        for message in grid.attrs.get("warnings", ()):
+            warnings.warn(message, predictor.ValidityWarning, stacklevel=2)
+        return grid
+    return dict(zip(("value", "warnings"), _captured(run), strict=True))
+
+
+@st.cache_data(**CACHE)
+def loading_ternary(scenario: str, parts: tuple, shear_rate_1_per_s: float, n: int,
+                    basis: str, windows: tuple[tuple, ...]) -> dict:
+    """`design.loading_ternary` of the scenario (parts by index, or "liquid")."""
+    from predictor import design
+
+    def run():
+        tri = design.loading_ternary(formulation(scenario), parts, shear_rate_1_per_s, n=n,
+                                     basis=basis, windows=list(windows) or None)
+        for message in tri.attrs.get("warnings", ()):
+            warnings.warn(message, predictor.ValidityWarning, stacklevel=2)
+        return tri
+    return dict(zip(("value", "warnings"), _captured(run), strict=True))
+
+
+@st.cache_data(**CACHE)
+def candidates(scenario: str, factors: tuple[tuple[str, float, float], ...], design: str,
+               n: int, levels: int, seed: int, windows: tuple[tuple, ...]) -> dict:
+    """A candidate table (CSV bytes per file name, the table first) for the batch screen."""
+    from predictor import candidates as cand
+
+    def run():
+        table, files = cand.candidate_table(formulation(scenario),
+                                            {name: (lo, hi) for name, lo, hi in factors},
+                                            design=design, n=n, levels=levels, seed=seed,
+                                            windows=list(windows) or None)
+        out = {"candidates_from_design_map.csv": table.to_csv(index=False,
+                                                              float_format="%.12g").encode()}
+        out.update({name: frame.to_csv(index=False).encode() for name, frame in files.items()})
+        return out
+    return dict(zip(("value", "warnings"), _captured(run), strict=True))

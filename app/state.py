@@ -151,6 +151,15 @@ DEFAULTS: dict[str, object] = {
     # Particle forces page (salt in mmol/L, potential in mV, layer in nm, A in 1e-20 J)
     "pf_ingredient": "", "pf_salt": 1.0, "pf_potential": 30.0, "pf_layer": 0.0,
     "pf_hamaker": 4.8,
+    # Design map page (loadings in % on the chosen basis, windows in SI)
+    "map_mode": "plane", "map_x": 0, "map_y": 1, "map_parts": [0, 1, -1],
+    "map_x_low": 20.0, "map_x_high": 60.0, "map_y_low": 0.0, "map_y_high": 40.0,
+    "map_rate": 100.0, "map_n": 11, "map_basis": "mass", "map_message": "",
+    "map_windows": [{"name": "pumping", "shear_rate_1_per_s": 100.0,
+                     "max_viscosity_Pa_s": 2.0, "min_viscosity_Pa_s": None},
+                    {"name": "sag resistance", "shear_rate_1_per_s": 0.1,
+                     "max_viscosity_Pa_s": None, "min_viscosity_Pa_s": 10.0}],
+    "cand_design": "full-factorial", "cand_n": 16, "cand_levels": 3, "cand_seed": 0,
     # messages from callbacks, shown on the next run
     "scenario_message": "", "scenario_warning": "", "scenario_loaded": False,
 }
@@ -483,6 +492,15 @@ def apply_text(text: str, ss: MutableMapping | None = None, source: str = "") ->
     form, notes = with_notes(sc.loads, text, source or "the scenario")
     apply_formulation(form, ss, source=source)
     _session(ss)["scenario_warning"] = " ".join(notes)
+
+
+def set_loadings(loadings: dict[int, float], basis: str,
+                 ss: MutableMapping | None = None) -> None:
+    """Set ingredients' loadings (fractions on `basis`), e.g. a design-map cell's recipe."""
+    ss = _session(ss)
+    for k, value in loadings.items():
+        ss[ingredient_key(int(k), "loading")] = _clean(round(100.0 * float(value), 6))
+        ss[ingredient_key(int(k), "basis")] = basis
 
 
 def add_ingredient(ss: MutableMapping | None = None) -> None:

@@ -455,16 +455,22 @@ def metric_row(items: list[tuple]) -> None:
                        delta_arrow="off")
 
 
-def chart_block(chart, data: pd.DataFrame, stem: str, key: str, export=None) -> None:
+def chart_block(chart, data: pd.DataFrame, stem: str, key: str, export=None,
+                on_select=None) -> None:
     """The chart (a Vega-Lite spec from predictor/charts.py), then downloads of its data (CSV)
     and of the chart itself (PNG, SVG).
 
     `chart` may be a list of panels sharing an x axis, drawn one under the other; then
     `export` is a zero-argument callable building the joined chart for PNG/SVG.
+    `on_select` (a callback) makes a single chart's selections rerun the page; the event
+    is in session state under ``f"{key}_chart"``.
     """
     if isinstance(chart, list):
         for k, panel in enumerate(chart):
             st.vega_lite_chart(spec=panel, width="stretch", key=f"{key}_chart{k}")
+    elif on_select is not None:
+        st.vega_lite_chart(spec=chart, width="stretch", key=f"{key}_chart", on_select=on_select,
+                           selection_mode="cell")
     else:
         st.vega_lite_chart(spec=chart, width="stretch", key=f"{key}_chart")
     if export is None:

@@ -585,6 +585,202 @@ def cmd_report(args) -> int:
     return EXIT_OK
 
 
+# -- map ----------------------------------------------------------------------------------
+
+_RANGE = re.compile(r"^\s*(\S+)\s+(\S+)\s*(.*?)\s*$")
+
+
+def _loading_range(text: str, option: str) -> tuple[tuple[float, float], str]:
+    """'20 45 wt%' -> ((0.2, 0.45), "mass")."""
+    from .units import parse_loading
+
+    match = _RANGE.match(str(text))
+    if not match:
+        raise UnitError(f"{option} = {text!r} could not be read; write two loadings and a "
+                        "unit, e.g. '20 45 wt%' or '5 25 vol%'.")
+    low, high, unit = match.groups()
+    (a, basis), (b, _) = (parse_loading(f"{v} {unit}".strip(), option, "mass")
+                          for v in (low, high))
+    return (a, b), basis
+
+
+def _ingredient_arg(form, text: str, option: str):
+    """An ingredient given on the command line: its number (1 = first) or its name."""
+    from .errors import InputRangeError
+
+    names = [i.name for i in form.ingredients]
+    if text in names:
+        return names.index(text)
+    if str(text).strip().isdigit() and 1 <= int(text) <= len(names):
+        return int(text) - 1
+    if str(text).strip().lower() == "liquid" and option == "--z":
+        return "liquid"
+    raise InputRangeError(option, text, f"an ingredient number from 1 to {len(names)} or one "
+                                        "of the names " + ", ".join(repr(n) for n in names))
+
+
+def _window_arg(text: str):
+    """'pumping, 100 1/s, max 2 Pa*s[, min 0.1 Pa*s]' -> (name, rate, max, min) in SI."""
+    parts = [p.strip() for p in str(text).split(",")]
+    if len(parts) < 3 or not parts[0]:
+        raise UnitError(f"--window = {text!r} could not be read; write e.g. "
+                        "'pumping, 100 1/s, max 2 Pa*s' or 'sag, 0.1 1/s, min 10 Pa*s'.")
+    rate = _quantity(parts[1], "shear_rate", f"--window {parts[0]!r} shear rate")
+    limits = {"max": None, "min": None}
+    for part in parts[2:]:
+        word, _, value = part.partition(" ")
+        if word.lower() not in limits or not value.strip():
+            raise UnitError(f"--window {parts[0]!r}: {part!r} should read 'max VISCOSITY' or "
+                            "'min VISCOSITY', e.g. 'max 2 Pa*s'.")
+        limits[word.lower()] = _quantity(value, "viscosity", f"--window {parts[0]!r} {word}")
+    return parts[0], rate, limits["max"], limits["min"]
+
+
+def cmd_map(args) -> int:
+    from . import design
+
+    unit = _check_viscosity_unit(args.viscosity_unit)
+    if not 2 <= args.n <= design.MAX_GRID:
+        raise UnitError(f"-n = {args.n} is not allowed; expected 2 to {design.MAX_GRID}.")
+    form = _scenario(args.scenario)
+    rate = _quantity(args.shear_rate, "shear_rate", "--shear-rate")
+    windows = [_window_arg(t) for t in args.window or []] or None
+    x = _ingredient_arg(form, args.x, "--x")
+    y = _ingredient_arg(form, args.y, "--y")
+    if args.z is not None:
+        z = _ingredient_arg(form, args.z, "--z")
+        total, basis = (None, args.basis) if args.total is None else (
+            _total(args.total))
+        grid = design.loading_ternary(form, (x, y, z), rate, total=total, n=args.n,
+                                      basis=basis, windows=windows)
+        names = grid.attrs["parts"]
+        lead = {f"share {k} [-]": grid[f"share_{k}"] for k in (1, 2, 3)}
+        meta_names = {"parts": names, "total": grid.attrs["total"]}
+    else:
+        (x_range, x_basis), (y_range, y_basis) = (
+            _loading_range(args.x_range, "--x-range"), _loading_range(args.y_range, "--y-range"))
+        if x_basis != y_basis:
+            raise UnitError(f"--x-range is in {x_basis} and --y-range in {y_basis} fractions; "
+                            "give both on the same basis (wt% or vol%).")
+        grid = design.loading_map(form, x, y, x_range, y_range, rate, n=args.n, basis=x_basis,
+                                  windows=windows)
+        basis = x_basis
+        sign = "wt%" if basis == "mass" else "vol%"
+        lead = {f"{grid.attrs['x_ingredient']} [{sign}]": 100 * grid["x_loading"],
+                f"{grid.attrs['y_ingredient']} [{sign}]": 100 * grid["y_loading"]}
+        meta_names = {"x_ingredient": grid.attrs["x_ingredient"],
+                      "y_ingredient": grid.attrs["y_ingredient"]}
+    for message in grid.attrs.get("warnings", ()):
+        warnings.warn(message, stacklevel=1)
+    if args.png:
+        _write_map_png(grid, unit, args.png, args.scenario)
+    meta = {"scenario": form.name, **meta_names, "basis": grid.attrs["basis"],
+            "shear_rate_1_per_s": rate, "viscosity_unit": unit,
+            "windows": grid.attrs["windows"], "current": grid.attrs["current"],
+            "cautions": CAUTIONS}
+    eta = units.from_si(grid["viscosity_Pa_s"].to_numpy(float), unit, "viscosity")
+    frame = pd.DataFrame({**lead, f"viscosity [{unit}]": eta,
+                          "phi/phi_max [-]": grid["phi_over_phi_max"],
+                          "regime": grid["regime"]})
+    for w in grid.attrs["windows"]:
+        frame[f"{w['name']} viscosity [{unit}]"] = units.from_si(
+            grid[f"{w['column']}_viscosity_Pa_s"].to_numpy(float), unit, "viscosity")
+        frame[f"{w['name']} pass"] = grid[f"{w['column']}_pass"].map({True: "pass",
+                                                                       False: "fail"})
+    if "feasible" in grid:
+        frame["feasible"] = grid["feasible"].map({True: "yes", False: "no"})
+    if args.output:
+        from .batch import write_table
+
+        write_table(frame, args.output, inputs=[args.scenario])
+    if args.json or args.csv:
+        _emit(args, frame, meta)
+        return EXIT_OK
+    head = (f"scenario: {form.name or '(unnamed)'}\n{len(grid)} recipes at "
+            f"{rate:g} 1/s, loadings on a {basis} basis"
+            + (f"; {int(grid['feasible'].sum())} inside every window"
+               if "feasible" in grid else ""))
+    print(head)
+    print(table_text(frame, max_rows=args.show))
+    print(f"\nCaution: {CAUTIONS}")
+    return EXIT_OK
+
+
+def _total(text: str) -> tuple[float, str]:
+    from .units import parse_loading
+
+    return parse_loading(text, "--total", "mass")
+
+
+def _write_map_png(grid, unit: str, path: str, scenario: str) -> None:
+    from . import charts
+    from .files import atomic_write
+
+    build = charts.design_triangle if "share_1" in grid else charts.design_map
+    atomic_write(path, charts.to_png(build(grid, unit, joined=True)), inputs=[scenario])
+
+
+# -- candidates -----------------------------------------------------------------------------
+
+_FACTOR_DIMENSIONS = {"d50": "length", "temperature": "temperature",
+                      "liquid viscosity": "viscosity"}
+
+
+def _factor_arg(form, text: str) -> tuple[str, tuple[float, float]]:
+    """'ingredient 1 loading: 20 40 wt%' -> ("ingredient 1 loading", (0.2, 0.4)) in SI."""
+    from .units import parse_loading
+
+    name, sep, rest = str(text).partition(":")
+    match = _RANGE.match(rest) if sep else None
+    if not match:
+        raise UnitError(f"--factor = {text!r} could not be read; write e.g. 'ingredient 1 "
+                        "loading: 20 40 wt%', 'ingredient 2 d50: 0.3 1.2 um' or "
+                        "'temperature: 15 45 degC'.")
+    name = " ".join(name.lower().split())
+    low, high, unit = match.groups()
+    what = name.split()[-1] if name.startswith("ingredient") else name
+    if what in ("loading", "glycerol"):
+        own = "mass"
+        if what == "loading":
+            k = name.split()[1]
+            if k.isdigit() and 1 <= int(k) <= len(form.ingredients):
+                own = form.ingredients[int(k) - 1].basis
+        values = [parse_loading(f"{v} {unit}".strip(), f"--factor {name!r}", own)
+                  for v in (low, high)]
+        if any(basis != own for _, basis in values):
+            raise UnitError(f"--factor {name!r}: give it on its own basis "
+                            f"({'wt%' if own == 'mass' else 'vol%'}).")
+        return name, (values[0][0], values[1][0])
+    dimension = _FACTOR_DIMENSIONS.get(what)
+    if dimension is None:       # candidates.candidate_table names the allowed factors
+        return name, (float("nan"), float("nan"))
+    return name, tuple(_quantity(f"{v} {unit}", dimension, f"--factor {name!r}")
+                       for v in (low, high))
+
+
+def cmd_candidates(args) -> int:
+    from . import candidates
+    from .batch import write_csv
+    from .files import atomic_write
+
+    form = _scenario(args.scenario)
+    factors = dict(_factor_arg(form, t) for t in args.factor)
+    windows = [_window_arg(t) for t in args.window or []] or None
+    table, size_tables = candidates.candidate_table(
+        form, factors, design=args.design, n=args.n, levels=args.levels, seed=args.seed,
+        windows=windows)
+    out = pathlib.Path(args.output)
+    if out.suffix.lower() != ".csv":
+        raise UnitError(f"-o {args.output!r}: the candidate table is written as .csv")
+    atomic_write(out, table.to_csv(index=False, float_format="%.12g"), inputs=[args.scenario])
+    for name, frame in size_tables.items():
+        write_csv(frame, out.parent / name)
+    print(f"wrote {len(table)} candidates ({args.design}) to {out}"
+          + (f" and {len(size_tables)} size tables beside it" if size_tables else "")
+          + f"; screen them with: loadline screen {out}")
+    return EXIT_OK
+
+
 def _pipe_flows(args) -> np.ndarray:
     flows = [_quantity(t, "flow_rate", "--flow") for t in args.flow]
     if args.flow_to is None:
@@ -598,31 +794,9 @@ def _pipe_flows(args) -> np.ndarray:
     return np.geomspace(flows[0], high, args.points)
 
 
-def pipe_table(flow, flow_unit: str = "L/min", pressure_unit: str = "bar") -> pd.DataFrame:
-    """The rows of a `process.PipeFlow` in the units people read (table, CSV, JSON, report).
-
-    The friction factor is Fanning's (a quarter of Darcy's)."""
-    rows = pd.DataFrame(flow.rows())
-    return pd.DataFrame({
-        f"flow [{flow_unit}]": units.from_si(rows["flow_rate_m3_per_s"].to_numpy(), flow_unit,
-                                       "flow_rate"),
-        "velocity [m/s]": rows["mean_velocity_m_per_s"],
-        f"pressure drop [{pressure_unit}]": units.from_si(rows["pressure_drop_Pa"].to_numpy(),
-                                                    pressure_unit, "pressure"),
-        "regime": rows["regime"],
-        "Reynolds [-]": rows["reynolds"],
-        "critical Reynolds [-]": rows["critical_reynolds"],
-        "n' [-]": rows["flow_index"],
-        "friction factor [-]": rows["friction_factor"],
-        "wall stress [Pa]": rows["wall_shear_stress_Pa"],
-        "wall shear rate [1/s]": rows["wall_shear_rate_1_per_s"],
-        "plug radius [mm]": 1e3 * rows["plug_radius_m"],
-        "correlation": rows["correlation"],
-    })
-
-
 def cmd_pipe(args) -> int:
     from .process import CAUTION, pipe_flow_of
+    from .report import pipe_table
 
     form = _scenario(args.scenario)
     flows = _pipe_flows(args)
@@ -755,6 +929,26 @@ examples:
   loadline report slip.loadline.json -o slip.html --pdf slip.pdf --viscosity-unit mPa*s
 
 The HTML file is self-contained (charts embedded as SVG); it opens without a network.""",
+    "map": """\
+examples:
+  loadline map data_demo/mineral_coating.loadline.json --x 1 --y 2 \\
+      --x-range "20 45 wt%" --y-range "5 25 wt%" --shear-rate "100 1/s"
+  loadline map paint.loadline.json --x filler --y pigment --shear-rate "100 1/s" \\
+      --window "pumping, 100 1/s, max 2 Pa*s" --window "sag, 0.1 1/s, min 10 Pa*s" --png map.png
+  loadline map paint.loadline.json --x 1 --y 2 --z liquid --shear-rate "100 1/s" -n 21 --json
+
+Ingredients by number (1 = first, as in the candidate table) or by name; every other
+ingredient keeps its scenario loading. Cells at or beyond the packing limit have no flow
+(viscosity inf, regime "jammed"). --json gives every cell in SI units (fractions, Pa*s).""",
+    "candidates": """\
+examples:
+  loadline candidates slurry.loadline.json --factor "ingredient 1 loading: 20 40 wt%" \\
+      --factor "ingredient 2 d50: 0.3 1.2 um" --factor "temperature: 15 45 degC" \\
+      --design latin-hypercube -n 50 --window "pumping, 100 1/s, max 1 Pa*s" -o cand.csv
+  loadline screen cand.csv
+
+Every other field of a row is the scenario's. The batch screen reads Newtonian liquids
+without thickening; a scenario it cannot read is refused, naming the field.""",
     "pipe": """\
 examples:
   loadline pipe data_demo/mineral_coating.loadline.json --flow "10 L/min" \\
@@ -788,9 +982,9 @@ def build_parser() -> argparse.ArgumentParser:
         prog="loadline",
         description="Loadline: viscosity of suspensions and emulsions from what is known "
                     "before the lab trial.",
-        epilog="commands: predict, sweep, max-load, screen, pack, fit, report, pipe, models, "
-               "demo. "
-               "Run 'loadline COMMAND --help' for examples.\n\n" + _EPILOG,
+        epilog="commands: predict, sweep, max-load, map, candidates, screen, pack, fit, "
+               "report, pipe, models, demo. Run 'loadline COMMAND --help' for examples.\n\n"
+               + _EPILOG,
         formatter_class=argparse.RawDescriptionHelpFormatter)
     parser.add_argument("--version", action="version", version=f"loadline {__version__}")
     sub = parser.add_subparsers(dest="command", metavar="COMMAND")
@@ -871,6 +1065,52 @@ def build_parser() -> argparse.ArgumentParser:
                    help="HTML file to write (default loadline_report.html)")
     p.add_argument("--pdf", help="also write this PDF file")
     _add_output(p, machine=False)
+
+    p = add("map", "design map: viscosity over two ingredients' loadings (or a triangle of "
+                   "three)", cmd_map)
+    p.add_argument("scenario", help="scenario file (*.loadline.json)")
+    p.add_argument("--x", required=True, metavar="INGREDIENT",
+                   help="ingredient across the map: its number (1 = first) or name")
+    p.add_argument("--y", required=True, metavar="INGREDIENT", help="ingredient up the map")
+    p.add_argument("--z", metavar="PART",
+                   help="a third part (ingredient or 'liquid'): draw a triangle instead")
+    p.add_argument("--x-range", default="0 50 wt%", metavar="RANGE",
+                   help='loadings across, e.g. "20 45 wt%%" (default "0 50 wt%%")')
+    p.add_argument("--y-range", default="0 50 wt%", metavar="RANGE",
+                   help='loadings up, e.g. "5 25 wt%%" (default "0 50 wt%%")')
+    p.add_argument("--total", metavar="LOADING",
+                   help='triangle: total of the three parts, e.g. "50 wt%%" (default: now)')
+    p.add_argument("--basis", choices=["mass", "volume"], default="mass",
+                   help="triangle: basis of the loadings (default mass)")
+    p.add_argument("--shear-rate", required=True, metavar="RATE",
+                   help='shear rate of the map, e.g. "100 1/s"')
+    p.add_argument("--window", action="append", metavar="WINDOW",
+                   help="a process window, e.g. 'pumping, 100 1/s, max 2 Pa*s' or "
+                        "'sag, 0.1 1/s, min 10 Pa*s' (repeatable)")
+    p.add_argument("-n", type=int, default=41, help="grid points per side (default 41)")
+    p.add_argument("--show", type=int, default=20, help="rows shown in the table (default 20)")
+    p.add_argument("--png", metavar="FILE", help="also write the chart as PNG")
+    p.add_argument("-o", "--output", help="also write every cell here (.csv, .xlsx or .json)")
+    _add_output(p)
+
+    p = add("candidates", "candidate table from a scenario: a design over chosen factors, "
+                          "for loadline screen", cmd_candidates)
+    p.add_argument("scenario", help="scenario file (*.loadline.json)")
+    p.add_argument("--factor", action="append", required=True, metavar="FACTOR",
+                   help="'NAME: LOW HIGH UNIT', NAME one of 'ingredient k loading', "
+                        "'ingredient k d50', 'temperature', 'liquid viscosity', 'glycerol' "
+                        "(repeatable)")
+    p.add_argument("--design", default="full-factorial",
+                   choices=["full-factorial", "latin-hypercube", "sobol", "halton"],
+                   help="full factorial (default) or a space-filling design")
+    p.add_argument("-n", type=int, default=16,
+                   help="rows of a space-filling design (default 16)")
+    p.add_argument("--levels", type=int, default=3,
+                   help="levels per factor of the full factorial (default 3)")
+    p.add_argument("--seed", type=int, default=0, help="seed of the space-filling designs")
+    p.add_argument("--window", action="append", metavar="WINDOW",
+                   help="a process window for every row, as in 'loadline map'")
+    p.add_argument("-o", "--output", required=True, help="candidate table to write (.csv)")
 
     p = add("pipe", "pressure drop, regime and restart pressure in a pipe or hose", cmd_pipe)
     p.add_argument("scenario", help="scenario file (*.loadline.json)")

@@ -1,8 +1,9 @@
 """A report of one scenario: one self-contained HTML file, and optionally a PDF.
 
 The report formats what `predictor` computes; it computes nothing itself. Sections: inputs
-echoed with units, summary, flow curve, loading sweep with the packing range, process
-windows, process checks (pipe, mixer, film at reference conditions), uncertainty, storage,
+echoed with units, summary, flow curve, loading sweep with the packing range, the design map
+of the first two solids (when there are two or more), process windows, process checks (pipe,
+mixer, film at reference conditions), uncertainty, storage,
 the relations used with their sources, and the cautions.
 
 Charts are Altair charts rendered offline by vl-convert and embedded as inline SVG, so the
@@ -265,6 +266,10 @@ def build_report(form: fm.Formulation, viscosity_unit: str = "Pa*s",
         sec.paragraphs.append("No solids: there is no solids loading to sweep.")
     sections.append(sec)
 
+    solids = [k for k, i in enumerate(form.ingredients) if i.kind == fm.SOLID]
+    if len(solids) >= 2:
+        sections.append(_design_map_section(form, solids[:2], vu, notes))
+
     sec = Section("Process windows")
     table, origin = _process_table(form, vu)
     sec.tables.append(("Viscosity in each process step", table))
@@ -345,6 +350,43 @@ def _interaction_section(form: fm.Formulation, rows: list[dict]) -> Section:
     for row in rows:
         if row["notes"]:
             sec.paragraphs.append(f"Note ({row['ingredient']}): {row['notes']}")
+
+
+#: The report's design map: shear rate (pumping and mixing, common practice, no source) and
+#: grid points per side.
+MAP_SHEAR_RATE_1_PER_S = 100.0
+MAP_POINTS = 15
+
+
+def _map_range(now: float) -> tuple[float, float]:
+    """From no loading to twice the present one (at least 20 points more, at most 90 %)."""
+    return 0.0, float(min(0.9, max(2.0 * now, now + 0.2)))
+
+
+def _design_map_section(form, pair: list[int], vu: str, notes: list[str]) -> Section:
+    """The map of the first two solids' loadings (mass basis) at the pumping shear rate."""
+    sec = Section("Design map of the first two solids")
+    mix = fm.mixture(form)
+    x, y = pair
+    try:
+        grid = design.loading_map(form, x, y, _map_range(mix.mass_fraction[x]),
+                                  _map_range(mix.mass_fraction[y]), MAP_SHEAR_RATE_1_PER_S,
+                                  n=MAP_POINTS, basis="mass")
+    except (LoadlineError, ValueError) as err:
+        notes.append(f"design map not shown: {err}")
+        sec.paragraphs.append(f"No design map: {err}")
+        return sec
+    names = grid.attrs["x_ingredient"], grid.attrs["y_ingredient"]
+    sec.charts.append(charts.design_map(grid, vu))     # drawn CHART_WIDTH wide
+    jammed = int((grid["regime"] == "jammed").sum())
+    sec.paragraphs.append(
+        f"Viscosity at {MAP_SHEAR_RATE_1_PER_S:g} 1/s over the loadings of {names[0]} and "
+        f"{names[1]} (wt% of the formulation), every other ingredient at its scenario "
+        f"loading; {MAP_POINTS} x {MAP_POINTS} recipes, {jammed} of them at or beyond the "
+        "packing limit (grey: no flow). The diamond is the scenario's own recipe. Try "
+        "'loadline map' with --window limits for the region that passes pumping and sag.")
+    for message in grid.attrs.get("warnings", ())[:3]:
+        sec.paragraphs.append(f"Note: {message}")
     return sec
 
 
@@ -357,10 +399,32 @@ PROCESS_REFERENCE = {"flows_L_per_min": (1.0, 10.0, 100.0), "diameter_m": 0.025,
                      "surface_tension_N_per_m": 0.035}
 
 
+def pipe_table(flow, flow_unit: str = "L/min", pressure_unit: str = "bar") -> pd.DataFrame:
+    """The rows of a `process.PipeFlow` in the units people read (table, CSV, JSON, report).
+
+    The friction factor is Fanning's (a quarter of Darcy's)."""
+    rows = pd.DataFrame(flow.rows())
+    return pd.DataFrame({
+        f"flow [{flow_unit}]": from_si(rows["flow_rate_m3_per_s"].to_numpy(), flow_unit,
+                                       "flow_rate"),
+        "velocity [m/s]": rows["mean_velocity_m_per_s"],
+        f"pressure drop [{pressure_unit}]": from_si(rows["pressure_drop_Pa"].to_numpy(),
+                                                    pressure_unit, "pressure"),
+        "regime": rows["regime"],
+        "Reynolds [-]": rows["reynolds"],
+        "critical Reynolds [-]": rows["critical_reynolds"],
+        "n' [-]": rows["flow_index"],
+        "friction factor [-]": rows["friction_factor"],
+        "wall stress [Pa]": rows["wall_shear_stress_Pa"],
+        "wall shear rate [1/s]": rows["wall_shear_rate_1_per_s"],
+        "plug radius [mm]": 1e3 * rows["plug_radius_m"],
+        "correlation": rows["correlation"],
+    })
+
+
 def _process_checks_section(form, notes: list[str]) -> Section:
     """Pipe, mixer and coating numbers at `PROCESS_REFERENCE` (the `loadline pipe` table)."""
     from . import process
-    from .cli import pipe_table
 
     ref = PROCESS_REFERENCE
     sec = Section("Process checks")

@@ -17,7 +17,7 @@ IDS = [s.name for s in SPECS]
 ROOT = pathlib.Path(pr.__file__).parent
 # Orchestration and edge modules may use pandas/pint; model modules may not.
 EDGE_MODULES = {"__init__", "formulation", "design", "scenario", "cli", "units", "batch",
-                "report", "labdata", "phase_ratio", "charts"}
+                "report", "labdata", "phase_ratio", "charts", "candidates"}
 FORBIDDEN = {"streamlit", "altair", "pint", "pandas"}
 
 

@@ -15,7 +15,8 @@ from predictor.scenario import read_scenario
 
 DEMO = pathlib.Path(__file__).resolve().parents[1] / "data_demo"
 SECTIONS = ["Inputs", "Summary", "Flow curve", "Loading sweep and packing range",
-            "Process windows", "Process checks", "Uncertainty", "Storage (settling and creaming)",
+            "Design map of the first two solids", "Process windows", "Process checks",
+            "Uncertainty", "Storage (settling and creaming)",
             "Relations used and their sources", "Cautions"]
 
 

@@ -38,7 +38,7 @@ DATA = pathlib.Path(__file__).parent / "data"
 WAIT_MS = 60_000
 PAGES = {"Loading sweep": "loading-sweep", "Flow curve": "flow-curve",
          "Sizes & packing": "sizes-packing", "Droplets": "droplets",
-         "Calibrate": "calibrate", "Batch screen": "batch-screen",
+         "Calibrate": "calibrate", "Design map": "design-map", "Batch screen": "batch-screen",
          "Particle forces": "particle-forces"}
 
 
@@ -316,3 +316,28 @@ def test_particle_forces_verdict_and_apply(page):
     _settled(page)
     _go(page, "Flow curve")
     expect(page.get_by_text("Particle forces:")).to_be_visible(timeout=WAIT_MS)
+
+
+def test_clicking_a_design_map_cell_loads_its_recipe(page):
+    """A click on a map cell puts that recipe's loadings into the sidebar scenario."""
+    import re
+
+    from playwright.sync_api import expect
+
+    _go(page, "Design map")
+    chart = page.get_by_test_id("stVegaLiteChart").first
+    chart.wait_for(timeout=WAIT_MS)
+    page.wait_for_timeout(1500)
+    sidebar = page.get_by_test_id("stSidebar")
+    first = demo().ingredients[0].name
+    expect(sidebar.get_by_text(f"1 · {first} — 35 wt%")).to_be_visible(timeout=WAIT_MS)
+    box = chart.bounding_box()
+    chart.click(position={"x": box["width"] * 0.45, "y": box["height"] * 0.45})
+    _settled(page)
+    note = page.get_by_test_id("stAlert").filter(has_text="into the scenario")
+    expect(note).to_be_visible(timeout=WAIT_MS)
+    loaded = re.search(rf"Loaded {re.escape(first)} ([\d.]+) and", note.inner_text())
+    assert loaded, note.inner_text()
+    value = float(loaded.group(1))
+    assert 20 <= value <= 60 and value != 35          # a cell of the default map
+    expect(sidebar.get_by_text(f"1 · {first} — {value:g} wt%")).to_be_visible(timeout=WAIT_MS)

@@ -14,7 +14,8 @@ from predictor.units import from_si
 from tests.app.conftest import DEMOS, REPO, TIMEOUT, demo, messages, metric
 
 PAGES = ["loading_sweep", "flow_curve", "sizes_packing", "droplets", "calibrate",
-         "batch_screen", "process_checks", "particle_forces"]
+         "design_map", "batch_screen", "process_checks",
+         "particle_forces"]
 
 
 def _app() -> AppTest:
