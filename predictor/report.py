@@ -350,6 +350,7 @@ def _interaction_section(form: fm.Formulation, rows: list[dict]) -> Section:
     for row in rows:
         if row["notes"]:
             sec.paragraphs.append(f"Note ({row['ingredient']}): {row['notes']}")
+    return sec
 
 
 #: The report's design map: shear rate (pumping and mixing, common practice, no source) and
