@@ -455,6 +455,78 @@ def solid_distributions(scenario: str) -> list[dict]:
             for k, ing in enumerate(form.ingredients) if ing.kind == fm.SOLID]
 
 
+@st.cache_data(**CACHE)
+def particle_forces(scenario: str, ingredient: str, ionic_strength_mol_per_L: float,
+                    surface_potential_V: float, layer_thickness_m: float, hamaker_J: float,
+                    n: int = 120) -> dict:
+    """The Particle forces panel: one solid of the scenario with the panel's salt,
+    potential, layer and Hamaker constant. Everything runs through the formulation (the
+    same verdict and yield stress as the flow curve): the energy curve in kT, the verdict,
+    the yield stress now and against the loading."""
+    from predictor import interactions
+
+    def run():
+        form = formulation(scenario)
+        solids = [i for i in form.ingredients if i.kind == "solid"]
+        ing = next((i for i in solids if i.name == ingredient), None)
+        if ing is None:
+            raise predictor.InputRangeError("ingredient", ingredient,
+                                            "the name of a solid ingredient of the scenario")
+        changed = dataclasses.replace(ing, surface_potential_V=surface_potential_V,
+                                      hamaker_J=hamaker_J, layer_thickness_m=layer_thickness_m,
+                                      flocculated=False)
+        variant = dataclasses.replace(
+            form, ingredients=tuple(changed if i is ing else i for i in form.ingredients),
+            liquid=dataclasses.replace(form.liquid,
+                                       ionic_strength_mol_per_L=ionic_strength_mol_per_L))
+        state = next(s for s in fm.particle_interactions(variant) if s.ingredient == ing.name)
+        liq = variant.liquid
+        curve = interactions.energy_curve(
+            ing.distribution().sauter_diameter_m, hamaker_J, surface_potential_V,
+            ionic_strength_mol_per_L, layer_thickness_m, liq.temperature_K,
+            liq.relative_permittivity, points=200)
+        h_nm = curve.separation_m * 1e9
+        energy = pd.concat([pd.DataFrame({"separation_nm": h_nm, "energy_kT": values,
+                                          "term": term})
+                            for term, values in (("total", curve.total_kT),
+                                                 ("van der Waals", curve.van_der_waals_kT),
+                                                 ("double layer", curve.double_layer_kT),
+                                                 ("steric", curve.steric_kT))],
+                           ignore_index=True)
+        mix = fm.mixture(variant)
+        grid = np.linspace(0.0, 0.99 * mix.phi_max, n)
+        loading = pd.DataFrame({
+            "phi": grid, "mass_fraction": fm.solid_mass_fraction(variant, grid, mix),
+            "yield_stress_Pa": fm.flocculation_yield_stress(variant, mix, grid)})
+        verdict = dataclasses.asdict(state.detail)
+        return {"verdict": verdict, "energy": energy, "loading": loading,
+                "yield_stress_Pa": fm.flocculation_yield_stress(variant, mix),
+                "phi": mix.phi_solids_effective, "phi_max": mix.phi_max,
+                "diameter_m": ing.distribution().sauter_diameter_m}
+    return dict(zip(("value", "warnings"), _captured(run), strict=True))
+
+
+def hamaker_table() -> pd.DataFrame:
+    """The typical Hamaker constants of predictor.interactions, in 1e-20 J, with sources."""
+    from predictor import interactions
+
+    return pd.DataFrame([{"Material": name, "Across vacuum [1e-20 J]": e.vacuum_J / 1e-20,
+                          "Across water [1e-20 J]": e.water_J / 1e-20,
+                          "Across oil (estimate) [1e-20 J]": e.oil_J / 1e-20,
+                          "Source": e.source}
+                         for name, e in interactions.HAMAKER_CONSTANTS.items()])
+
+
+@st.cache_data(**CACHE)
+def particle_verdicts(scenario: str) -> dict:
+    """Verdict of each solid with interactions and the network yield stress now."""
+    def run():
+        form = formulation(scenario)
+        return {"rows": fm.interaction_rows(form),
+                "yield_stress_Pa": fm.flocculation_yield_stress(form)}
+    return dict(zip(("value", "warnings"), _captured(run), strict=True))
+
+
 # --- Process checks ----------------------------------------------------------------------------
 
 

@@ -77,7 +77,13 @@ INGREDIENT_DEFAULTS: dict[str, object] = {
     "name": "new ingredient", "kind": "solid", "density": 2500.0, "loading": 10.0,
     "basis": "mass", "diameter": 1.0, "size_json": "", "aspect_ratio": 1.0, "layer": 0.0,
     "phi_max": None, "intrinsic": None, "droplet_viscosity": None, "tension": None,
+    # particle interactions: "none", "charged" (surface potential) or "flocculated"
+    "interaction": "none", "potential": 30.0, "hamaker": 1.0,
 }
+INTERACTIONS = ("none", "charged", "flocculated")
+INTERACTION_LABELS = {"none": "Dispersed (hard spheres)", "charged": "Charged: verdict from "
+                      "potential and salt", "flocculated": "Flocculated (stated)"}
+POTENTIAL_UNIT, HAMAKER_SCALE, SALT_UNIT = "mV", 1e-20, "mmol/L"   # as the widgets show them
 KINDS = ("solid", "droplet")
 BASES = ("mass", "volume")
 BASIS_LABELS = {"mass": "wt%", "volume": "vol%"}
@@ -113,6 +119,7 @@ DEFAULTS: dict[str, object] = {
     "liq_params_json": "{}",            # law parameters, SI, keyed by registry name
     "liq_temperature": 25.0, "liq_ref_temperature": 25.0, "liq_density": 997.0,
     "liq_glycerol": 0.0, "liq_activation_temperature": None,
+    "liq_salt": 1.0, "liq_permittivity": None,     # ionic strength [mmol/L]; None: water
     # ingredients
     "n_ing": 0,
     # Loading sweep page
@@ -146,6 +153,9 @@ DEFAULTS: dict[str, object] = {
     # Batch screen page
     "batch_files": {}, "batch_table_name": "", "batch_message": "", "batch_result": None,
     "batch_summary": {}, "batch_unit": "Pa*s",
+    # Particle forces page (salt in mmol/L, potential in mV, layer in nm, A in 1e-20 J)
+    "pf_ingredient": "", "pf_salt": 1.0, "pf_potential": 30.0, "pf_layer": 0.0,
+    "pf_hamaker": 4.8,
     # Design map page (loadings in % on the chosen basis, windows in SI)
     "map_mode": "plane", "map_x": 0, "map_y": 1, "map_parts": [0, 1, -1],
     "map_x_low": 20.0, "map_x_high": 60.0, "map_y_low": 0.0, "map_y_high": 40.0,
@@ -332,6 +342,8 @@ def document(ss: MutableMapping | None = None) -> dict:
         "density": _q(ss["liq_density"], units["unit_density"]),
         "reference_temperature": _q(ss["liq_ref_temperature"], units["unit_temperature"]),
         "activation_temperature": _q(activation, "K"),
+        "ionic_strength": _q(ss.get("liq_salt", 1.0), SALT_UNIT),
+        "relative_permittivity": ss.get("liq_permittivity"),
     }
     ingredients = []
     for i in range(int(ss["n_ing"])):
@@ -340,6 +352,7 @@ def document(ss: MutableMapping | None = None) -> dict:
 
         size = get("size_json")
         droplet = get("kind") == "droplet"
+        mode = "none" if droplet else get("interaction")
         ingredients.append({
             "name": get("name"), "kind": get("kind"),
             "loading": {"value": float(get("loading")) / 100.0, "basis": get("basis")},
@@ -353,6 +366,11 @@ def document(ss: MutableMapping | None = None) -> dict:
             "phi_max": get("phi_max"),
             "intrinsic_viscosity": get("intrinsic"),
             "size_distribution": json.loads(size) if size else None,
+            "surface_potential": _q(get("potential"), POTENTIAL_UNIT)
+            if mode == "charged" else None,
+            "hamaker_constant": None if mode == "none" or get("hamaker") is None
+            else {"value": float(get("hamaker")) * HAMAKER_SCALE, "unit": "J"},
+            **({"flocculated": True} if mode == "flocculated" else {}),
         })
     return {
         "format": sc.FORMAT, "schema_version": sc.SCHEMA_VERSION,
@@ -398,6 +416,8 @@ def values_from_formulation(formulation, ss: MutableMapping | None = None) -> di
         "liq_activation_temperature": None if liq["activation_temperature"] is None
         else float(liq["activation_temperature"]["value"]),
         "n_ing": len(doc["ingredients"]),
+        "liq_salt": _clean(1000.0 * formulation.liquid.ionic_strength_mol_per_L),
+        "liq_permittivity": formulation.liquid.relative_permittivity,
     }
     for name in AUTO_PARAMS:
         values[f"auto_{name}"] = name not in params
@@ -426,8 +446,22 @@ def values_from_formulation(formulation, ss: MutableMapping | None = None) -> di
             if droplet else None,
             ingredient_key(i, "size_json"): "" if ing["size_distribution"] is None
             else json.dumps(ing["size_distribution"], sort_keys=True),
+            **_interaction_values(i, formulation.ingredients[i]),
         })
     return values
+
+
+def _interaction_values(i: int, ing) -> dict:
+    """Session values of an ingredient's interactions (mode, potential in mV, A in 1e-20 J)."""
+    mode = ("flocculated" if ing.flocculated else
+            "charged" if ing.surface_potential_V is not None else "none")
+    return {
+        ingredient_key(i, "interaction"): mode,
+        ingredient_key(i, "potential"): INGREDIENT_DEFAULTS["potential"]
+        if ing.surface_potential_V is None else _clean(1000.0 * ing.surface_potential_V),
+        ingredient_key(i, "hamaker"): INGREDIENT_DEFAULTS["hamaker"]
+        if ing.hamaker_J is None else _clean(ing.hamaker_J / HAMAKER_SCALE),
+    }
 
 
 def apply_formulation(formulation, ss: MutableMapping | None = None, source: str = "") -> None:

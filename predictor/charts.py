@@ -671,6 +671,40 @@ def blend_curve(frame: pd.DataFrame, *, names: list[str], big: bool = False):
     return fig.spec(chart, big)
 
 
+def energy_curve(frame: pd.DataFrame, *, threshold_kT: float, big: bool = False) -> dict:
+    """Pair energy in kT against separation (log x): total and its terms, the zero line and
+    the barrier rule of thumb. `frame`: separation_nm, energy_kT, term. The y range is
+    clipped to the region that decides the verdict (deep wells run off the bottom)."""
+    fig = Figure()
+    total = frame.loc[frame["term"] == "total", "energy_kT"]
+    top = max(float(np.nanmax(total.clip(upper=1e4))) * 1.25 if len(total) else 0.0,
+              1.6 * threshold_kT)
+    bottom = max(min(float(np.nanmin(total)) * 1.25 if len(total) else 0.0, -10.0), -top)
+    names = list(dict.fromkeys(frame["term"]))
+    y = alt.Y("energy_kT:Q", title="Pair energy [kT]",
+              scale=alt.Scale(domain=[bottom, top], clamp=True))
+    curves = fig.chart(frame).mark_line(strokeWidth=2.4, clip=True).encode(
+        x=alt.X("separation_nm:Q", title="Surface separation [nm]",
+                scale=alt.Scale(type="log", nice=False,
+                                domain=[float(frame["separation_nm"].min()),
+                                        float(frame["separation_nm"].max())]),
+                axis=alt.Axis(format="~g", values=decades(float(frame["separation_nm"].min()),
+                                                          float(frame["separation_nm"].max())))),
+        y=y,
+        color=alt.Color("term:N", title="Term", scale=_palette(names), sort=names),
+        strokeDash=alt.condition(alt.datum.term == "total", alt.value([1, 0]), alt.value([5, 3])),
+        tooltip=[alt.Tooltip("term:N", title="Term"),
+                 alt.Tooltip("separation_nm:Q", format=".3g", title="Separation [nm]"),
+                 alt.Tooltip("energy_kT:Q", format=".3g", title="Energy [kT]")])
+    rules = pd.DataFrame({"energy_kT": [0.0, threshold_kT],
+                          "label": ["0", f"barrier rule of thumb {threshold_kT:g} kT"]})
+    lines = fig.chart(rules).mark_rule(color=GREY, strokeDash=[2, 2]).encode(
+        y=alt.Y("energy_kT:Q", scale=alt.Scale(domain=[bottom, top], clamp=True)),
+        tooltip=[alt.Tooltip("label:N", title="Line")])
+    chart = fig.layer(curves, lines, height=_height(big), width="container")
+    return fig.spec(chart, big)
+
+
 # --- design-space maps (the app page, the report and `loadline map --png`) ---------------
 
 MAP_LINE_COLOURS = [VERMILLION, PURPLE, ORANGE, SKY, BLUE, YELLOW]

@@ -285,15 +285,33 @@ def _shear_rates(args) -> np.ndarray:
 
 
 def cmd_predict(args) -> int:
-    from .formulation import predict
+    from .formulation import interaction_rows, predict
 
     unit = _check_viscosity_unit(args.viscosity_unit)
     form = _scenario(args.scenario)
     curve = predict(form, _shear_rates(args))
     meta = {"scenario": form.name, **{k: _plain(v) for k, v in curve.attrs.items()}}
-    head = _scenario_head(form, meta)
+    meta["particle_interactions"] = interaction_rows(form)
+    meta["yield_stress_Pa"] = meta.get("markers", {}).get("flocculation_yield_stress_Pa", 0.0)
+    head = _scenario_head(form, meta) + _interaction_head(meta)
     _emit(args, unit_columns(curve, unit), meta, head)
     return EXIT_OK
+
+
+def _interaction_head(meta: dict) -> str:
+    """Lines naming each solid's verdict and the network yield stress (none: empty)."""
+    rows = meta.get("particle_interactions") or []
+    if not rows:
+        return ""
+    lines = []
+    for row in rows:
+        how = ("stated in the scenario" if row["basis"] == "stated" else
+               f"barrier {row['barrier_kT']:.3g} kT, deepest reachable well "
+               f"{row['reachable_well_kT']:.3g} kT; {row['criterion']}")
+        lines.append(f"particles: {row['ingredient']} {row['verdict']} ({how})")
+    lines.append(f"network yield stress (YODEL, Flatt & Bowen 2006) = "
+                 f"{meta['yield_stress_Pa']:.4g} Pa, added to the flow curve")
+    return "\n" + "\n".join(lines)
 
 
 def _plain(value):
@@ -331,6 +349,8 @@ def cmd_sweep(args) -> int:
         "relative viscosity [-]": sweep["relative_viscosity"].to_numpy(),
         f"viscosity [{unit}]": units.from_si(sweep["viscosity_Pa_s"].to_numpy(), unit, "viscosity"),
     })
+    if "yield_stress_Pa" in sweep and (sweep["yield_stress_Pa"] > 0).any():
+        frame["yield stress of flocs [Pa]"] = sweep["yield_stress_Pa"].to_numpy()
     meta = {"scenario": form.name, **{k: _plain(v) for k, v in sweep.attrs.items()}}
     head = (f"scenario: {form.name or '(unnamed)'}\n"
             f"phi_max = {meta.get('phi_max', float('nan')):.4g}, current phi = "
@@ -1176,7 +1196,7 @@ def build_parser() -> argparse.ArgumentParser:
 
     p = add("models", "the published relations Loadline knows, with their sources", cmd_models)
     p.add_argument("--kind", choices=["suspension", "emulsion", "packing", "liquid", "shear",
-                                      "thixotropy", "process"],
+                                      "thixotropy", "process", "interaction"],
                    help="only relations of this kind")
     _add_output(p, viscosity=False)
 

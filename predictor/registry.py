@@ -13,7 +13,8 @@ from dataclasses import dataclass
 
 from .errors import InputRangeError, UnknownModelError
 
-KINDS = ("suspension", "emulsion", "packing", "liquid", "shear", "thixotropy", "process")
+KINDS = ("suspension", "emulsion", "packing", "liquid", "shear", "thixotropy", "process",
+         "interaction")
 
 
 @dataclass(frozen=True)
@@ -101,7 +102,7 @@ class ModelSpec:
 _MODELS: dict[str, ModelSpec] = {}
 #: The modules that register relations; `models()` and `get_model()` import them on first use.
 MODEL_MODULES = ("suspension", "emulsion", "packing", "liquids", "shear", "sizes", "stability",
-                 "thixotropy", "process")
+                 "thixotropy", "process", "interactions")
 _LOADED: list[bool] = []
 
 

@@ -31,15 +31,21 @@ _LIQUID_QUANTITIES = {
     "density": ("density_kg_per_m3", "density", "kg/m**3"),
     "reference_temperature": ("reference_temperature_K", "temperature", "K"),
     "activation_temperature": ("activation_temperature_K", "temperature", "K"),
+    "ionic_strength": ("ionic_strength_mol_per_L", "concentration", "mol/L"),
 }
+_LIQUID_NUMBERS = ("relative_permittivity",)
 _INGREDIENT_QUANTITIES = {
     "density": ("density_kg_per_m3", "density", "kg/m**3"),
     "diameter": ("diameter_m", "length", "m"),
     "layer_thickness": ("layer_thickness_m", "length", "m"),
     "droplet_viscosity": ("droplet_viscosity_Pa_s", "viscosity", "Pa*s"),
     "interfacial_tension": ("interfacial_tension_N_per_m", "interfacial_tension", "N/m"),
+    "surface_potential": ("surface_potential_V", "potential", "V"),
+    "hamaker_constant": ("hamaker_J", "energy", "J"),
 }
 _INGREDIENT_NUMBERS = ("aspect_ratio", "phi_max", "intrinsic_viscosity")
+# Optional true/false fields, written only when true (older files stay as they were).
+_INGREDIENT_FLAGS = ("flocculated",)
 
 # Older schema versions -> function upgrading a document by one version.
 _MIGRATIONS: dict[int, callable] = {}
@@ -87,6 +93,9 @@ def scenario_to_dict(formulation: Formulation) -> dict:
     }
     for key, (attr, _, unit) in _LIQUID_QUANTITIES.items():
         liquid[key] = _quantity(getattr(liq, attr), unit)
+    for key in _LIQUID_NUMBERS:
+        value = getattr(liq, key)
+        liquid[key] = None if value is None else float(value)
     ingredients = []
     for ing in formulation.ingredients:
         doc = {"name": ing.name, "kind": ing.kind,
@@ -96,6 +105,9 @@ def scenario_to_dict(formulation: Formulation) -> dict:
         for key in _INGREDIENT_NUMBERS:
             value = getattr(ing, key)
             doc[key] = None if value is None else float(value)
+        for key in _INGREDIENT_FLAGS:
+            if getattr(ing, key):
+                doc[key] = True
         doc["size_distribution"] = None if ing.size is None else ing.size.to_dict()
         ingredients.append(doc)
     return {
@@ -117,9 +129,9 @@ _KNOWN_KEYS = {
     "": {"format", "schema_version", "name", "description", "relations", "liquid",
          "ingredients"},
     "liquid": {"name", "preset", "law", "parameters", "glycerol_mass_fraction",
-               *_LIQUID_QUANTITIES},
+               *_LIQUID_QUANTITIES, *_LIQUID_NUMBERS},
     "ingredient": {"name", "kind", "loading", "size_distribution", *_INGREDIENT_QUANTITIES,
-                   *_INGREDIENT_NUMBERS},
+                   *_INGREDIENT_NUMBERS, *_INGREDIENT_FLAGS},
     "relations": {"solids", "droplets", "parameters", "thickening_onset_stress",
                   "phi_max_frictional"},
 }
@@ -177,6 +189,9 @@ def _from_dict(doc: dict, source: str) -> Formulation:
         value = _read_quantity(raw.get(key), dimension, f"liquid.{key}")
         if value is not None:
             liquid_kwargs[attr] = value
+    for key in _LIQUID_NUMBERS:
+        if raw.get(key) is not None:
+            liquid_kwargs[key] = number(raw[key], f"liquid.{key}")
     law = str(raw.get("law", "newtonian"))
     law_units = _law_units(law)
     params = {}
@@ -211,6 +226,11 @@ def _from_dict(doc: dict, source: str) -> Formulation:
         for key in _INGREDIENT_NUMBERS:
             if item.get(key) is not None:
                 kwargs[key] = number(item[key], f"{where}.{key}")
+        for key in _INGREDIENT_FLAGS:
+            if item.get(key) is not None:
+                if not isinstance(item[key], bool):
+                    raise ScenarioError(f"{where}.{key} = {item[key]!r}: expected true or false.")
+                kwargs[key] = item[key]
         loading = _object(item.get("loading"), f"{where}.loading")
         dist = item.get("size_distribution")
         ingredients.append(Ingredient(

@@ -55,6 +55,9 @@ SI_UNITS = {
     "consistency": "Pa*s",   # power-law consistency K: Pa*s^n, checked loosely (n varies)
     "flow_rate": "m**3/s",
     "pressure": "Pa",
+    "potential": "V",
+    "energy": "J",
+    "concentration": "mol/L",
 }
 
 _NUMBER = r"[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?"

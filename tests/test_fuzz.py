@@ -24,6 +24,7 @@ from predictor import (
     composition,
     emulsion,
     files,
+    interactions,
     liquids,
     packing,
     process,
@@ -38,7 +39,7 @@ from predictor.errors import LoadlineError, ValidityWarning
 from tests.conftest import FUZZ_CASES, FUZZ_EXAMPLES
 
 MODULES = [suspension, emulsion, liquids, shear, stability, composition, viscosity, packing,
-           thixotropy, process]
+           thixotropy, process, interactions]
 # Slow by design (seconds per call): fuzzed with few cases in their own tests.
 SLOW = {"jamming_simulation", "simulation", "simulation_fit", "max_packing_simulation"}
 

@@ -107,7 +107,8 @@ def test_design_model_names_are_registered():
 
 
 MODEL_MODULES = ["suspension", "emulsion", "liquids", "shear", "stability", "composition",
-                 "viscosity", "packing", "blend", "sizes", "thixotropy", "process"]
+                 "viscosity", "packing", "blend", "sizes", "thixotropy", "process",
+                 "interactions"]
 # Long-running simulations check their own inputs and run numba kernels in worker threads,
 # where numpy's error state does not reach.
 UNGUARDED = {"simulate_jamming", "simulation"}

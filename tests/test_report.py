@@ -114,6 +114,27 @@ def test_emulsion_only_scenario(tmp_path):
     assert "phan-thien-pham" in text
 
 
+def test_report_shows_particle_forces_when_a_solid_carries_them(tmp_path):
+    import dataclasses
+
+    from predictor.scenario import write_scenario
+
+    form = read_scenario(DEMO / "ceramic_slip.loadline.json")
+    ing = dataclasses.replace(form.ingredients[0], surface_potential_V=0.03, hamaker_J=4.8e-20)
+    form = dataclasses.replace(form, ingredients=(ing,), liquid=dataclasses.replace(
+        form.liquid, ionic_strength_mol_per_L=0.5))
+    path = write_scenario(form, tmp_path / "slip.loadline.json")
+    html_path, = write_report(path, tmp_path / "slip.html")[:1]
+    text = html_path.read_text(encoding="utf-8")
+    parser = _Collector()
+    parser.feed(text)
+    titles = [re.sub(r"^\d+\.\s*", "", t) for t in parser.h2]
+    assert "Particle forces (dispersed or flocculated)" in titles
+    tau = fm.flocculation_yield_stress(form)
+    assert f"Network yield stress at this loading: {tau:.4g} Pa" in text
+    assert "flocculated" in text and "rule of thumb" in text
+
+
 def test_report_charts_are_the_app_charts_and_fit_the_pdf_page():
     # One chart module (issue 13): the report draws predictor.charts' flow-curve panels and
     # loading sweep, and their SVG fits the PDF page with its 40 px margin.

@@ -56,6 +56,7 @@ def body() -> None:
     if scenario is None:
         return
     metrics = st.container()
+    widgets.interaction_summary(scenario)
     left, right = st.columns([1, 3], gap="large")
     with left:
         controls()

@@ -132,6 +132,7 @@ def body() -> None:
                 "Droplets page.", icon=":material/info:")
         return
     metrics = st.container()
+    widgets.interaction_summary(scenario)
     controls, main = st.columns([1, 3], gap="large")
     with controls:
         relation_controls(s)

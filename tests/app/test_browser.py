@@ -38,7 +38,8 @@ DATA = pathlib.Path(__file__).parent / "data"
 WAIT_MS = 60_000
 PAGES = {"Loading sweep": "loading-sweep", "Flow curve": "flow-curve",
          "Sizes & packing": "sizes-packing", "Droplets": "droplets",
-         "Calibrate": "calibrate", "Design map": "design-map", "Batch screen": "batch-screen"}
+         "Calibrate": "calibrate", "Design map": "design-map", "Batch screen": "batch-screen",
+         "Particle forces": "particle-forces"}
 
 
 def _need_browser() -> None:
@@ -302,6 +303,19 @@ def test_page_change_reaches_the_saved_file(page):
     expect(save).to_be_enabled(timeout=WAIT_MS)
     saved = json.loads(pathlib.Path(_download(page, save)).read_text())
     assert saved["relations"]["solids"] == "quemada"
+
+
+def test_particle_forces_verdict_and_apply(page):
+    from playwright.sync_api import expect
+
+    _go(page, "Particle forces")
+    callout = page.get_by_text("— criterion: energy barrier of at least 15 kT")
+    expect(callout).to_be_visible(timeout=WAIT_MS)
+    expect(_metric(page, "Barrier [kT]")).not_to_have_text("", timeout=WAIT_MS)
+    page.get_by_role("button", name="Apply to the scenario").click()
+    _settled(page)
+    _go(page, "Flow curve")
+    expect(page.get_by_text("Particle forces:")).to_be_visible(timeout=WAIT_MS)
 
 
 def test_clicking_a_design_map_cell_loads_its_recipe(page):

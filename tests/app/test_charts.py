@@ -158,3 +158,23 @@ def test_points_and_lines_writes_valid_vega_lite(big):
         frames = list(spec["datasets"].values())
         assert all((np.asarray(f["y"]) > 0).all() for f in frames)
         assert {"Shear rate [1/s]", "Shear stress [Pa]"} <= set(_titles(spec))
+
+
+def test_energy_curve_axes_rule_and_export():
+    from predictor import interactions
+
+    curve = interactions.energy_curve(1e-6, 4.8e-20, 0.03, 1e-3)
+    frame = pd.concat([pd.DataFrame({"separation_nm": curve.separation_m * 1e9,
+                                     "energy_kT": values, "term": term})
+                       for term, values in (("total", curve.total_kT),
+                                            ("van der Waals", curve.van_der_waals_kT))])
+    chart = charts.energy_curve(frame, threshold_kT=15.0)
+    titles = _titles(chart)
+    assert "Pair energy [kT]" in titles and "Surface separation [nm]" in titles
+    text = json.dumps(chart, default=str)
+    assert "barrier rule of thumb 15 kT" in text
+    # the y range holds the barrier and clips the deep van der Waals well
+    domain = chart["layer"][0]["encoding"]["y"]["scale"]["domain"]
+    assert domain[1] > curve.total_kT.max() and domain[0] > curve.van_der_waals_kT.min()
+    _valid(chart)
+    assert charts.to_png(chart)[:8] == b"\x89PNG\r\n\x1a\n"
