@@ -21,7 +21,7 @@ browser:
 	  else echo "chromium missing: run 'sudo apt-get install chromium' for the browser tests"; fi; }
 
 run: $(STAMP)
-	LOADLINE_SCENARIO=$(DEMO) $(BIN)/streamlit run app/main.py --server.port $(PORT) --server.address 127.0.0.1
+	LOADLINE_SCENARIO=$(DEMO) $(BIN)/python -m app.serve --server.port $(PORT) --server.address 127.0.0.1
 
 test: $(STAMP) browser
 	$(BIN)/ruff check predictor app tests

@@ -73,7 +73,9 @@ def safe_file_name(name: str, default: str = "upload") -> str:
 @st.cache_data(**CACHE)
 def scenario_json(document_text: str) -> str:
     """Canonical scenario JSON of a scenario document; LoadlineError if it is not valid."""
-    return sc.dumps(sc.scenario_from_dict(json.loads(document_text)))
+    from predictor.files import load_json
+
+    return sc.dumps(sc.scenario_from_dict(load_json(document_text)))
 
 
 def formulation(scenario: str) -> fm.Formulation:
@@ -380,7 +382,8 @@ def calibrate(text: str, source: str, scenario: str, model: str, shear_rate: flo
 
 @st.cache_data(**CACHE)
 def size_table(data: bytes, name: str) -> dict:
-    """A measured size distribution from an uploaded CSV (predictor.batch.read_size_table)."""
+    """A measured size distribution from an uploaded CSV (predictor.batch.read_size_table):
+    ``{"dist": its to_dict(), "notes": [warnings, e.g. a rebinned table]}``."""
     import pathlib
     import tempfile
 
@@ -390,7 +393,8 @@ def size_table(data: bytes, name: str) -> dict:
         path = pathlib.Path(folder) / safe_file_name(name, "sizes.csv")
         path.write_bytes(data)
         with reading(name):
-            return batch.read_size_table(path, field=name).to_dict()
+            dist, notes = _captured(batch.read_size_table, path, field=name)
+    return {"dist": dist.to_dict(), "notes": notes}
 
 
 @st.cache_data(**CACHE)
@@ -449,3 +453,306 @@ def solid_distributions(scenario: str) -> list[dict]:
              "phi": float(mix.phi[k]),
              "dist_json": json.dumps(ing.distribution().to_dict(), sort_keys=True)}
             for k, ing in enumerate(form.ingredients) if ing.kind == fm.SOLID]
+
+
+@st.cache_data(**CACHE)
+def particle_forces(scenario: str, ingredient: str, ionic_strength_mol_per_L: float,
+                    surface_potential_V: float, layer_thickness_m: float, hamaker_J: float,
+                    n: int = 120) -> dict:
+    """The Particle forces panel: one solid of the scenario with the panel's salt,
+    potential, layer and Hamaker constant. Everything runs through the formulation (the
+    same verdict and yield stress as the flow curve): the energy curve in kT, the verdict,
+    the yield stress now and against the loading."""
+    from predictor import interactions
+
+    def run():
+        form = formulation(scenario)
+        solids = [i for i in form.ingredients if i.kind == "solid"]
+        ing = next((i for i in solids if i.name == ingredient), None)
+        if ing is None:
+            raise predictor.InputRangeError("ingredient", ingredient,
+                                            "the name of a solid ingredient of the scenario")
+        changed = dataclasses.replace(ing, surface_potential_V=surface_potential_V,
+                                      hamaker_J=hamaker_J, layer_thickness_m=layer_thickness_m,
+                                      flocculated=False)
+        variant = dataclasses.replace(
+            form, ingredients=tuple(changed if i is ing else i for i in form.ingredients),
+            liquid=dataclasses.replace(form.liquid,
+                                       ionic_strength_mol_per_L=ionic_strength_mol_per_L))
+        state = next(s for s in fm.particle_interactions(variant) if s.ingredient == ing.name)
+        liq = variant.liquid
+        curve = interactions.energy_curve(
+            ing.distribution().sauter_diameter_m, hamaker_J, surface_potential_V,
+            ionic_strength_mol_per_L, layer_thickness_m, liq.temperature_K,
+            liq.relative_permittivity, points=200)
+        h_nm = curve.separation_m * 1e9
+        energy = pd.concat([pd.DataFrame({"separation_nm": h_nm, "energy_kT": values,
+                                          "term": term})
+                            for term, values in (("total", curve.total_kT),
+                                                 ("van der Waals", curve.van_der_waals_kT),
+                                                 ("double layer", curve.double_layer_kT),
+                                                 ("steric", curve.steric_kT))],
+                           ignore_index=True)
+        mix = fm.mixture(variant)
+        grid = np.linspace(0.0, 0.99 * mix.phi_max, n)
+        loading = pd.DataFrame({
+            "phi": grid, "mass_fraction": fm.solid_mass_fraction(variant, grid, mix),
+            "yield_stress_Pa": fm.flocculation_yield_stress(variant, mix, grid)})
+        verdict = dataclasses.asdict(state.detail)
+        return {"verdict": verdict, "energy": energy, "loading": loading,
+                "yield_stress_Pa": fm.flocculation_yield_stress(variant, mix),
+                "phi": mix.phi_solids_effective, "phi_max": mix.phi_max,
+                "diameter_m": ing.distribution().sauter_diameter_m}
+    return dict(zip(("value", "warnings"), _captured(run), strict=True))
+
+
+def hamaker_table() -> pd.DataFrame:
+    """The typical Hamaker constants of predictor.interactions, in 1e-20 J, with sources."""
+    from predictor import interactions
+
+    return pd.DataFrame([{"Material": name, "Across vacuum [1e-20 J]": e.vacuum_J / 1e-20,
+                          "Across water [1e-20 J]": e.water_J / 1e-20,
+                          "Across oil (estimate) [1e-20 J]": e.oil_J / 1e-20,
+                          "Source": e.source}
+                         for name, e in interactions.HAMAKER_CONSTANTS.items()])
+
+
+@st.cache_data(**CACHE)
+def particle_verdicts(scenario: str) -> dict:
+    """Verdict of each solid with interactions and the network yield stress now."""
+    def run():
+        form = formulation(scenario)
+        return {"rows": fm.interaction_rows(form),
+                "yield_stress_Pa": fm.flocculation_yield_stress(form)}
+    return dict(zip(("value", "warnings"), _captured(run), strict=True))
+
+
+# --- Process checks ----------------------------------------------------------------------------
+
+
+@st.cache_data(**CACHE)
+def pipe_flow(scenario: str, flows_m3_per_s: float | tuple[float, ...], diameter_m: float,
+              length_m: float, roughness_m: float) -> dict:
+    """`process.pipe_flow_of` at one flow rate (a float) or each of a tuple of them:
+    {"value": PipeFlow, "warnings": [...]}."""
+    from predictor import process
+
+    flows = np.asarray(flows_m3_per_s) if isinstance(flows_m3_per_s, tuple) else flows_m3_per_s
+
+    def run():
+        return process.pipe_flow_of(formulation(scenario), flows, diameter_m, length_m,
+                                    roughness_m)
+    return dict(zip(("value", "warnings"), _captured(run), strict=True))
+
+
+@st.cache_data(**CACHE)
+def stirred_tank(scenario: str, speed_1_per_s: float, impeller_diameter_m: float,
+                 tank_diameter_m: float, impeller: str) -> dict:
+    """`process.stirred_tank_of`: {"value": StirredTank, "warnings": [...]}."""
+    from predictor import process
+
+    def run():
+        return process.stirred_tank_of(formulation(scenario), speed_1_per_s,
+                                       impeller_diameter_m, tank_diameter_m, impeller)
+    return dict(zip(("value", "warnings"), _captured(run), strict=True))
+
+
+@st.cache_data(**CACHE)
+def coating(scenario: str, thickness_m: float, wavelength_m: float,
+            surface_tension_N_per_m: float) -> dict:
+    """`process.coating_of`: {"value": Coating, "warnings": [...]}."""
+    from predictor import process
+
+    def run():
+        return process.coating_of(formulation(scenario), thickness_m, wavelength_m,
+                                  surface_tension_N_per_m=surface_tension_N_per_m)
+    return dict(zip(("value", "warnings"), _captured(run), strict=True))
+
+
+# --- Design map ----------------------------------------------------------------------------
+
+
+@st.cache_data(**CACHE)
+def loading_map(scenario: str, x: int, y: int, x_range: tuple[float, float],
+                y_range: tuple[float, float], shear_rate_1_per_s: float, n: int, basis: str,
+                windows: tuple[tuple, ...]) -> dict:
+    """`design.loading_map` of the scenario (windows as (name, rate, max, min) tuples)."""
+    from predictor import design
+
+    def run():
+        grid = design.loading_map(formulation(scenario), x, y, x_range, y_range,
+                                  shear_rate_1_per_s, n=n, basis=basis,
+                                  windows=list(windows) or None)
+        for message in grid.attrs.get("warnings", ()):
+            warnings.warn(message, predictor.ValidityWarning, stacklevel=2)
+        return grid
+    return dict(zip(("value", "warnings"), _captured(run), strict=True))
+
+
+@st.cache_data(**CACHE)
+def loading_ternary(scenario: str, parts: tuple, shear_rate_1_per_s: float, n: int,
+                    basis: str, windows: tuple[tuple, ...]) -> dict:
+    """`design.loading_ternary` of the scenario (parts by index, or "liquid")."""
+    from predictor import design
+
+    def run():
+        tri = design.loading_ternary(formulation(scenario), parts, shear_rate_1_per_s, n=n,
+                                     basis=basis, windows=list(windows) or None)
+        for message in tri.attrs.get("warnings", ()):
+            warnings.warn(message, predictor.ValidityWarning, stacklevel=2)
+        return tri
+    return dict(zip(("value", "warnings"), _captured(run), strict=True))
+
+
+@st.cache_data(**CACHE)
+def candidates(scenario: str, factors: tuple[tuple[str, float, float], ...], design: str,
+               n: int, levels: int, seed: int, windows: tuple[tuple, ...]) -> dict:
+    """A candidate table (CSV bytes per file name, the table first) for the batch screen."""
+    from predictor import candidates as cand
+
+    def run():
+        table, files = cand.candidate_table(formulation(scenario),
+                                            {name: (lo, hi) for name, lo, hi in factors},
+                                            design=design, n=n, levels=levels, seed=seed,
+                                            windows=list(windows) or None)
+        out = {"candidates_from_design_map.csv": table.to_csv(index=False,
+                                                              float_format="%.12g").encode()}
+        out.update({name: frame.to_csv(index=False).encode() for name, frame in files.items()})
+        return out
+    return dict(zip(("value", "warnings"), _captured(run), strict=True))
+
+
+# --- lab data as it comes: several flow curves, wall slip, thixotropy ------------------------
+
+
+def _flow_curves(text: str, source: str):
+    import io
+
+    from predictor import labdata
+
+    with reading(source):
+        return labdata.read_flow_curves(io.StringIO(text), name=source)
+
+
+TREND_WORDS = {"laplace_pressure_Pa": "Laplace pressure Γ/R [Pa]",
+               "phi_c": "critical fraction φc [–]"}
+
+
+@st.cache_data(**CACHE)
+def flow_curve_fits(text: str, source: str, model: str, branch: str) -> dict:
+    """Every series of a rheometer export fitted with `model`, and the yield-stress trend."""
+    from predictor import labdata
+
+    def run():
+        curves = _flow_curves(text, source)
+        fits = labdata.fit_flow_curves(curves, model, branch=branch)
+        table = curves.table
+        lines = []
+        for series, fit in fits.fits.items():
+            rate = np.logspace(np.log10(fit.x.min()), np.log10(fit.x.max()), 60)
+            lines.append(pd.DataFrame({"series": series, "shear_rate_1_per_s": rate,
+                                       "shear_stress_Pa": fit.predict(rate) * rate}))
+        trend, trend_line, candidates = None, pd.DataFrame(), []
+        phi, tau_y, _ = fits.parameter("yield_stress_Pa")
+        names = {"mason": "Mason et al.", "princen-kiss": "Princen & Kiss"}
+        lines_trend = []
+        if np.isfinite(tau_y).sum() >= 3:
+            grid = np.linspace(float(phi.min()), float(phi.max()), 80)
+            for relation in labdata.YIELD_TRENDS:
+                try:
+                    fitted = labdata.fit_yield_stress_trend(phi, tau_y, relation)
+                except predictor.LoadlineError as err:
+                    candidates.append(f"{names[relation]}: not fitted ({err})")
+                    continue
+                lines_trend.append(pd.DataFrame({"series": f"{names[relation]}, fitted",
+                                                 "phi": grid,
+                                                 "yield_stress_Pa": fitted.predict(grid)}))
+                candidates.append(f"{names[relation]}: " + ", ".join(
+                    f"{TREND_WORDS[k]} = {v:.4g} "
+                    f"({fitted.intervals[k][0]:.4g} to {fitted.intervals[k][1]:.4g})"
+                    for k, v in fitted.params.items()) + f"; AIC {fitted.aic:.1f}")
+                if relation == "mason":
+                    trend = {"params": fitted.params, "intervals": fitted.intervals}
+            if lines_trend:
+                trend_line = pd.concat(lines_trend, ignore_index=True)
+        return {"table": fits.table(), "points": table[["series", "branch",
+                                                        "shear_rate_1_per_s",
+                                                        "shear_stress_Pa", "phi"]],
+                "lines": pd.concat(lines, ignore_index=True) if lines else pd.DataFrame(),
+                "n_series": len(curves.series()), "n_fitted": len(fits.fits),
+                "slip_warnings": dict(fits.warnings), "notes": list(curves.notes),
+                "trend": trend, "trend_line": trend_line,
+                "candidates": candidates,
+                "trend_points": pd.DataFrame({"series": "fitted yield stress", "phi": phi,
+                                              "yield_stress_Pa": tau_y})}
+    return dict(zip(("value", "warnings"), _captured(run), strict=True))
+
+
+@st.cache_data(**CACHE)
+def slip_corrected(text: str, source: str) -> dict:
+    """Apparent curves at two or more gaps and the Yoshimura-Prud'homme corrected curve."""
+    from predictor import labdata
+
+    def run():
+        curves = _flow_curves(text, source)
+        corrected = labdata.slip_correction(curves.by_gap())
+        apparent = curves.table[curves.table["branch"] == "up"][
+            ["series", "shear_rate_1_per_s", "shear_stress_Pa"]]
+        flowing = corrected[~corrected["slip_only"]]
+        line = pd.DataFrame({"series": "slip-corrected",
+                             "shear_rate_1_per_s": flowing["shear_rate_1_per_s"],
+                             "shear_stress_Pa": flowing["shear_stress_Pa"]})
+        return {"apparent": apparent, "corrected": corrected, "line": line,
+                "gaps_mm": sorted(1e3 * g for g in curves.by_gap())}
+    return dict(zip(("value", "warnings"), _captured(run), strict=True))
+
+
+@st.cache_data(**CACHE)
+def thixotropy_fit(text: str, source: str, fraction: float, process_rate_1_per_s: float,
+                   view_rate_1_per_s: float) -> dict:
+    """Moore's model fitted to step tests; recovery after a process step; eta(t) at a rate."""
+    from predictor import thixotropy
+
+    def run():
+        curves = _flow_curves(text, source)
+        steps, loops = curves.thixotropy_tests()
+        fit = thixotropy.fit_moore(steps, loops)
+        points, lines = [], []
+        for name in curves.series():
+            rows = curves.table[curves.table["series"] == name]
+            t, rate = rows["time_s"].to_numpy(), rows["shear_rate_1_per_s"].to_numpy()
+            before = float(rows["preshear_rate_1_per_s"].iloc[0])
+            points.append(pd.DataFrame({"series": name, "time_s": t,
+                                        "shear_stress_Pa": rows["shear_stress_Pa"]}))
+            if np.isnan(before):          # a loop or other history from a rested sample
+                grid, model = t, thixotropy.stress_history(t, rate, fit.params, 1.0)
+            else:                         # a step test after a pre-shear
+                grid = np.linspace(float(t.min()), float(t.max()), 120)
+                model = thixotropy.stress_history(np.r_[grid[0] - 1e12, grid],
+                                                  np.r_[before, np.full(grid.size, rate[0])],
+                                                  fit.params)[1:]
+            lines.append(pd.DataFrame({"series": name, "time_s": grid,
+                                       "shear_stress_Pa": model}))
+        recovery = float(thixotropy.recovery_time(fraction, fit.params, process_rate_1_per_s))
+        start = float(thixotropy.equilibrium_structure(
+            process_rate_1_per_s, fit.params["build_up_rate_1_per_s"],
+            fit.params["breakdown_coefficient"]))
+        horizon = max(3.0 * recovery, 10.0 / fit.params["build_up_rate_1_per_s"])
+        time = np.linspace(0.0, horizon, 150)
+        history = pd.DataFrame({"series": f"at {view_rate_1_per_s:g} 1/s after the step",
+                                "time_s": time,
+                                "viscosity_Pa_s": thixotropy.viscosity_history(
+                                    time, view_rate_1_per_s, fit.params, start)})
+        return {"params": fit.params, "intervals": fit.intervals, "rmse": fit.rmse,
+                "n_points": fit.n_points, "points": pd.concat(points, ignore_index=True),
+                "lines": pd.concat(lines, ignore_index=True), "recovery_s": recovery,
+                "structure_after_step": start, "history": history}
+    return dict(zip(("value", "warnings"), _captured(run), strict=True))
+
+
+def param_words(name: str, kind: str, model: str) -> str:
+    """A parameter in words with its unit, e.g. 'build-up rate at rest a [1/s]'."""
+    from predictor.labels import name_label
+
+    words, unit = name_label(name, (kind,), model)
+    return f"{words} [{unit}]"

@@ -21,8 +21,11 @@ PAGES = [
     st.Page("views/flow_curve.py", title="Flow curve", icon=":material/airwave:"),
     st.Page("views/sizes_packing.py", title="Sizes & packing", icon=":material/scatter_plot:"),
     st.Page("views/droplets.py", title="Droplets", icon=":material/bubble_chart:"),
+    st.Page("views/particle_forces.py", title="Particle forces", icon=":material/join_inner:"),
     st.Page("views/calibrate.py", title="Calibrate", icon=":material/tune:"),
+    st.Page("views/design_map.py", title="Design map", icon=":material/grid_on:"),
     st.Page("views/batch_screen.py", title="Batch screen", icon=":material/table_view:"),
+    st.Page("views/process_checks.py", title="Process checks", icon=":material/plumbing:"),
 ]
 page = st.navigation(PAGES)
 widgets.presentation_style()

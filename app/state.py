@@ -77,7 +77,13 @@ INGREDIENT_DEFAULTS: dict[str, object] = {
     "name": "new ingredient", "kind": "solid", "density": 2500.0, "loading": 10.0,
     "basis": "mass", "diameter": 1.0, "size_json": "", "aspect_ratio": 1.0, "layer": 0.0,
     "phi_max": None, "intrinsic": None, "droplet_viscosity": None, "tension": None,
+    # particle interactions: "none", "charged" (surface potential) or "flocculated"
+    "interaction": "none", "potential": 30.0, "hamaker": 1.0,
 }
+INTERACTIONS = ("none", "charged", "flocculated")
+INTERACTION_LABELS = {"none": "Dispersed (hard spheres)", "charged": "Charged: verdict from "
+                      "potential and salt", "flocculated": "Flocculated (stated)"}
+POTENTIAL_UNIT, HAMAKER_SCALE, SALT_UNIT = "mV", 1e-20, "mmol/L"   # as the widgets show them
 KINDS = ("solid", "droplet")
 BASES = ("mass", "volume")
 BASIS_LABELS = {"mass": "wt%", "volume": "vol%"}
@@ -114,6 +120,7 @@ DEFAULTS: dict[str, object] = {
     "liq_params_json": "{}",            # law parameters, SI, keyed by registry name
     "liq_temperature": 25.0, "liq_ref_temperature": 25.0, "liq_density": 997.0,
     "liq_glycerol": 0.0, "liq_activation_temperature": None,
+    "liq_salt": 1.0, "liq_permittivity": None,     # ionic strength [mmol/L]; None: water
     # ingredients
     "n_ing": 0,
     # Loading sweep page
@@ -122,6 +129,11 @@ DEFAULTS: dict[str, object] = {
     # Flow curve page
     "process_shear_rate": 100.0, "flow_process": "(my own shear rate)",
     "flow_low": 1e-3, "flow_high": 1e5, "flow_show_stress": True,
+    # Process checks page (units fixed in the labels)
+    "pc_flow": 10.0, "pc_flow_max": 100.0, "pc_diameter": 25.0, "pc_length": 10.0,
+    "pc_roughness": 0.0, "pc_impeller": "disc turbine", "pc_speed": 120.0,
+    "pc_impeller_d": 100.0, "pc_tank_d": 300.0, "pc_thickness": 100.0,
+    "pc_wavelength": 1.0, "pc_surface_tension": 35.0,
     # Sizes & packing page
     "sz_source": "generated", "sz_ingredient": "", "sz_table_bytes": b"",
     "sz_table_name": "", "sz_message": "", "sz_kind": "lognormal", "sz_size": 5.0,
@@ -134,11 +146,28 @@ DEFAULTS: dict[str, object] = {
     # Calibration (JSON of the fit that set the relation; "" = none)
     "calibration_json": "", "cal_text": "", "cal_source": "", "cal_message": "",
     "cal_rate": None, "cal_model": "krieger-dougherty", "cal_compare": True,
+    # Calibrate page, lab data as it comes (exports, slip at several gaps, step tests)
+    "lab_curves_text": "", "lab_curves_source": "", "lab_model": "herschel-bulkley",
+    "lab_branch": "up", "lab_slip_text": "", "lab_slip_source": "", "lab_step_text": "",
+    "lab_step_source": "", "lab_message": "", "lab_fraction": 90.0,
+    "lab_process_rate": 1000.0, "lab_view_rate": 1.0,
     # Batch screen page
     "batch_files": {}, "batch_table_name": "", "batch_message": "", "batch_result": None,
     "batch_summary": {}, "batch_unit": "Pa*s",
+    # Particle forces page (salt in mmol/L, potential in mV, layer in nm, A in 1e-20 J)
+    "pf_ingredient": "", "pf_salt": 1.0, "pf_potential": 30.0, "pf_layer": 0.0,
+    "pf_hamaker": 4.8,
+    # Design map page (loadings in % on the chosen basis, windows in SI)
+    "map_mode": "plane", "map_x": 0, "map_y": 1, "map_parts": [0, 1, -1],
+    "map_x_low": 20.0, "map_x_high": 60.0, "map_y_low": 0.0, "map_y_high": 40.0,
+    "map_rate": 100.0, "map_n": 11, "map_basis": "mass", "map_message": "",
+    "map_windows": [{"name": "pumping", "shear_rate_1_per_s": 100.0,
+                     "max_viscosity_Pa_s": 2.0, "min_viscosity_Pa_s": None},
+                    {"name": "sag resistance", "shear_rate_1_per_s": 0.1,
+                     "max_viscosity_Pa_s": None, "min_viscosity_Pa_s": 10.0}],
+    "cand_design": "full-factorial", "cand_n": 16, "cand_levels": 3, "cand_seed": 0,
     # messages from callbacks, shown on the next run
-    "scenario_message": "", "scenario_loaded": False,
+    "scenario_message": "", "scenario_warning": "", "scenario_loaded": False,
 }
 
 
@@ -190,7 +219,9 @@ def init(ss: MutableMapping | None = None) -> None:
         ss["scenario_loaded"] = True
         path = opening_scenario_path()
         try:
-            apply_formulation(sc.read_scenario(path), ss, source=path.name)
+            form, notes = with_notes(sc.read_scenario, path)
+            apply_formulation(form, ss, source=path.name)
+            ss["scenario_warning"] = " ".join(notes)
         except predictor.LoadlineError as err:
             ss["scenario_message"] = f"The opening scenario could not be read: {err}"
 
@@ -312,6 +343,8 @@ def document(ss: MutableMapping | None = None) -> dict:
         "density": _q(ss["liq_density"], units["unit_density"]),
         "reference_temperature": _q(ss["liq_ref_temperature"], units["unit_temperature"]),
         "activation_temperature": _q(activation, "K"),
+        "ionic_strength": _q(ss.get("liq_salt", 1.0), SALT_UNIT),
+        "relative_permittivity": ss.get("liq_permittivity"),
     }
     ingredients = []
     for i in range(int(ss["n_ing"])):
@@ -320,6 +353,7 @@ def document(ss: MutableMapping | None = None) -> dict:
 
         size = get("size_json")
         droplet = get("kind") == "droplet"
+        mode = "none" if droplet else get("interaction")
         ingredients.append({
             "name": get("name"), "kind": get("kind"),
             "loading": {"value": float(get("loading")) / 100.0, "basis": get("basis")},
@@ -333,6 +367,11 @@ def document(ss: MutableMapping | None = None) -> dict:
             "phi_max": get("phi_max"),
             "intrinsic_viscosity": get("intrinsic"),
             "size_distribution": json.loads(size) if size else None,
+            "surface_potential": _q(get("potential"), POTENTIAL_UNIT)
+            if mode == "charged" else None,
+            "hamaker_constant": None if mode == "none" or get("hamaker") is None
+            else {"value": float(get("hamaker")) * HAMAKER_SCALE, "unit": "J"},
+            **({"flocculated": True} if mode == "flocculated" else {}),
         })
     return {
         "format": sc.FORMAT, "schema_version": sc.SCHEMA_VERSION,
@@ -379,6 +418,8 @@ def values_from_formulation(formulation, ss: MutableMapping | None = None) -> di
         "liq_activation_temperature": None if liq["activation_temperature"] is None
         else float(liq["activation_temperature"]["value"]),
         "n_ing": len(doc["ingredients"]),
+        "liq_salt": _clean(1000.0 * formulation.liquid.ionic_strength_mol_per_L),
+        "liq_permittivity": formulation.liquid.relative_permittivity,
     }
     for name in AUTO_PARAMS:
         values[f"auto_{name}"] = name not in params
@@ -409,8 +450,22 @@ def values_from_formulation(formulation, ss: MutableMapping | None = None) -> di
             if droplet else None,
             ingredient_key(i, "size_json"): "" if ing["size_distribution"] is None
             else json.dumps(ing["size_distribution"], sort_keys=True),
+            **_interaction_values(i, formulation.ingredients[i]),
         })
     return values
+
+
+def _interaction_values(i: int, ing) -> dict:
+    """Session values of an ingredient's interactions (mode, potential in mV, A in 1e-20 J)."""
+    mode = ("flocculated" if ing.flocculated else
+            "charged" if ing.surface_potential_V is not None else "none")
+    return {
+        ingredient_key(i, "interaction"): mode,
+        ingredient_key(i, "potential"): INGREDIENT_DEFAULTS["potential"]
+        if ing.surface_potential_V is None else _clean(1000.0 * ing.surface_potential_V),
+        ingredient_key(i, "hamaker"): INGREDIENT_DEFAULTS["hamaker"]
+        if ing.hamaker_J is None else _clean(ing.hamaker_J / HAMAKER_SCALE),
+    }
 
 
 def apply_formulation(formulation, ss: MutableMapping | None = None, source: str = "") -> None:
@@ -426,11 +481,35 @@ def apply_formulation(formulation, ss: MutableMapping | None = None, source: str
     ss["calibration_json"] = ""
     ss["sc_source"] = source
     ss["scenario_message"] = ""
+    ss["scenario_warning"] = ""
+
+
+def with_notes(read, *args):
+    """`read(*args)` and the warnings it raised (unknown keys, rebinned size tables), as
+    texts for the user: a warning must reach the page, not only the server log."""
+    import warnings
+
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
+        value = read(*args)
+    return value, list(dict.fromkeys(str(w.message) for w in caught))
 
 
 def apply_text(text: str, ss: MutableMapping | None = None, source: str = "") -> None:
-    """Load a scenario from JSON text; a `LoadlineError` names what is wrong."""
-    apply_formulation(sc.loads(text), ss, source=source)
+    """Load a scenario from JSON text; a `LoadlineError` names what is wrong. Warnings
+    (unknown keys ...) are kept in ``scenario_warning`` for the page to show."""
+    form, notes = with_notes(sc.loads, text, source or "the scenario")
+    apply_formulation(form, ss, source=source)
+    _session(ss)["scenario_warning"] = " ".join(notes)
+
+
+def set_loadings(loadings: dict[int, float], basis: str,
+                 ss: MutableMapping | None = None) -> None:
+    """Set ingredients' loadings (fractions on `basis`), e.g. a design-map cell's recipe."""
+    ss = _session(ss)
+    for k, value in loadings.items():
+        ss[ingredient_key(int(k), "loading")] = _clean(round(100.0 * float(value), 6))
+        ss[ingredient_key(int(k), "basis")] = basis
 
 
 def add_ingredient(ss: MutableMapping | None = None) -> None:

@@ -14,8 +14,8 @@ import pandas as pd
 import streamlit as st
 
 import predictor
-from app import charts, compute, state
-from predictor import labels, sizes
+from app import compute, state
+from predictor import charts, labels, sizes
 from predictor import scenario as sc
 from predictor.units import from_si, to_si
 
@@ -152,7 +152,9 @@ def _open_demo() -> None:
 def open_demo_file(path) -> None:
     """Open a demo scenario file as the whole scenario (a callback: sidebar and pages)."""
     try:
-        state.apply_formulation(sc.read_scenario(path), source=path.name)
+        form, notes = state.with_notes(sc.read_scenario, path)
+        state.apply_formulation(form, source=path.name)
+        st.session_state["scenario_warning"] = " ".join(notes)
     except predictor.LoadlineError as err:
         st.session_state["scenario_message"] = str(err)
 
@@ -183,6 +185,8 @@ def scenario_box() -> None:
     message = st.session_state.get("scenario_message")
     if message:
         st.error(message, icon=":material/error:")
+    if st.session_state.get("scenario_warning"):
+        st.warning(st.session_state["scenario_warning"], icon=":material/warning:")
     with st.expander("Open, save, demos", icon=":material/folder_open:"):
         st.file_uploader("Open a saved scenario (*.loadline.json)", type=["json"],
                          key="open_file", on_change=_open_uploaded,
@@ -262,6 +266,13 @@ def liquid_box() -> None:
             law_inputs()
         st.number_input(f"Density [{_u('unit_density')}]", key="liq_density", step=10.0,
                         format="%.4g")
+        if any(ss.get(state.ingredient_key(i, "interaction")) == "charged"
+               for i in range(int(ss["n_ing"]))):
+            st.number_input(f"Salt: ionic strength [{state.SALT_UNIT}]", key="liq_salt",
+                            format="%.4g", step=1.0,
+                            help="Sets the Debye length that screens charged particles.")
+            st.number_input("Relative permittivity (empty: water) [–]",
+                            key="liq_permittivity", format="%.3g", step=1.0)
 
 
 def law_inputs() -> None:
@@ -358,6 +369,7 @@ def ingredient_box(i: int) -> None:
                             format="%.4g", step=1.0)
             st.number_input("Own packing limit φmax (empty: from sizes) [–]",
                             key=k("phi_max"), format="%.3f", step=0.01)
+            interaction_inputs(i)
         else:
             st.number_input(f"Droplet viscosity [{_u('unit_viscosity')}] "
                             "(empty: same as liquid)", key=k("droplet_viscosity"),
@@ -366,6 +378,46 @@ def ingredient_box(i: int) -> None:
                             format="%.4g")
         st.button("Remove this ingredient", key=f"ing{i}_remove", icon=":material/delete:",
                   on_click=state.remove_ingredient, args=(i,))
+
+
+def interaction_inputs(i: int) -> None:
+    """Particle interactions of solid i: dispersed, charged (potential) or flocculated."""
+    ss = st.session_state
+    k = functools.partial(state.ingredient_key, i)
+    st.selectbox("Particle interactions", state.INTERACTIONS, key=k("interaction"),
+                 format_func=state.INTERACTION_LABELS.get)
+    if ss[k("interaction")] == "none":
+        return
+    if ss[k("interaction")] == "charged":
+        st.number_input(f"Surface (zeta) potential [{state.POTENTIAL_UNIT}]",
+                        key=k("potential"), format="%.3g", step=5.0,
+                        help="pH sets it: near the isoelectric point it is close to 0.")
+    st.number_input("Hamaker constant across the liquid [×10⁻²⁰ J]", key=k("hamaker"),
+                    format="%.3g", step=0.5,
+                    help="Typical values: the table on the Particle forces page.")
+
+
+def interaction_summary(scenario: str) -> None:
+    """One line per solid with interactions: its verdict, and the network yield stress."""
+    try:
+        result = compute.particle_verdicts(scenario)["value"]
+    except predictor.LoadlineError as err:
+        show_error(err)
+        return
+    if not result["rows"]:
+        return
+    parts = []
+    for row in result["rows"]:
+        how = ("stated" if row["basis"] == "stated"
+               else f"barrier {fmt(row['barrier_kT'], 3)} kT")
+        parts.append(f"**{row['ingredient']}**: {row['verdict']} ({how})")
+    tau = result["yield_stress_Pa"]
+    text = "; ".join(parts) + (
+        f". Network yield stress {number_text(tau, 'shear stress', 3)} Pa (YODEL), added to "
+        "the flow curve."
+        if tau > 0 else ". No network yield stress at this loading.")
+    st.info(f"Particle forces: {text} Details on the Particle forces page.",
+            icon=":material/join_inner:")
 
 
 def sidebar() -> None:
@@ -403,16 +455,22 @@ def metric_row(items: list[tuple]) -> None:
                        delta_arrow="off")
 
 
-def chart_block(chart, data: pd.DataFrame, stem: str, key: str, export=None) -> None:
-    """The chart (a Vega-Lite spec from app/charts.py), then downloads of its data (CSV)
+def chart_block(chart, data: pd.DataFrame, stem: str, key: str, export=None,
+                on_select=None) -> None:
+    """The chart (a Vega-Lite spec from predictor/charts.py), then downloads of its data (CSV)
     and of the chart itself (PNG, SVG).
 
     `chart` may be a list of panels sharing an x axis, drawn one under the other; then
     `export` is a zero-argument callable building the joined chart for PNG/SVG.
+    `on_select` (a callback) makes a single chart's selections rerun the page; the event
+    is in session state under ``f"{key}_chart"``.
     """
     if isinstance(chart, list):
         for k, panel in enumerate(chart):
             st.vega_lite_chart(spec=panel, width="stretch", key=f"{key}_chart{k}")
+    elif on_select is not None:
+        st.vega_lite_chart(spec=chart, width="stretch", key=f"{key}_chart", on_select=on_select,
+                           selection_mode="cell")
     else:
         st.vega_lite_chart(spec=chart, width="stretch", key=f"{key}_chart")
     if export is None:

@@ -98,6 +98,7 @@ search vectorised over rows and windows (`engine.max_loading`, the solver of
 
 from __future__ import annotations
 
+import contextlib
 import dataclasses
 import io
 import math
@@ -112,6 +113,7 @@ import pandas as pd
 
 from . import composition, engine, formulation, packing, shear, sizes, suspension
 from .errors import InputRangeError, LoadlineError, ScenarioError, UnitError, ValidityWarning
+from .files import atomic_write, check_output, open_atomic
 from .labdata import decimal_point, decode_text, looks_like_data, read_bytes
 from .registry import get_model
 from .units import from_si, parse_loading, to_si
@@ -242,6 +244,10 @@ def parse_header(headers) -> Layout:
             continue
         if index < 0 or (indexed and index == 0):
             raise InputRangeError(f"column '{header}'", index, "numbers from 1")
+        if indexed and kind == "ingredient" and index > formulation.MAX_INGREDIENTS:
+            raise InputRangeError(f"column '{header}'", index,
+                                  f"ingredients numbered 1 to {formulation.MAX_INGREDIENTS} "
+                                  "(a limit that bounds the work of each row)")
         key = (fname, index)
         if key in seen:
             raise InputRangeError(f"column '{header}'", "a second time",
@@ -348,6 +354,9 @@ def read_table(path, chunk_rows: int = CHUNK_ROWS) -> Iterator[pd.DataFrame]:
     path = pathlib.Path(path)
     if not path.is_file():
         raise ScenarioError(f"candidate table {path} does not exist.")
+    if path.suffix.lower() == ".parquet":
+        yield from _read_parquet(path, chunk_rows)
+        return
     if path.suffix.lower() in (".xlsx", ".xlsm"):
         try:
             frame = pd.read_excel(path, dtype=str, keep_default_na=False)
@@ -379,10 +388,12 @@ def read_table(path, chunk_rows: int = CHUNK_ROWS) -> Iterator[pd.DataFrame]:
     try:
         header = list(pd.read_csv(path, nrows=0, **options).columns)
         extra = [f"\x00extra {i}" for i in range(1, EXTRA_CELLS + 1)]
+        # index_col=False: a first row wider than the names must not become an index (its
+        # leading cells would be taken as row labels and the rest shifted).
         reader = pd.read_csv(path, header=None, skiprows=header_line + 1, names=header + extra,
-                             chunksize=chunk_rows, **options)
+                             chunksize=chunk_rows, index_col=False, **options)
         try:
-            for chunk in reader:
+            while (chunk := _next_chunk(reader)) is not None:
                 filled = chunk[extra].to_numpy(dtype=object) != ""
                 # cells up to the last non-empty extra one (rows without extras: the header's)
                 counts = np.where(filled.any(axis=1), len(header) + EXTRA_CELLS
@@ -392,8 +403,8 @@ def read_table(path, chunk_rows: int = CHUNK_ROWS) -> Iterator[pd.DataFrame]:
                 done += len(chunk)
                 yield chunk
             return
-        except pd.errors.ParserError:  # a row beyond the extra cells: count with csv
-            pass
+        except (pd.errors.ParserError, pd.errors.ParserWarning):
+            pass   # a row beyond the extra cells: count with Python's csv reader
         for block in _csv_rows(path, delimiter, done, chunk_rows):
             counts = np.array([_cell_count(row) for row in block])
             block = [(row + [""] * len(header))[:len(header)] for row in block]
@@ -409,6 +420,31 @@ def read_table(path, chunk_rows: int = CHUNK_ROWS) -> Iterator[pd.DataFrame]:
                             "(far into the file); save the table as UTF-8.") from None
     except pd.errors.ParserError as err:
         raise ScenarioError(f"{path.name} is not a readable CSV table ({err}).") from None
+
+
+def _read_parquet(path: pathlib.Path, chunk_rows: int) -> Iterator[pd.DataFrame]:
+    """A Parquet candidate table in chunks of `chunk_rows` rows (row groups streamed by
+    pyarrow), every cell as text like a CSV cell (an empty or null cell is "")."""
+    import pyarrow.parquet as pq
+
+    try:
+        handle = pq.ParquetFile(path)
+    except Exception as err:  # pyarrow raises several kinds for a broken file
+        raise ScenarioError(f"{path.name} is not a readable Parquet file ({err}).") from None
+    if handle.metadata.num_rows == 0:
+        yield pd.DataFrame(columns=handle.schema_arrow.names, dtype=object)
+        return
+    for block in handle.iter_batches(batch_size=chunk_rows):
+        frame = block.to_pandas()
+        yield frame.astype(object).where(frame.notna(), "").astype(str)
+
+
+def _next_chunk(reader):
+    """The next chunk of a pandas CSV reader, or None; a row wider than the names raises
+    (pandas only warns, and drops cells, when that row is the first)."""
+    with warnings_module.catch_warnings():
+        warnings_module.simplefilter("error", pd.errors.ParserWarning)
+        return next(reader, None)
 
 
 def _cell_count(row: list[str]) -> int:
@@ -454,8 +490,16 @@ def _csv_rows(path: pathlib.Path, delimiter: str, skip: int, chunk_rows: int):
 
 
 def count_rows(path) -> int | None:
-    """Number of data rows of a CSV (lines after the header), for the progress bar."""
+    """Number of data rows of a CSV (lines after the header) or a Parquet file (its
+    metadata), for the progress bar; None for other tables."""
     path = pathlib.Path(path)
+    if path.suffix.lower() == ".parquet":
+        import pyarrow.parquet as pq
+
+        try:
+            return pq.ParquetFile(path).metadata.num_rows
+        except Exception:  # noqa: BLE001  a broken file is reported by read_table instead
+            return None
     if path.suffix.lower() != ".csv":
         return None
     lines = 0
@@ -514,6 +558,8 @@ def read_size_table(path, field: str = "size table") -> sizes.SizeDistribution:
     if not size_col[1]:
         raise UnitError(f"{field}: column '{size_col[0]}' of {path.name} needs a unit, "
                         "e.g. 'size [um]'.")
+    _check_amount_unit(amount_col, normalise,
+                       field if path.name in field else f"{field}: {path.name}")
     scale = to_si(1.0, size_col[1], "length", f"unit of column '{size_col[0]}'")
     values = frame[size_col[0]].str.strip()
     amounts = frame[amount_col[0]].str.strip()
@@ -528,7 +574,33 @@ def read_size_table(path, field: str = "size table") -> sizes.SizeDistribution:
                                   "mixed units are not read") from None
     return sizes.SizeDistribution.from_table(
         sizes_m, list(amounts[keep]), basis=basis, cumulative=cumulative, normalise=normalise,
-        columns=(str(size_col[0]), str(amount_col[0])), first_row=2)
+        columns=(str(size_col[0]), str(amount_col[0])), first_row=2).limit_classes(field=field)
+
+
+#: Units of a size table's amount column: percent or fraction on some basis; a 'retained'
+#: column may also be a mass or a volume (any total, normalised).
+_AMOUNT_UNITS = re.compile(r"^(|-|%|(vol|v/v|volume|wt|w/w|mass|num|number|count)\s*%?|"
+                           r"(vol|volume|mass|wt|number|num)?\s*fraction)$", re.IGNORECASE)
+
+
+def _check_amount_unit(column: tuple[str, str], any_total: bool, where: str) -> None:
+    """Refuse an amount column whose unit is not a share (or, for 'retained', an amount)."""
+    header, unit = column
+    if _AMOUNT_UNITS.match(unit.strip()):
+        return
+    if any_total:
+        from .units import ureg
+
+        try:
+            dims = ureg.parse_units(unit).dimensionality
+        except Exception:  # noqa: BLE001  pint raises many kinds on odd text
+            dims = None
+        if dims is not None and dims in (ureg.gram.dimensionality,
+                                         ureg.liter.dimensionality):
+            return
+    allowed = ("a percent or fraction ([vol%], [wt%], [num%], [-])"
+               + (", a mass ([g]) or a volume ([mL])" if any_total else ""))
+    raise UnitError(f"{where}: column '{header}' has the unit [{unit}]; expected {allowed}.")
 
 
 # -- one chunk --------------------------------------------------------------------------------
@@ -575,8 +647,35 @@ def _read_cells(chunk: pd.DataFrame, layout: Layout, row_errors=None) -> _Rows:
             rows.flag(bad, np.array([f"column '{col.header}' = {c!r} is not allowed; expected "
                                      "a finite number." for c in raw], dtype=object))
             value[bad] = np.nan
-        rows.numbers[key] = col.offset + col.scale * value
+        with np.errstate(over="ignore", invalid="ignore"):
+            si = col.offset + col.scale * value
+        _check_cell_range(rows, raw, col, si)
+        rows.numbers[key] = si
     return rows
+
+
+#: Highest shear rate a window may ask for. Process shear rates reach about 1e6 to 1e7 1/s
+#: (high-speed coating, spraying); 1e9 is generous and keeps stresses finite (common
+#: practice, no source). [1/s]
+MAX_SHEAR_RATE_1_PER_S = 1e9
+
+
+def _check_cell_range(rows: _Rows, raw: pd.Series, col: Column, si: np.ndarray) -> None:
+    """Flag cells whose SI value overflowed, and shear rates beyond any process, by column."""
+    cells = raw.to_numpy(dtype=object)
+    overflow = np.isinf(si)
+    if overflow.any():
+        rows.flag(overflow, np.array([f"column '{col.header}' = {c!r} is too large once "
+                                      "converted to SI units." for c in cells], dtype=object))
+    if col.dimension == "shear_rate":
+        high = np.isfinite(si) & (si > MAX_SHEAR_RATE_1_PER_S)
+        if high.any():
+            rows.flag(high, np.array([f"column '{col.header}' = {c!r} is not allowed; expected "
+                                      f"a shear rate up to {MAX_SHEAR_RATE_1_PER_S:g} 1/s."
+                                      for c in cells], dtype=object))
+        si[~np.isfinite(si) | (si > MAX_SHEAR_RATE_1_PER_S)] = np.nan
+    else:
+        si[overflow] = np.nan
 
 
 def _num(rows: _Rows, field_name: str, index: int = 0, default=np.nan) -> np.ndarray:
@@ -1492,7 +1591,8 @@ class _Flow:
             relation=self.relation[k],
             relation_params={"intrinsic_viscosity": self.intrinsic[k]},
             droplet_model=self.droplet_relation[k],
-            droplet_params={"viscosity_ratio": self.ratio[k]})
+            droplet_params={"viscosity_ratio": self.ratio[k]},
+            network=np.full(n, None, dtype=object))
 
     def bare(self, k, phi):
         """Bare solids fraction when the solids are scaled to effective fraction `phi`."""
@@ -1903,6 +2003,32 @@ def _predict_chunk_safe(chunk: pd.DataFrame, ctx: _Context, viscosity_unit: str)
     return pd.concat(parts, ignore_index=True)
 
 
+_MAX_SOLIDS = re.compile(r"^window (\d+) max solids \[vol%\]$")
+
+
+def _note_liquid_fails(frame: pd.DataFrame) -> pd.DataFrame:
+    """Say, in the `warnings` column, where a window's highest loading is 0 because even the
+    liquid (with its droplets) is above the window's max viscosity: a bare 0 reads as an
+    answer about the solids."""
+    if "warnings" not in frame or "status" not in frame:
+        return frame
+    ok = frame["status"].to_numpy() == "ok"
+    notes = frame["warnings"].astype(object).where(frame["warnings"].notna(), "").astype(str)
+    for column in frame.columns:
+        match = _MAX_SOLIDS.match(str(column))
+        if not match:
+            continue
+        fails = ok & (pd.to_numeric(frame[column], errors="coerce").to_numpy() == 0.0)
+        if fails.any():
+            text = (f"window {match.group(1)}: even the liquid without solids (with its "
+                    "droplets) is above the max viscosity; no solids loading meets it")
+            joined = (notes + "; " + text).where(notes != "", text)
+            notes = notes.where(~fails, joined)
+    frame = frame.copy()
+    frame["warnings"] = notes.to_numpy(dtype=object)
+    return frame
+
+
 # -- public entry points ----------------------------------------------------------------------
 
 
@@ -1955,11 +2081,12 @@ def screen(table: pd.DataFrame, base_dir=".", viscosity_unit: str = "Pa*s",
         The input columns followed by the result columns; bad rows have status "error".
     """
     _check_unit(viscosity_unit)
-    layout = parse_header(table.columns)
+    layout = parse_header([h for h in table.columns if h != ROW_ERROR])
     ctx = _Context(layout, pathlib.Path(base_dir))
     text = table.astype(object).where(table.notna(), "").astype(str)
-    parts = [_predict_chunk_safe(text.iloc[s:s + chunk_rows].reset_index(drop=True), ctx,
-                            viscosity_unit) for s in range(0, len(text), chunk_rows)]
+    parts = [_note_liquid_fails(_predict_chunk_safe(
+        text.iloc[s:s + chunk_rows].reset_index(drop=True), ctx, viscosity_unit))
+        for s in range(0, len(text), chunk_rows)]
     if not parts:
         return _predict_chunk(text, ctx, viscosity_unit)
     return pd.concat(parts, ignore_index=True)
@@ -1967,19 +2094,24 @@ def screen(table: pd.DataFrame, base_dir=".", viscosity_unit: str = "Pa*s",
 
 def screen_file(path, out_path=None, viscosity_unit: str = "Pa*s",
                 chunk_rows: int = CHUNK_ROWS, progress: Callable[[int], None] | None = None,
-                keep: int = 0) -> tuple[ScreenSummary, pd.DataFrame]:
-    """Screen a CSV or Excel table chunk by chunk, writing results as they come.
+                keep: int = 0, dask=None) -> tuple[ScreenSummary, pd.DataFrame]:
+    """Screen a CSV, Excel or Parquet table chunk by chunk, writing results as they come.
 
     Parameters
     ----------
     path : path-like
-        The candidate table (.csv, .xlsx).
+        The candidate table (.csv, .xlsx, .parquet).
     out_path : path-like, optional
-        Where to write the result (.csv streamed; .xlsx or .json written at the end).
+        Where to write the result (.csv streamed; .xlsx, .parquet or .json written at the
+        end).
     progress : callable, optional
         Called with the number of rows done after each chunk.
     keep : int
         Number of result rows to keep in memory and return (for printing); -1 keeps all.
+    dask : str or distributed.Client, optional
+        Compute the chunks on a Dask cluster (`screen_on_dask`): "" starts a local cluster,
+        a scheduler address ("tcp://host:8786") or a Client uses that one. The table is
+        still read here, with the same checks; the result is the same as in-process.
 
     Returns
     -------
@@ -1991,40 +2123,104 @@ def screen_file(path, out_path=None, viscosity_unit: str = "Pa*s",
     summary = ScreenSummary()
     ctx = None
     kept, whole = [], []
-    out_path = None if out_path is None else pathlib.Path(out_path)
+    out_path = None if out_path is None else check_output(out_path, [path])
     streaming = out_path is not None and out_path.suffix.lower() == ".csv"
-    handle = None
-    try:
-        for chunk in read_table(path, chunk_rows):
+    with contextlib.ExitStack() as stack:
+        handle = (stack.enter_context(open_atomic(out_path, [path], "w", encoding="utf-8",
+                                                  newline=""))
+                  if streaming else None)
+        chunks = read_table(path, chunk_rows)
+        pairs = ((chunk, None) for chunk in chunks) if dask is None else screen_on_dask(
+            chunks, path.parent, viscosity_unit, dask)
+        for chunk, result in pairs:
             if ctx is None:
                 layout = parse_header([h for h in chunk.columns if h != ROW_ERROR])
                 ctx = _Context(layout, path.parent)
                 summary.windows = layout.windows
                 summary.unrecognised = layout.unrecognised
-            result = _predict_chunk_safe(chunk.reset_index(drop=True), ctx, viscosity_unit)
+            if result is None:     # (a Dask worker ran `screen`, which notes them itself)
+                result = _note_liquid_fails(_predict_chunk_safe(chunk.reset_index(drop=True),
+                                                                ctx, viscosity_unit))
             summary.add(result, summary.rows)
             if streaming:
-                if handle is None:
-                    out_path.parent.mkdir(parents=True, exist_ok=True)
-                    handle = out_path.open("w", encoding="utf-8", newline="")
-                    write_csv(result, handle, header=True)
-                else:
-                    write_csv(result, handle, header=False)
+                write_csv(result, handle, header=handle.tell() == 0)
             elif out_path is not None:
                 whole.append(result)
             if keep < 0 or sum(len(k) for k in kept) < keep:
                 kept.append(result if keep < 0 else result.head(keep))
             if progress:
                 progress(summary.rows)
-    finally:
-        if handle is not None:
-            handle.close()
-    if ctx is None:
-        raise ScenarioError(f"{path.name} has no header row.")
+        if ctx is None:
+            raise ScenarioError(f"{path.name} has no header row.")
+        if out_path is not None:   # nor may it be a size table the rows named
+            check_output(out_path, [path, *_size_table_paths(ctx)])
     if out_path is not None and not streaming:
-        write_table(pd.concat(whole, ignore_index=True) if whole else pd.DataFrame(), out_path)
+        write_table(pd.concat(whole, ignore_index=True) if whole else pd.DataFrame(), out_path,
+                    [path])
     shown = pd.concat(kept, ignore_index=True) if kept else pd.DataFrame()
     return summary, shown if keep < 0 else shown.head(keep)
+
+
+def screen_on_dask(chunks, base_dir, viscosity_unit: str, cluster="") -> Iterator[
+        tuple[pd.DataFrame, pd.DataFrame]]:
+    """(chunk, result) pairs in table order, each result computed by `screen` on a Dask
+    worker: the same vectorised function as in-process, one chunk per task.
+
+    Parameters
+    ----------
+    chunks : iterable of pandas.DataFrame
+        Text chunks of a candidate table (`read_table`); read here, computed remotely.
+    base_dir : path-like
+        Folder of the candidate table; size tables named in it must be readable at the same
+        path on every worker.
+    viscosity_unit : str
+        Unit of the result's viscosity columns.
+    cluster : str or distributed.Client
+        "" starts a local cluster (worker processes on this machine, closed at the end); an
+        address ("tcp://host:8786") connects to a running scheduler; a Client is used as is.
+
+    At most two chunks per worker thread are in flight, so memory stays bounded.
+    """
+    import collections
+
+    try:
+        from distributed import Client, LocalCluster
+    except ImportError:
+        raise ScenarioError("--dask needs Dask: pip install 'loadline[dask]' (dask and "
+                            "distributed).") from None
+    owned = []
+    if isinstance(cluster, Client):
+        client = cluster
+    elif cluster:
+        try:
+            client = Client(str(cluster), timeout="20s")
+        except OSError as err:
+            raise ScenarioError(f"no Dask scheduler answers at {cluster} ({err}).") from None
+        owned.append(client)
+    else:
+        local = LocalCluster(dashboard_address=None)
+        owned += [local, client := Client(local)]
+    try:
+        threads = max(1, sum(client.nthreads().values()))
+        pending = collections.deque()
+        for chunk in chunks:
+            pending.append((chunk, client.submit(screen, chunk, base_dir, viscosity_unit,
+                                                 chunk_rows=max(len(chunk), 1), pure=False)))
+            while len(pending) > 2 * threads:
+                chunk, future = pending.popleft()
+                yield chunk, future.result()
+        while pending:
+            chunk, future = pending.popleft()
+            yield chunk, future.result()
+    finally:
+        for item in reversed(owned):
+            item.close()
+
+
+def _size_table_paths(ctx: _Context) -> list[pathlib.Path]:
+    """The size-table files a run has read (the first item of each size-cache key)."""
+    return [ctx.base_dir / key[0] for key in ctx.size_cache
+            if isinstance(key, tuple) and key and isinstance(key[0], str) and key[0]]
 
 
 def _check_unit(viscosity_unit: str) -> None:
@@ -2127,31 +2323,42 @@ def write_csv(frame: pd.DataFrame, handle_or_path, header: bool = True) -> None:
     pa_csv.write_csv(table, buffer, write_options=options)
     data = buffer.getvalue()
     if isinstance(handle_or_path, str | pathlib.Path):
-        pathlib.Path(handle_or_path).write_bytes(data)
+        atomic_write(handle_or_path, data)
     elif isinstance(handle_or_path, io.TextIOBase):
         handle_or_path.write(data.decode("utf-8"))
     else:
         handle_or_path.write(data)
 
 
-def write_table(frame: pd.DataFrame, path) -> pathlib.Path:
-    """Write a result table as .csv, .xlsx or .json, chosen by the file name."""
-    path = pathlib.Path(path)
-    path.parent.mkdir(parents=True, exist_ok=True)
+def write_table(frame: pd.DataFrame, path, inputs=()) -> pathlib.Path:
+    """Write a result table as .csv, .xlsx, .parquet or .json, chosen by the file name.
+
+    Through `files.atomic_write`: `path` is refused when it is one of `inputs`, and it is
+    replaced whole or not at all.
+    """
+    path = check_output(path, inputs)
     suffix = path.suffix.lower()
     if suffix == ".csv":
-        write_csv(frame, path)
+        buffer = io.BytesIO()
+        write_csv(frame, buffer)
+        data = buffer.getvalue()
     elif suffix == ".xlsx":
+        buffer = io.BytesIO()
         try:
-            safe_frame(frame).to_excel(path, index=False)
+            safe_frame(frame).to_excel(buffer, index=False)
         except ImportError:
             raise ScenarioError("writing Excel needs openpyxl: pip install openpyxl.") from None
+        data = buffer.getvalue()
     elif suffix == ".json":
-        path.write_text(frame.to_json(orient="records", indent=1, double_precision=15),
-                        encoding="utf-8")
+        data = frame.to_json(orient="records", indent=1, double_precision=15)
+    elif suffix == ".parquet":   # for machines: full precision, no spreadsheet escaping
+        buffer = io.BytesIO()
+        frame.to_parquet(buffer, index=False)
+        data = buffer.getvalue()
     else:
-        raise InputRangeError("output file", path.name, "a name ending in .csv, .xlsx or .json")
-    return path
+        raise InputRangeError("output file", path.name,
+                              "a name ending in .csv, .xlsx, .parquet or .json")
+    return atomic_write(path, data, inputs)
 
 
 def csv_text(frame: pd.DataFrame) -> str:

@@ -14,6 +14,7 @@ formats; it computes nothing itself. Human-readable tables by default, ``--json`
 from __future__ import annotations
 
 import argparse
+import contextlib
 import io
 import json
 import math
@@ -24,19 +25,17 @@ import textwrap
 import time
 import warnings
 
-import numpy as np
-import pandas as pd
-
+from . import __version__
+from ._lazy import LazyModule
+from .cautions import CAUTIONS
 from .errors import LoadlineError, UnitError
 from .labels import name_label, quantity_of, value_words
-from .units import from_si, parse_quantity
 
-CAUTIONS = (
-    "Predictions are screening estimates for idealised particles and droplets. Confirm them "
-    "by measurement before scale-up, pump or pressure-equipment selection, and follow local "
-    "codes, licensed engineering practice and the materials' safety data sheets (fine "
-    "powders, solvents)."
-)
+# Imported on first use: `loadline --help` and `loadline models` never load the numeric stack.
+np = LazyModule("numpy")
+pd = LazyModule("pandas")
+units = LazyModule("predictor.units")
+
 EXIT_OK, EXIT_INPUT, EXIT_USAGE, EXIT_ROWS, EXIT_MISSING = 0, 1, 2, 3, 4
 DEMO_SCENARIO = "mineral_coating.loadline.json"
 DEMO_TABLE = "candidates.csv"
@@ -96,7 +95,7 @@ def unit_columns(frame: pd.DataFrame, viscosity_unit: str = "Pa*s") -> pd.DataFr
             if name.endswith(suffix) and pd.api.types.is_numeric_dtype(values):
                 unit = viscosity_unit if dimension == "viscosity" else _SHOWN_UNITS[dimension]
                 label = name[: -len(suffix)].replace("_", " ")
-                out[f"{label} [{unit}]"] = from_si(values.to_numpy(dtype=float), unit,
+                out[f"{label} [{unit}]"] = units.from_si(values.to_numpy(dtype=float), unit,
                                                    dimension)
                 break
         else:
@@ -118,20 +117,27 @@ def _fmt(value, quantity: str = "") -> str:
 
 
 def table_text(frame: pd.DataFrame, max_rows: int | None = None) -> str:
-    """A plain aligned table with 4 significant digits."""
+    """An aligned plain-text table (rich), numbers to 4 significant digits.
+
+    Never wrapped or cut to the terminal's width (the text is also written to files and
+    pipes) and without colour codes.
+    """
+    from rich import box
+    from rich.console import Console
+    from rich.table import Table
+
     shown = frame if max_rows is None else frame.head(max_rows)
     quantities = [quantity_of(str(c)) for c in frame.columns]
-    cells = [[_fmt(v, q) for v, q in zip(row, quantities, strict=True)]
-             for row in shown.itertuples(index=False)]
-    headers = [str(c) for c in frame.columns]
-    widths = [max([len(h)] + [len(r[i]) for r in cells]) for i, h in enumerate(headers)]
-    numeric = [pd.api.types.is_numeric_dtype(frame[c]) for c in frame.columns]
-
-    def line(items):
-        return "  ".join(s.rjust(w) if num else s.ljust(w)
-                         for s, w, num in zip(items, widths, numeric, strict=True)).rstrip()
-
-    lines = [line(headers), line(["-" * w for w in widths])] + [line(r) for r in cells]
+    table = Table(box=box.SIMPLE_HEAD, show_edge=False, pad_edge=False, highlight=False)
+    for col in frame.columns:
+        numeric = pd.api.types.is_numeric_dtype(frame[col])
+        table.add_column(str(col), justify="right" if numeric else "left", no_wrap=True)
+    for row in shown.itertuples(index=False):
+        table.add_row(*(_fmt(v, q) for v, q in zip(row, quantities, strict=True)))
+    out = io.StringIO()
+    Console(file=out, width=100_000, color_system=None, highlight=False, markup=False,
+            emoji=False).print(table)
+    lines = [ln.rstrip() for ln in out.getvalue().splitlines() if ln.strip()]
     if max_rows is not None and len(frame) > max_rows:
         lines.append(f"... {len(frame) - max_rows} more rows (use --json, --csv or -o)")
     return "\n".join(lines)
@@ -139,13 +145,13 @@ def table_text(frame: pd.DataFrame, max_rows: int | None = None) -> str:
 
 def _emit(args, frame: pd.DataFrame, meta: dict | None = None, text_before: str = "") -> None:
     """Print `frame` as the user asked: table (default), JSON or CSV."""
-    from .batch import csv_text
-
     if getattr(args, "json", False):
         doc = dict(meta or {})
         doc["rows"] = frame.astype(object).where(frame.notna(), None).to_dict("records")
         print(json.dumps(_finite(doc), indent=1, default=_json_default))
     elif getattr(args, "csv", False):
+        from .batch import csv_text
+
         sys.stdout.write(csv_text(frame))
     else:
         if text_before:
@@ -174,12 +180,12 @@ def _json_default(value):
 
 
 def _quantity(text: str, dimension: str, option: str) -> float:
-    return parse_quantity(text, dimension, option)
+    return units.parse_quantity(text, dimension, option)
 
 
 def _check_viscosity_unit(unit: str) -> str:
     try:
-        from_si(1.0, unit, "viscosity")
+        units.from_si(1.0, unit, "viscosity")
     except Exception:  # pint raises several kinds; one message for all
         raise UnitError(f"--viscosity-unit = {unit!r} is not a viscosity unit; write e.g. "
                         "'Pa*s', 'mPa*s' or 'cP'.") from None
@@ -187,31 +193,73 @@ def _check_viscosity_unit(unit: str) -> str:
 
 
 class Progress:
-    """A one-line progress bar on stderr (only drawn when stderr is a terminal or forced)."""
+    """A progress bar on stderr (rich), drawn only when stderr is a terminal or forced.
+
+    Called with the number of rows done so far; `close` ends the bar.
+    """
 
     def __init__(self, total: int | None, label: str, enabled: bool, stream=None):
-        self.total, self.label, self.enabled = total, label, enabled
-        self.stream = stream or sys.stderr
-        self.start = time.perf_counter()
+        self.enabled, self.bar = enabled, None
+        if not enabled:
+            return
+        from rich.console import Console
+        from rich.progress import (
+            BarColumn,
+            MofNCompleteColumn,
+            TaskProgressColumn,
+            TextColumn,
+            TimeElapsedColumn,
+        )
+        from rich.progress import Progress as Bar
+
+        console = Console(file=stream or sys.stderr)   # plain text when not a terminal
+        self.bar = Bar(TextColumn(label), BarColumn(), TaskProgressColumn(),
+                       MofNCompleteColumn(), TextColumn("rows"), TimeElapsedColumn(),
+                       console=console, transient=False)
+        self.task = self.bar.add_task(label, total=total)
+        self.bar.start()
 
     def __call__(self, done: int) -> None:
-        if not self.enabled:
-            return
-        elapsed = time.perf_counter() - self.start
-        rate = done / elapsed if elapsed > 0 else 0.0
-        if self.total:
-            frac = min(done / self.total, 1.0)
-            bar = "#" * int(30 * frac) + "." * (30 - int(30 * frac))
-            text = f"\r{self.label} [{bar}] {100 * frac:5.1f} % {done}/{self.total} rows"
-        else:
-            text = f"\r{self.label} {done} rows"
-        self.stream.write(f"{text}  {rate:,.0f} rows/s")
-        self.stream.flush()
+        if self.bar is not None:
+            self.bar.update(self.task, completed=done)
 
     def close(self) -> None:
-        if self.enabled:
-            self.stream.write("\n")
-            self.stream.flush()
+        if self.bar is not None:
+            self.bar.stop()
+
+
+#: Seconds between two redraws of `elapsed_ticker`.
+TICK_SECONDS = 1.0
+
+
+@contextlib.contextmanager
+def elapsed_ticker(label: str, enabled: bool, stream=None):
+    """A line on stderr, redrawn every `TICK_SECONDS`, saying how long a step that reports no
+    progress of its own (the jamming simulation) has been running."""
+    if not enabled:
+        yield
+        return
+    import threading
+
+    stream = stream or sys.stderr
+    every_s = TICK_SECONDS
+    stop = threading.Event()
+    start = time.perf_counter()
+
+    def tick():
+        while not stop.wait(every_s):
+            stream.write(f"\r{label}: {time.perf_counter() - start:.0f} s (Ctrl+C stops it)")
+            stream.flush()
+
+    thread = threading.Thread(target=tick, daemon=True)
+    thread.start()
+    try:
+        yield
+    finally:
+        stop.set()
+        thread.join()
+        stream.write(f"\r{label}: done in {time.perf_counter() - start:.1f} s\n")
+        stream.flush()
 
 
 # -- commands ---------------------------------------------------------------------------------
@@ -237,15 +285,33 @@ def _shear_rates(args) -> np.ndarray:
 
 
 def cmd_predict(args) -> int:
-    from .formulation import predict
+    from .formulation import interaction_rows, predict
 
     unit = _check_viscosity_unit(args.viscosity_unit)
     form = _scenario(args.scenario)
     curve = predict(form, _shear_rates(args))
     meta = {"scenario": form.name, **{k: _plain(v) for k, v in curve.attrs.items()}}
-    head = _scenario_head(form, meta)
+    meta["particle_interactions"] = interaction_rows(form)
+    meta["yield_stress_Pa"] = meta.get("markers", {}).get("flocculation_yield_stress_Pa", 0.0)
+    head = _scenario_head(form, meta) + _interaction_head(meta)
     _emit(args, unit_columns(curve, unit), meta, head)
     return EXIT_OK
+
+
+def _interaction_head(meta: dict) -> str:
+    """Lines naming each solid's verdict and the network yield stress (none: empty)."""
+    rows = meta.get("particle_interactions") or []
+    if not rows:
+        return ""
+    lines = []
+    for row in rows:
+        how = ("stated in the scenario" if row["basis"] == "stated" else
+               f"barrier {row['barrier_kT']:.3g} kT, deepest reachable well "
+               f"{row['reachable_well_kT']:.3g} kT; {row['criterion']}")
+        lines.append(f"particles: {row['ingredient']} {row['verdict']} ({how})")
+    lines.append(f"network yield stress (YODEL, Flatt & Bowen 2006) = "
+                 f"{meta['yield_stress_Pa']:.4g} Pa, added to the flow curve")
+    return "\n" + "\n".join(lines)
 
 
 def _plain(value):
@@ -268,20 +334,23 @@ def _scenario_head(form, meta: dict) -> str:
 
 
 def cmd_sweep(args) -> int:
-    from .formulation import loading_sweep
+    from .formulation import loading_sweep, mixture, require_solid
 
     unit = _check_viscosity_unit(args.viscosity_unit)
     if not 2 <= args.points <= 100_000:
         raise UnitError(f"--points = {args.points} is not allowed; expected 2 to 100000.")
     form = _scenario(args.scenario)
+    require_solid(mixture(form))   # a solids sweep is not asked of droplets alone (as max-load)
     rate = _quantity(args.shear_rate, "shear_rate", "--shear-rate") if args.shear_rate else None
     sweep = _sweep(loading_sweep, form, args.points, rate)
     frame = pd.DataFrame({
         "phi solids [-]": sweep["phi"].to_numpy(),
         "solids [wt%]": 100 * sweep["mass_fraction"].to_numpy(),
         "relative viscosity [-]": sweep["relative_viscosity"].to_numpy(),
-        f"viscosity [{unit}]": from_si(sweep["viscosity_Pa_s"].to_numpy(), unit, "viscosity"),
+        f"viscosity [{unit}]": units.from_si(sweep["viscosity_Pa_s"].to_numpy(), unit, "viscosity"),
     })
+    if "yield_stress_Pa" in sweep and (sweep["yield_stress_Pa"] > 0).any():
+        frame["yield stress of flocs [Pa]"] = sweep["yield_stress_Pa"].to_numpy()
     meta = {"scenario": form.name, **{k: _plain(v) for k, v in sweep.attrs.items()}}
     head = (f"scenario: {form.name or '(unnamed)'}\n"
             f"phi_max = {meta.get('phi_max', float('nan')):.4g}, current phi = "
@@ -311,6 +380,7 @@ def _sweep_basis(rate: float | None) -> str:
 def cmd_max_load(args) -> int:
     from .formulation import max_loading, mixture, solid_mass_fraction
 
+    _check_viscosity_unit(args.viscosity_unit)
     form = _scenario(args.scenario)
     limits = [_quantity(t, "viscosity", "--limit") for t in args.limit]
     rates = [_quantity(t, "shear_rate", "--shear-rate") for t in (args.shear_rate or ["1 1/s"])]
@@ -325,7 +395,7 @@ def cmd_max_load(args) -> int:
         phi = max_loading(form, limit, rate)
         rows.append({
             "shear rate [1/s]": rate,
-            f"viscosity limit [{args.viscosity_unit}]": from_si(limit, args.viscosity_unit,
+            f"viscosity limit [{args.viscosity_unit}]": units.from_si(limit, args.viscosity_unit,
                                                                 "viscosity"),
             "max phi solids [-]": phi,
             "max solids [wt%]": 100 * float(solid_mass_fraction(form, phi, mix)[0]),
@@ -338,28 +408,52 @@ def cmd_max_load(args) -> int:
     return EXIT_OK
 
 
-def cmd_models(args) -> int:
-    from .registry import models
+def relations_snapshot(kind: str | None = None) -> list[dict]:
+    """The registry's relations from the static snapshot `predictor/data/models.json`.
 
-    rows = []
-    for spec in models(args.kind):
-        defaults = spec.defaults()
-        params = "; ".join(
-            f"{p.name}={defaults.get(p.name, '')} [{p.unit}] ({p.bounds[0]:g}..{p.bounds[1]:g})"
-            for p in spec.params)
-        rows.append({"name": spec.name, "kind": spec.kind, "parameters": params or "-",
-                     "validity": spec.validity, "source": spec.source})
-    frame = pd.DataFrame(rows, columns=["name", "kind", "parameters", "validity", "source"])
-    if not (args.json or args.csv):
-        for row in rows:
-            print(f"{row['name']}  ({row['kind']})  source: {row['source']}")
-            print(textwrap.fill(f"parameters: {row['parameters']}", 100,
-                                initial_indent="    ", subsequent_indent="      "))
-            print(textwrap.fill(f"validity: {row['validity']}", 100, initial_indent="    ",
-                                subsequent_indent="      "))
-        print(f"\n{len(rows)} relations.")
+    The snapshot is generated from the registry (``python -m predictor.registry
+    --snapshot``; tests/test_registry.py fails when it is stale), so listing the relations
+    imports no numeric library.
+    """
+    from .registry import SNAPSHOT
+
+    path = pathlib.Path(__file__).resolve().parent / SNAPSHOT
+    relations = json.loads(path.read_text(encoding="utf-8"))
+    return [r for r in relations if kind is None or r["kind"] == kind]
+
+
+def _parameters_text(relation: dict) -> str:
+    def bound(x):
+        return "inf" if x is None else f"{x:g}"
+
+    return "; ".join(
+        f"{p['name']}={'' if p['default'] is None else format(p['default'], 'g')} "
+        f"[{p['unit']}] ({bound(p['bounds'][0])}..{bound(p['bounds'][1])})"
+        for p in relation["parameters"]) or "-"
+
+
+def cmd_models(args) -> int:
+    relations = relations_snapshot(args.kind)
+    if args.json:
+        print(json.dumps({"count": len(relations), "rows": relations}, indent=1,
+                         ensure_ascii=False))
         return EXIT_OK
-    _emit(args, frame, {"count": len(rows)})
+    if args.csv:
+        import csv
+
+        writer = csv.writer(sys.stdout, lineterminator="\n")
+        writer.writerow(["name", "kind", "parameters", "validity", "source"])
+        for r in relations:
+            writer.writerow([r["name"], r["kind"], _parameters_text(r), r["validity"],
+                             r["source"]])
+        return EXIT_OK
+    for r in relations:
+        print(f"{r['name']}  ({r['kind']})  source: {r['source']}")
+        print(textwrap.fill(f"parameters: {_parameters_text(r)}", 100,
+                            initial_indent="    ", subsequent_indent="      "))
+        print(textwrap.fill(f"validity: {r['validity']}", 100, initial_indent="    ",
+                            subsequent_indent="      "))
+    print(f"\n{len(relations)} relations.")
     return EXIT_OK
 
 
@@ -375,7 +469,8 @@ def cmd_screen(args) -> int:
     keep = -1 if (args.json or args.csv) else args.show
     try:
         summary, shown = screen_file(path, args.output, viscosity_unit=unit,
-                                     chunk_rows=args.chunk_rows, progress=progress, keep=keep)
+                                     chunk_rows=args.chunk_rows, progress=progress, keep=keep,
+                                     dask=args.dask)
     finally:
         progress.close()
     for header in summary.unrecognised:
@@ -417,8 +512,10 @@ def cmd_pack(args) -> int:
 
     packing = _need("packing", "packing_estimates")
     dist = read_size_table(args.sizes, field=str(args.sizes))
-    est = packing.packing_estimates(dist.diameters_m, dist.fractions,
-                                    include_simulation=args.simulation)
+    show = args.progress if args.progress is not None else sys.stderr.isatty()
+    with elapsed_ticker("pack: jamming simulation", show and args.simulation):
+        est = packing.packing_estimates(dist.diameters_m, dist.fractions,
+                                        include_simulation=args.simulation)
     rows = [{"method": name, "phi_max [-]": float(value), "note": ""}
             for name, value in est.estimates.items()]
     rows += [{"method": name, "phi_max [-]": float("nan"), "note": f"skipped: {reason}"}
@@ -439,6 +536,10 @@ def cmd_pack(args) -> int:
 
 def cmd_fit(args) -> int:
     labdata = _need("labdata", "read_lab_csv")
+    from .registry import get_model
+
+    if get_model(args.model).kind == "liquid":
+        return _fit_flow_curves(args, labdata)
     options = {}
     if args.scenario:
         options["formulation"] = _scenario(args.scenario)
@@ -471,6 +572,56 @@ def cmd_fit(args) -> int:
     return EXIT_OK
 
 
+def _fit_flow_curves(args, labdata) -> int:
+    """`loadline fit EXPORT --model <liquid law>`: every series of a rheometer export."""
+    curves = labdata.read_flow_curves(args.data)
+    fits = labdata.fit_flow_curves(curves, args.model, branch=args.branch)
+    frame = fits.table()
+    trends = {}
+    phi, tau_y, _ = fits.parameter("yield_stress_Pa")
+    if np.isfinite(tau_y).sum() >= 3:
+        for relation in labdata.YIELD_TRENDS:
+            try:
+                trend = labdata.fit_yield_stress_trend(phi, tau_y, relation)
+            except LoadlineError as err:
+                trends[relation] = {"error": str(err)}
+                continue
+            trends[relation] = {"params": trend.params,
+                                "intervals": {k: list(v) for k, v in trend.intervals.items()},
+                                "rmse_sqrt": trend.rmse_sqrt, "aic": trend.aic}
+    meta = {"model": fits.model, "branch": fits.branch, "series": len(curves.series()),
+            "points": int(len(curves.table)), "controlled": curves.controlled,
+            "notes": list(curves.notes), "slip_warnings": fits.warnings, "trends": trends}
+    head = [f"fit of {fits.model} to every series of {args.data} ({meta['series']} series, "
+            f"{meta['points']} points, {fits.branch} branch; 95 % intervals)"]
+    for series, text in fits.warnings.items():
+        head.append(f"warning, {series}: {text}")
+    for relation, trend in trends.items():
+        if "error" in trend:
+            head.append(f"yield stress against phi, {relation}: not fitted ({trend['error']})")
+        else:
+            words = {"laplace_pressure_Pa": ("Laplace pressure Γ/R", " Pa"),
+                     "phi_c": ("critical fraction φc", "")}
+            head.append(f"yield stress against phi, {relation}: " + ", ".join(
+                f"{words[k][0]} = {v:.4g}{words[k][1]} ({trend['intervals'][k][0]:.4g} to "
+                f"{trend['intervals'][k][1]:.4g}, 95 %)" for k, v in trend["params"].items()))
+    if not (args.json or args.csv):           # a table for people: parameters in words
+        frame = frame.rename(columns=lambda c: _series_column(c, fits.model))
+    _emit(args, frame, meta, "\n".join(head))
+    return EXIT_OK
+
+
+def _series_column(column: str, model: str) -> str:
+    """'yield_stress_Pa low' -> 'yield stress τy, 95 % low [Pa]'; other columns as they are."""
+    fixed = {"series": "series", "phi": "phi [-]", "points": "points", "note": "note",
+             "rmse_ln": "rms error (ln)"}
+    if column in fixed:
+        return fixed[column]
+    name, _, end = column.partition(" ")
+    words, unit = name_label(name, ("liquid",), model)
+    return f"{words}{', 95 % ' + end if end else ''} [{unit}]"
+
+
 def _param_meaning(name: str, model: str) -> str:
     """A fitted parameter in words with its unit (``phi_max`` -> maximum packing fraction [–])."""
     words, unit = name_label(name, ("suspension", "emulsion"), model)
@@ -485,6 +636,250 @@ def cmd_report(args) -> int:
     for path in written:
         print(f"wrote {path}")
     print(f"\nCaution: {CAUTIONS}")
+    return EXIT_OK
+
+
+# -- map ----------------------------------------------------------------------------------
+
+_RANGE = re.compile(r"^\s*(\S+)\s+(\S+)\s*(.*?)\s*$")
+
+
+def _loading_range(text: str, option: str) -> tuple[tuple[float, float], str]:
+    """'20 45 wt%' -> ((0.2, 0.45), "mass")."""
+    from .units import parse_loading
+
+    match = _RANGE.match(str(text))
+    if not match:
+        raise UnitError(f"{option} = {text!r} could not be read; write two loadings and a "
+                        "unit, e.g. '20 45 wt%' or '5 25 vol%'.")
+    low, high, unit = match.groups()
+    (a, basis), (b, _) = (parse_loading(f"{v} {unit}".strip(), option, "mass")
+                          for v in (low, high))
+    return (a, b), basis
+
+
+def _ingredient_arg(form, text: str, option: str):
+    """An ingredient given on the command line: its number (1 = first) or its name."""
+    from .errors import InputRangeError
+
+    names = [i.name for i in form.ingredients]
+    if text in names:
+        return names.index(text)
+    if str(text).strip().isdigit() and 1 <= int(text) <= len(names):
+        return int(text) - 1
+    if str(text).strip().lower() == "liquid" and option == "--z":
+        return "liquid"
+    raise InputRangeError(option, text, f"an ingredient number from 1 to {len(names)} or one "
+                                        "of the names " + ", ".join(repr(n) for n in names))
+
+
+def _window_arg(text: str):
+    """'pumping, 100 1/s, max 2 Pa*s[, min 0.1 Pa*s]' -> (name, rate, max, min) in SI."""
+    parts = [p.strip() for p in str(text).split(",")]
+    if len(parts) < 3 or not parts[0]:
+        raise UnitError(f"--window = {text!r} could not be read; write e.g. "
+                        "'pumping, 100 1/s, max 2 Pa*s' or 'sag, 0.1 1/s, min 10 Pa*s'.")
+    rate = _quantity(parts[1], "shear_rate", f"--window {parts[0]!r} shear rate")
+    limits = {"max": None, "min": None}
+    for part in parts[2:]:
+        word, _, value = part.partition(" ")
+        if word.lower() not in limits or not value.strip():
+            raise UnitError(f"--window {parts[0]!r}: {part!r} should read 'max VISCOSITY' or "
+                            "'min VISCOSITY', e.g. 'max 2 Pa*s'.")
+        limits[word.lower()] = _quantity(value, "viscosity", f"--window {parts[0]!r} {word}")
+    return parts[0], rate, limits["max"], limits["min"]
+
+
+def cmd_map(args) -> int:
+    from . import design
+
+    unit = _check_viscosity_unit(args.viscosity_unit)
+    if not 2 <= args.n <= design.MAX_GRID:
+        raise UnitError(f"-n = {args.n} is not allowed; expected 2 to {design.MAX_GRID}.")
+    form = _scenario(args.scenario)
+    rate = _quantity(args.shear_rate, "shear_rate", "--shear-rate")
+    windows = [_window_arg(t) for t in args.window or []] or None
+    x = _ingredient_arg(form, args.x, "--x")
+    y = _ingredient_arg(form, args.y, "--y")
+    if args.z is not None:
+        z = _ingredient_arg(form, args.z, "--z")
+        total, basis = (None, args.basis) if args.total is None else (
+            _total(args.total))
+        grid = design.loading_ternary(form, (x, y, z), rate, total=total, n=args.n,
+                                      basis=basis, windows=windows)
+        names = grid.attrs["parts"]
+        lead = {f"share {k} [-]": grid[f"share_{k}"] for k in (1, 2, 3)}
+        meta_names = {"parts": names, "total": grid.attrs["total"]}
+    else:
+        (x_range, x_basis), (y_range, y_basis) = (
+            _loading_range(args.x_range, "--x-range"), _loading_range(args.y_range, "--y-range"))
+        if x_basis != y_basis:
+            raise UnitError(f"--x-range is in {x_basis} and --y-range in {y_basis} fractions; "
+                            "give both on the same basis (wt% or vol%).")
+        grid = design.loading_map(form, x, y, x_range, y_range, rate, n=args.n, basis=x_basis,
+                                  windows=windows)
+        basis = x_basis
+        sign = "wt%" if basis == "mass" else "vol%"
+        lead = {f"{grid.attrs['x_ingredient']} [{sign}]": 100 * grid["x_loading"],
+                f"{grid.attrs['y_ingredient']} [{sign}]": 100 * grid["y_loading"]}
+        meta_names = {"x_ingredient": grid.attrs["x_ingredient"],
+                      "y_ingredient": grid.attrs["y_ingredient"]}
+    for message in grid.attrs.get("warnings", ()):
+        warnings.warn(message, stacklevel=1)
+    if args.png:
+        _write_map_png(grid, unit, args.png, args.scenario)
+    meta = {"scenario": form.name, **meta_names, "basis": grid.attrs["basis"],
+            "shear_rate_1_per_s": rate, "viscosity_unit": unit,
+            "windows": grid.attrs["windows"], "current": grid.attrs["current"],
+            "cautions": CAUTIONS}
+    eta = units.from_si(grid["viscosity_Pa_s"].to_numpy(float), unit, "viscosity")
+    frame = pd.DataFrame({**lead, f"viscosity [{unit}]": eta,
+                          "phi/phi_max [-]": grid["phi_over_phi_max"],
+                          "regime": grid["regime"]})
+    for w in grid.attrs["windows"]:
+        frame[f"{w['name']} viscosity [{unit}]"] = units.from_si(
+            grid[f"{w['column']}_viscosity_Pa_s"].to_numpy(float), unit, "viscosity")
+        frame[f"{w['name']} pass"] = grid[f"{w['column']}_pass"].map({True: "pass",
+                                                                       False: "fail"})
+    if "feasible" in grid:
+        frame["feasible"] = grid["feasible"].map({True: "yes", False: "no"})
+    if args.output:
+        from .batch import write_table
+
+        write_table(frame, args.output, inputs=[args.scenario])
+    if args.json or args.csv:
+        _emit(args, frame, meta)
+        return EXIT_OK
+    head = (f"scenario: {form.name or '(unnamed)'}\n{len(grid)} recipes at "
+            f"{rate:g} 1/s, loadings on a {basis} basis"
+            + (f"; {int(grid['feasible'].sum())} inside every window"
+               if "feasible" in grid else ""))
+    print(head)
+    print(table_text(frame, max_rows=args.show))
+    print(f"\nCaution: {CAUTIONS}")
+    return EXIT_OK
+
+
+def _total(text: str) -> tuple[float, str]:
+    from .units import parse_loading
+
+    return parse_loading(text, "--total", "mass")
+
+
+def _write_map_png(grid, unit: str, path: str, scenario: str) -> None:
+    from . import charts
+    from .files import atomic_write
+
+    build = charts.design_triangle if "share_1" in grid else charts.design_map
+    atomic_write(path, charts.to_png(build(grid, unit, joined=True)), inputs=[scenario])
+
+
+# -- candidates -----------------------------------------------------------------------------
+
+_FACTOR_DIMENSIONS = {"d50": "length", "temperature": "temperature",
+                      "liquid viscosity": "viscosity"}
+
+
+def _factor_arg(form, text: str) -> tuple[str, tuple[float, float]]:
+    """'ingredient 1 loading: 20 40 wt%' -> ("ingredient 1 loading", (0.2, 0.4)) in SI."""
+    from .units import parse_loading
+
+    name, sep, rest = str(text).partition(":")
+    match = _RANGE.match(rest) if sep else None
+    if not match:
+        raise UnitError(f"--factor = {text!r} could not be read; write e.g. 'ingredient 1 "
+                        "loading: 20 40 wt%', 'ingredient 2 d50: 0.3 1.2 um' or "
+                        "'temperature: 15 45 degC'.")
+    name = " ".join(name.lower().split())
+    low, high, unit = match.groups()
+    what = name.split()[-1] if name.startswith("ingredient") else name
+    if what in ("loading", "glycerol"):
+        own = "mass"
+        if what == "loading":
+            k = name.split()[1]
+            if k.isdigit() and 1 <= int(k) <= len(form.ingredients):
+                own = form.ingredients[int(k) - 1].basis
+        values = [parse_loading(f"{v} {unit}".strip(), f"--factor {name!r}", own)
+                  for v in (low, high)]
+        if any(basis != own for _, basis in values):
+            raise UnitError(f"--factor {name!r}: give it on its own basis "
+                            f"({'wt%' if own == 'mass' else 'vol%'}).")
+        return name, (values[0][0], values[1][0])
+    dimension = _FACTOR_DIMENSIONS.get(what)
+    if dimension is None:       # candidates.candidate_table names the allowed factors
+        return name, (float("nan"), float("nan"))
+    return name, tuple(_quantity(f"{v} {unit}", dimension, f"--factor {name!r}")
+                       for v in (low, high))
+
+
+def cmd_candidates(args) -> int:
+    from . import candidates
+    from .batch import write_csv
+    from .files import atomic_write
+
+    form = _scenario(args.scenario)
+    factors = dict(_factor_arg(form, t) for t in args.factor)
+    windows = [_window_arg(t) for t in args.window or []] or None
+    table, size_tables = candidates.candidate_table(
+        form, factors, design=args.design, n=args.n, levels=args.levels, seed=args.seed,
+        windows=windows)
+    out = pathlib.Path(args.output)
+    if out.suffix.lower() != ".csv":
+        raise UnitError(f"-o {args.output!r}: the candidate table is written as .csv")
+    atomic_write(out, table.to_csv(index=False, float_format="%.12g"), inputs=[args.scenario])
+    for name, frame in size_tables.items():
+        write_csv(frame, out.parent / name)
+    print(f"wrote {len(table)} candidates ({args.design}) to {out}"
+          + (f" and {len(size_tables)} size tables beside it" if size_tables else "")
+          + f"; screen them with: loadline screen {out}")
+    return EXIT_OK
+
+
+def _pipe_flows(args) -> np.ndarray:
+    flows = [_quantity(t, "flow_rate", "--flow") for t in args.flow]
+    if args.flow_to is None:
+        return np.array(flows)
+    high = _quantity(args.flow_to, "flow_rate", "--flow-to")
+    if len(flows) != 1 or not 0 < flows[0] < high:
+        raise UnitError(f"--flow-to = {args.flow_to!r} needs one --flow below it "
+                        "(the start of the range).")
+    if not 2 <= args.points <= 10_000:
+        raise UnitError(f"--points = {args.points} is not allowed; expected 2 to 10000.")
+    return np.geomspace(flows[0], high, args.points)
+
+
+def cmd_pipe(args) -> int:
+    from .process import CAUTION, pipe_flow_of
+    from .report import pipe_table
+
+    form = _scenario(args.scenario)
+    flows = _pipe_flows(args)
+    diameter = _quantity(args.diameter, "length", "--diameter")
+    length = _quantity(args.length, "length", "--length")
+    roughness = _quantity(args.roughness, "length", "--roughness")
+    for unit, dimension, option in ((args.flow_unit, "flow_rate", "--flow-unit"),
+                                    (args.pressure_unit, "pressure", "--pressure-unit")):
+        try:
+            units.from_si(1.0, unit, dimension)
+        except Exception:  # pint raises several kinds; one message for all
+            raise UnitError(f"{option} = {unit!r} is not a {dimension.replace('_', ' ')} "
+                            "unit.") from None
+    flow = pipe_flow_of(form, flows, diameter, length, roughness)
+    meta = {"scenario": form.name, "diameter_m": diameter, "length_m": length,
+            "roughness_m": roughness, "density_kg_per_m3": flow.density_kg_per_m3,
+            "yield_stress_Pa": flow.yield_stress_Pa,
+            "startup_pressure_Pa": flow.startup_pressure_Pa,
+            "hedstrom_number": flow.hedstrom_number, "warnings": list(flow.warnings),
+            "caution": CAUTION}
+    pu = args.pressure_unit
+    restart = units.from_si(flow.startup_pressure_Pa, pu, "pressure")
+    head = (f"scenario: {form.name or '(unnamed)'}\n"
+            f"pipe: D = {1e3 * diameter:.4g} mm, L = {length:.4g} m, roughness "
+            f"{1e3 * roughness:.3g} mm; density {flow.density_kg_per_m3:.4g} kg/m3\n"
+            f"apparent yield stress {flow.yield_stress_Pa:.3g} Pa; restart pressure of the "
+            f"standing line 4 tau_y L/D = {restart:.4g} {pu}\n"
+            f"Caution: {CAUTION}\n")
+    _emit(args, pipe_table(flow, args.flow_unit, pu), meta, head)
     return EXIT_OK
 
 
@@ -510,14 +905,14 @@ def cmd_demo(args) -> int:
       + ")\n" + table_text(pd.DataFrame({
         "phi solids [-]": sweep["phi"], "solids [wt%]": 100 * sweep["mass_fraction"],
         "relative viscosity [-]": sweep["relative_viscosity"],
-        f"viscosity [{unit}]": from_si(sweep["viscosity_Pa_s"].to_numpy(), unit,
+        f"viscosity [{unit}]": units.from_si(sweep["viscosity_Pa_s"].to_numpy(), unit,
                                        "viscosity")})) + "\n\n")
     rows = []
     for label, rate, limit in (("brushing", 1e4, 0.2), ("pumping", 100.0, 1.0),
                                ("levelling", 0.1, 10.0)):
         phi = max_loading(form, limit, rate)
         rows.append({"window": label, "shear rate [1/s]": rate,
-                     f"limit [{unit}]": from_si(limit, unit, "viscosity"),
+                     f"limit [{unit}]": units.from_si(limit, unit, "viscosity"),
                      "max phi solids [-]": phi,
                      "max solids [wt%]": 100 * float(solid_mass_fraction(form, phi, mix)[0])})
     w("Highest solids loading under a viscosity limit (example windows, invented limits)\n"
@@ -556,6 +951,8 @@ examples:
   loadline screen doe.csv -o doe_results.csv --viscosity-unit mPa*s
   loadline screen doe.xlsx -o doe_results.xlsx --progress
   loadline screen doe.csv --json > doe_results.json
+  loadline screen big_doe.parquet -o big_results.parquet --chunk-rows 100000 --dask
+  loadline screen big_doe.parquet -o big_results.parquet --dask tcp://10.0.0.5:8786
 
 The table has one candidate per row; the columns (units in square brackets) are described
 in predictor/batch.py and the README, e.g. 'ingredient 1 loading [wt%]', 'ingredient 1 d50
@@ -579,13 +976,50 @@ The size table has a 'size [um]' column and 'passing [vol%]' (cumulative), 'amou
 examples:
   loadline fit data_demo/lab_loading_series.csv --particle-density "2700 kg/m3" \\
       --liquid-density "997 kg/m3" --liquid-viscosity "0.89 mPa*s"
-  loadline fit lab.csv --scenario paint.loadline.json --model maron-pierce --json""",
+  loadline fit lab.csv --scenario paint.loadline.json --model maron-pierce --json
+  loadline fit data_demo/lab_emulsion_series.csv --model herschel-bulkley
+
+With a relation of loadings (krieger-dougherty, ...) the file holds viscosities at several
+loadings. With a liquid law (herschel-bulkley, power-law, bingham, ...) it is a rheometer
+export with one or several flow curves (a sample column, or blocks one after another):
+every series is fitted, and the yield stress against phi with the jammed-emulsion
+relations.""",
     "report": """\
 examples:
   loadline report data_demo/mineral_coating.loadline.json -o coating_report.html
   loadline report slip.loadline.json -o slip.html --pdf slip.pdf --viscosity-unit mPa*s
 
 The HTML file is self-contained (charts embedded as SVG); it opens without a network.""",
+    "map": """\
+examples:
+  loadline map data_demo/mineral_coating.loadline.json --x 1 --y 2 \\
+      --x-range "20 45 wt%" --y-range "5 25 wt%" --shear-rate "100 1/s"
+  loadline map paint.loadline.json --x filler --y pigment --shear-rate "100 1/s" \\
+      --window "pumping, 100 1/s, max 2 Pa*s" --window "sag, 0.1 1/s, min 10 Pa*s" --png map.png
+  loadline map paint.loadline.json --x 1 --y 2 --z liquid --shear-rate "100 1/s" -n 21 --json
+
+Ingredients by number (1 = first, as in the candidate table) or by name; every other
+ingredient keeps its scenario loading. Cells at or beyond the packing limit have no flow
+(viscosity inf, regime "jammed"). --json gives every cell in SI units (fractions, Pa*s).""",
+    "candidates": """\
+examples:
+  loadline candidates slurry.loadline.json --factor "ingredient 1 loading: 20 40 wt%" \\
+      --factor "ingredient 2 d50: 0.3 1.2 um" --factor "temperature: 15 45 degC" \\
+      --design latin-hypercube -n 50 --window "pumping, 100 1/s, max 1 Pa*s" -o cand.csv
+  loadline screen cand.csv
+
+Every other field of a row is the scenario's. The batch screen reads Newtonian liquids
+without thickening; a scenario it cannot read is refused, naming the field.""",
+    "pipe": """\
+examples:
+  loadline pipe data_demo/mineral_coating.loadline.json --flow "10 L/min" \\
+      --diameter "25 mm" --length "10 m"
+  loadline pipe paint.loadline.json --flow "1 L/min" --flow-to "100 L/min" --points 20 \\
+      --diameter "1 in" --length "30 m" --csv > system_curve.csv
+
+Laminar flow from the predicted flow curve (Rabinowitsch-Mooney); transition by the
+Metzner-Reed Reynolds number (Hanks for Bingham liquids); turbulent friction by Colebrook,
+Dodge-Metzner or Darby. The restart pressure 4 tau_y L/D is printed above the table.""",
     "demo": """\
 examples:
   loadline demo
@@ -609,16 +1043,11 @@ def build_parser() -> argparse.ArgumentParser:
         prog="loadline",
         description="Loadline: viscosity of suspensions and emulsions from what is known "
                     "before the lab trial.",
-        epilog="commands: predict, sweep, max-load, screen, pack, fit, report, models, demo. "
-               "Run 'loadline COMMAND --help' for examples.\n\n" + _EPILOG,
+        epilog="commands: predict, sweep, max-load, map, candidates, screen, pack, fit, "
+               "report, pipe, models, demo. Run 'loadline COMMAND --help' for examples.\n\n"
+               + _EPILOG,
         formatter_class=argparse.RawDescriptionHelpFormatter)
-    from importlib import metadata
-
-    try:
-        version = metadata.version("loadline")
-    except metadata.PackageNotFoundError:
-        version = "unknown"
-    parser.add_argument("--version", action="version", version=f"loadline {version}")
+    parser.add_argument("--version", action="version", version=f"loadline {__version__}")
     sub = parser.add_subparsers(dest="command", metavar="COMMAND")
 
     def add(name, help_text, func):
@@ -655,24 +1084,33 @@ def build_parser() -> argparse.ArgumentParser:
                    help='shear rate of the limit, e.g. "100 1/s" (default 1 1/s)')
     _add_output(p)
 
-    p = add("screen", "predict a table of candidate formulations (CSV or Excel)", cmd_screen)
-    p.add_argument("table", help="candidate table (.csv or .xlsx)")
-    p.add_argument("-o", "--output", help="write all result rows here (.csv, .xlsx or .json)")
+    p = add("screen", "predict a table of candidate formulations (CSV, Excel or Parquet)",
+            cmd_screen)
+    p.add_argument("table", help="candidate table (.csv, .xlsx or .parquet)")
+    p.add_argument("-o", "--output",
+                   help="write all result rows here (.csv, .xlsx, .parquet or .json)")
     p.add_argument("--chunk-rows", type=int, default=50_000,
                    help="rows computed at once; bounds the memory (default 50000)")
     p.add_argument("--show", type=int, default=20, help="rows shown in the table (default 20)")
     p.add_argument("--progress", action=argparse.BooleanOptionalAction, default=None,
                    help="progress bar on stderr (default: when stderr is a terminal)")
+    p.add_argument("--dask", nargs="?", const="", default=None, metavar="ADDRESS",
+                   help="compute the chunks on a Dask cluster: a local one by default, or the "
+                        "scheduler at ADDRESS (e.g. tcp://host:8786); needs "
+                        "'pip install loadline[dask]'. Give it after the table.")
     _add_output(p)
 
     p = add("pack", "packing limit phi_max of a size table, every estimator", cmd_pack)
     p.add_argument("sizes", help="size table CSV")
     p.add_argument("--simulation", action="store_true",
                    help="also run the jamming simulation (takes seconds)")
+    p.add_argument("--progress", action=argparse.BooleanOptionalAction, default=None,
+                   help="elapsed time of the simulation on stderr (default: when stderr is "
+                        "a terminal)")
     _add_output(p, viscosity=False)
 
-    p = add("fit", "calibrate a relation to lab viscosities (CSV)", cmd_fit)
-    p.add_argument("data", help="lab CSV (units in the headers)")
+    p = add("fit", "calibrate a relation to lab viscosities or flow curves (CSV)", cmd_fit)
+    p.add_argument("data", help="lab CSV or rheometer export (units in the headers)")
     p.add_argument("--model", default="krieger-dougherty", help="relation to fit")
     p.add_argument("--scenario", help="scenario giving the densities and the liquid")
     p.add_argument("--particle-density", metavar="DENSITY", help='e.g. "2700 kg/m3"')
@@ -680,6 +1118,8 @@ def build_parser() -> argparse.ArgumentParser:
     p.add_argument("--liquid-viscosity", metavar="VISCOSITY", help='e.g. "0.89 mPa*s"')
     p.add_argument("--shear-rate", metavar="RATE",
                    help="use the rows measured at this shear rate")
+    p.add_argument("--branch", choices=["up", "down"], default="up",
+                   help="with a liquid law: the branch of each flow curve to fit (default up)")
     _add_output(p, viscosity=False)
 
     p = add("report", "write an HTML (and optionally PDF) report of a scenario", cmd_report)
@@ -689,8 +1129,74 @@ def build_parser() -> argparse.ArgumentParser:
     p.add_argument("--pdf", help="also write this PDF file")
     _add_output(p, machine=False)
 
+    p = add("map", "design map: viscosity over two ingredients' loadings (or a triangle of "
+                   "three)", cmd_map)
+    p.add_argument("scenario", help="scenario file (*.loadline.json)")
+    p.add_argument("--x", required=True, metavar="INGREDIENT",
+                   help="ingredient across the map: its number (1 = first) or name")
+    p.add_argument("--y", required=True, metavar="INGREDIENT", help="ingredient up the map")
+    p.add_argument("--z", metavar="PART",
+                   help="a third part (ingredient or 'liquid'): draw a triangle instead")
+    p.add_argument("--x-range", default="0 50 wt%", metavar="RANGE",
+                   help='loadings across, e.g. "20 45 wt%%" (default "0 50 wt%%")')
+    p.add_argument("--y-range", default="0 50 wt%", metavar="RANGE",
+                   help='loadings up, e.g. "5 25 wt%%" (default "0 50 wt%%")')
+    p.add_argument("--total", metavar="LOADING",
+                   help='triangle: total of the three parts, e.g. "50 wt%%" (default: now)')
+    p.add_argument("--basis", choices=["mass", "volume"], default="mass",
+                   help="triangle: basis of the loadings (default mass)")
+    p.add_argument("--shear-rate", required=True, metavar="RATE",
+                   help='shear rate of the map, e.g. "100 1/s"')
+    p.add_argument("--window", action="append", metavar="WINDOW",
+                   help="a process window, e.g. 'pumping, 100 1/s, max 2 Pa*s' or "
+                        "'sag, 0.1 1/s, min 10 Pa*s' (repeatable)")
+    p.add_argument("-n", type=int, default=41, help="grid points per side (default 41)")
+    p.add_argument("--show", type=int, default=20, help="rows shown in the table (default 20)")
+    p.add_argument("--png", metavar="FILE", help="also write the chart as PNG")
+    p.add_argument("-o", "--output", help="also write every cell here (.csv, .xlsx or .json)")
+    _add_output(p)
+
+    p = add("candidates", "candidate table from a scenario: a design over chosen factors, "
+                          "for loadline screen", cmd_candidates)
+    p.add_argument("scenario", help="scenario file (*.loadline.json)")
+    p.add_argument("--factor", action="append", required=True, metavar="FACTOR",
+                   help="'NAME: LOW HIGH UNIT', NAME one of 'ingredient k loading', "
+                        "'ingredient k d50', 'temperature', 'liquid viscosity', 'glycerol' "
+                        "(repeatable)")
+    p.add_argument("--design", default="full-factorial",
+                   choices=["full-factorial", "latin-hypercube", "sobol", "halton"],
+                   help="full factorial (default) or a space-filling design")
+    p.add_argument("-n", type=int, default=16,
+                   help="rows of a space-filling design (default 16)")
+    p.add_argument("--levels", type=int, default=3,
+                   help="levels per factor of the full factorial (default 3)")
+    p.add_argument("--seed", type=int, default=0, help="seed of the space-filling designs")
+    p.add_argument("--window", action="append", metavar="WINDOW",
+                   help="a process window for every row, as in 'loadline map'")
+    p.add_argument("-o", "--output", required=True, help="candidate table to write (.csv)")
+
+    p = add("pipe", "pressure drop, regime and restart pressure in a pipe or hose", cmd_pipe)
+    p.add_argument("scenario", help="scenario file (*.loadline.json)")
+    p.add_argument("--flow", action="append", required=True, metavar="FLOW",
+                   help='flow rate with its unit, e.g. "10 L/min" (repeatable)')
+    p.add_argument("--flow-to", metavar="FLOW",
+                   help="end of a flow range from --flow (a system curve)")
+    p.add_argument("--points", type=int, default=11,
+                   help="points of the flow range (default 11)")
+    p.add_argument("--diameter", required=True, metavar="LENGTH",
+                   help='inner diameter, e.g. "25 mm"')
+    p.add_argument("--length", required=True, metavar="LENGTH", help='length, e.g. "10 m"')
+    p.add_argument("--roughness", default="0 m", metavar="LENGTH",
+                   help='wall roughness, e.g. "0.05 mm" (default 0: smooth)')
+    p.add_argument("--flow-unit", default="L/min", metavar="UNIT",
+                   help="unit of flow rates in the table (default L/min)")
+    p.add_argument("--pressure-unit", default="bar", metavar="UNIT",
+                   help="unit of pressures in the table (default bar)")
+    _add_output(p, viscosity=False)
+
     p = add("models", "the published relations Loadline knows, with their sources", cmd_models)
-    p.add_argument("--kind", choices=["suspension", "emulsion", "packing", "liquid", "shear"],
+    p.add_argument("--kind", choices=["suspension", "emulsion", "packing", "liquid", "shear",
+                                      "thixotropy", "process", "interaction"],
                    help="only relations of this kind")
     _add_output(p, viscosity=False)
 

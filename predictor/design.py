@@ -22,6 +22,7 @@ leaves a geometric packing limit unchanged).
 from __future__ import annotations
 
 import dataclasses
+import re
 import warnings
 from collections.abc import Callable, Iterable
 from dataclasses import dataclass
@@ -763,7 +764,10 @@ def storage_check(formulation: fm.Formulation, *, storage_time_s: float = 180 * 
                      "clear_layer_time_s": v.clear_layer_time_s,
                      "gravitational_peclet": v.gravitational_peclet,
                      "yield_parameter": v.yield_parameter})
-    return pd.DataFrame(rows)
+    # The columns are named even with no ingredient (an empty table, not a column-less one).
+    return pd.DataFrame(rows, columns=["ingredient", "diameter_m", "stable", "reason",
+                                       "message", "velocity_m_per_s", "clear_layer_time_s",
+                                       "gravitational_peclet", "yield_parameter"])
 
 
 def phase_ratio_for_target(*args, **kwargs):
@@ -787,3 +791,295 @@ __all__ = [
     "max_loading_windows", "packing_estimator_spread", "phase_ratio_for_target",
     "storage_check",
 ]
+
+
+# --- design-space maps: where in the recipe the product stays workable ---------------------
+
+#: Regime of a map cell whose loadings leave no room for the liquid (nothing is predicted).
+NO_LIQUID = "no liquid"
+LIQUID = "liquid"
+MAX_GRID = 401
+
+
+def _ingredient_index(formulation: fm.Formulation, ingredient, field: str) -> int:
+    """0-based index of an ingredient given by index or by name."""
+    names = [i.name for i in formulation.ingredients]
+    allowed = (f"an ingredient index from 0 to {len(names) - 1} or one of the names "
+               + ", ".join(repr(n) for n in names)) if names else "a formulation with ingredients"
+    if isinstance(ingredient, int | np.integer) and not isinstance(ingredient, bool):
+        if 0 <= int(ingredient) < len(names):
+            return int(ingredient)
+    elif isinstance(ingredient, str) and ingredient in names:
+        return names.index(ingredient)
+    raise InputRangeError(field, ingredient, allowed)
+
+
+def _evaluate_cells(formulation: fm.Formulation, loadings: dict, basis: str, rates):
+    """Viscosity (N, M), regime (N, M) and phi/phi_max (N,) of N recipes at M shear rates.
+
+    Recipe r is `formulation` with ingredient k's loading set to ``loadings[k][r]`` on
+    `basis`; every other ingredient keeps its scenario loading. This is the one place the
+    maps evaluate formulations: ``engine.evaluate(engine.vary(formulation,
+    loadings=loadings, basis=basis), rates)``, every cell in one vectorised solve.
+    Validity warnings of the cells are collected and returned once each (4th item).
+    """
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always", ValidityWarning)
+        res = engine.evaluate(engine.vary(formulation, loadings=loadings, basis=basis), rates)
+    messages = tuple(dict.fromkeys(str(w.message) for w in caught
+                                   if issubclass(w.category, ValidityWarning)))
+    return res.viscosity_Pa_s, res.regime, res.headroom, messages
+
+
+def _has_liquid(formulation: fm.Formulation, loadings: dict, basis: str) -> np.ndarray:
+    """True for each recipe whose loadings leave a share of the formulation to the liquid."""
+    ings = formulation.ingredients
+    n = len(next(iter(loadings.values())))
+    table = np.tile([i.loading for i in ings], (n, 1)).astype(float)
+    is_mass = np.array([i.basis == "mass" for i in ings])
+    for k, values in loadings.items():
+        table[:, k] = values
+        is_mass[k] = basis == "mass"
+    ok = ((np.where(is_mass, table, 0.0).sum(axis=1) < 1.0)
+          & (np.where(is_mass, 0.0, table).sum(axis=1) < 1.0))
+    if ok.any():
+        rho = np.array([i.density_kg_per_m3 for i in ings], dtype=float)
+        phi = composition.volume_fractions(table[ok], is_mass, rho,
+                                           formulation.liquid.density_kg_per_m3)
+        ok[ok] = phi.sum(axis=1) < 1.0
+    return ok
+
+
+def _window_slug(name: str) -> str:
+    slug = re.sub(r"[^0-9a-z]+", "_", str(name).lower()).strip("_")
+    return slug or "window"
+
+
+def _map_columns(formulation: fm.Formulation, loadings: dict, basis: str,
+                 shear_rate_1_per_s, windows) -> tuple[dict, dict]:
+    """The evaluated columns of a map (viscosity, headroom, regime, windows) and its attrs."""
+    if basis not in ("mass", "volume"):
+        raise InputRangeError("basis", basis, "'mass' or 'volume'")
+    rate = np.atleast_1d(np.asarray(positive(shear_rate_1_per_s, "shear_rate_1_per_s"),
+                                    dtype=float))
+    if rate.size != 1:
+        raise InputRangeError("shear_rate_1_per_s", f"{rate.size} values", "one shear rate")
+    items = list(windows) if windows is not None else []
+    checked = _windows(items) if items else []          # no windows: no pass columns
+    for w in checked:
+        positive(w.shear_rate_1_per_s, f"window {w.name!r} shear rate")
+        for value in (w.max_viscosity_Pa_s, w.min_viscosity_Pa_s):
+            if value is not None:
+                positive(value, f"window {w.name!r} viscosity limit")
+    slugs = [_window_slug(w.name) for w in checked]
+    if len(set(slugs)) != len(slugs):
+        raise InputRangeError("windows", ", ".join(w.name for w in checked),
+                              "windows with distinct names")
+    rates = np.concatenate([rate, [w.shear_rate_1_per_s for w in checked]])
+    n = len(next(iter(loadings.values())))
+    eta = np.full((n, rates.size), np.nan)
+    regime = np.full((n, rates.size), NO_LIQUID, dtype=object)
+    headroom = np.full(n, np.nan)
+    ok = _has_liquid(formulation, loadings, basis)
+    messages: tuple = ()
+    if ok.any():
+        eta[ok], regime[ok], headroom[ok], messages = _evaluate_cells(
+            formulation, {k: np.asarray(v)[ok] for k, v in loadings.items()}, basis, rates)
+    columns = {"viscosity_Pa_s": eta[:, 0], "phi_over_phi_max": headroom,
+               "regime": regime[:, 0].astype(str)}
+    passes = []
+    for j, (w, slug) in enumerate(zip(checked, slugs, strict=True), start=1):
+        v = eta[:, j]
+        ok_w = np.isfinite(v)        # no flow (jammed) or no liquid fails every window
+        if w.max_viscosity_Pa_s is not None:
+            ok_w &= v <= w.max_viscosity_Pa_s
+        if w.min_viscosity_Pa_s is not None:
+            ok_w &= v >= w.min_viscosity_Pa_s
+        columns[f"{slug}_viscosity_Pa_s"] = v
+        columns[f"{slug}_pass"] = ok_w
+        passes.append(ok_w)
+    if passes:
+        columns["feasible"] = np.logical_and.reduce(passes)
+    attrs = {"basis": basis, "shear_rate_1_per_s": float(rate[0]),
+             "windows": [dataclasses.asdict(w) | {"column": slug}
+                         for w, slug in zip(checked, slugs, strict=True)],
+             "warnings": messages}
+    return columns, attrs
+
+
+def _axis(bounds, n: int, field: str) -> np.ndarray:
+    try:
+        low, high = (float(v) for v in bounds)
+    except (TypeError, ValueError):
+        raise InputRangeError(field, bounds, "a pair (low, high) of fractions") from None
+    if not (np.isfinite(low) and np.isfinite(high) and 0.0 <= low < high <= 1.0):
+        raise InputRangeError(field, (low, high), "fractions with 0 <= low < high <= 1")
+    return np.linspace(low, high, n)
+
+
+def _grid_size(n) -> int:
+    if isinstance(n, bool) or not isinstance(n, int | np.integer) or not 2 <= n <= MAX_GRID:
+        raise InputRangeError("n", n, f"an integer from 2 to {MAX_GRID}")
+    return int(n)
+
+
+def _fractions_on(formulation: fm.Formulation, basis: str) -> np.ndarray:
+    """Each ingredient's current fraction of the formulation on `basis`."""
+    mix = fm.mixture(formulation)
+    return np.asarray(mix.mass_fraction if basis == "mass" else mix.phi, dtype=float)
+
+
+def loading_map(formulation: fm.Formulation, x_ingredient, y_ingredient, x_range, y_range,
+                shear_rate_1_per_s, n: int = 41, basis: str = "mass",
+                windows: Iterable | None = None) -> pd.DataFrame:
+    """Viscosity over a plane of two ingredients' loadings, with process windows.
+
+    Every cell of an ``n x n`` grid is the scenario with the two ingredients set to the
+    cell's loadings (fractions of the whole formulation on `basis`) and every other
+    ingredient held at its scenario loading; its viscosity at the shear rate is the one
+    `formulation.predict` gives for that recipe (full flow curve: thinning, thickening, a
+    non-Newtonian liquid).
+
+    Parameters
+    ----------
+    formulation : Formulation
+    x_ingredient, y_ingredient : int or str
+        The two ingredients, by 0-based index or by name.
+    x_range, y_range : tuple of float
+        (low, high) loadings of each axis, fractions on `basis` (0 <= low < high <= 1).
+    shear_rate_1_per_s : float
+        Shear rate of the map's viscosity. [1/s]
+    n : int, optional
+        Grid points per axis (2 to 401; default 41).
+    basis : {"mass", "volume"}, optional
+        Basis of the loadings on both axes.
+    windows : iterable, optional
+        Process windows (`ProcessWindow`, dicts or tuples as in `max_loading_windows`); each
+        is checked at its own shear rate.
+
+    Returns
+    -------
+    pandas.DataFrame
+        One row per cell (x varies fastest): x_loading, y_loading, viscosity_Pa_s (inf at
+        and beyond the packing limit, NaN where the loadings leave no liquid),
+        phi_over_phi_max, regime ("jammed" at the packing limit, "no liquid" where nothing is
+        left for the liquid); per window ``<name>_viscosity_Pa_s`` and ``<name>_pass`` (the
+        name in lower case, other characters as ``_``), and ``feasible`` (every window
+        passes) when windows are given. A jammed or liquid-free cell fails every window.
+        `attrs`: x_ingredient, y_ingredient (names), basis, shear_rate_1_per_s, windows,
+        current (the scenario's own x and y loadings), warnings (validity notes, each once).
+
+    Raises
+    ------
+    InputRangeError
+        Unknown or identical ingredients, ranges outside 0-1, a bad grid size, basis, shear
+        rate or window.
+
+    Examples
+    --------
+    Illustrative call: two powders in water, a 3 x 3 map at 100 1/s.
+
+    >>> from predictor.formulation import Formulation, Ingredient
+    >>> form = Formulation(ingredients=(Ingredient("coarse", 2700.0, 0.3, diameter_m=20e-6),
+    ...                                 Ingredient("fine", 2700.0, 0.1, diameter_m=2e-6)))
+    >>> grid = loading_map(form, 0, "fine", (0.1, 0.3), (0.0, 0.2), 100.0, n=3)
+    >>> grid[["x_loading", "y_loading"]].iloc[4].tolist()
+    [0.2, 0.1]
+    """
+    n = _grid_size(n)
+    kx = _ingredient_index(formulation, x_ingredient, "x_ingredient")
+    ky = _ingredient_index(formulation, y_ingredient, "y_ingredient")
+    if kx == ky:
+        raise InputRangeError("y_ingredient", y_ingredient, "an ingredient other than the x one")
+    xs, ys = np.meshgrid(_axis(x_range, n, "x_range"), _axis(y_range, n, "y_range"))
+    x, y = xs.ravel(), ys.ravel()
+    columns, attrs = _map_columns(formulation, {kx: x, ky: y}, basis, shear_rate_1_per_s,
+                                  windows)
+    frame = pd.DataFrame({"x_loading": x, "y_loading": y, **columns})
+    now = _fractions_on(formulation, basis)
+    frame.attrs.update(attrs, x_ingredient=formulation.ingredients[kx].name,
+                       y_ingredient=formulation.ingredients[ky].name,
+                       current={"x_loading": float(now[kx]), "y_loading": float(now[ky])})
+    return frame
+
+
+def loading_ternary(formulation: fm.Formulation, ingredients, shear_rate_1_per_s,
+                    total: float | None = None, n: int = 21, basis: str = "mass",
+                    windows: Iterable | None = None) -> pd.DataFrame:
+    """Viscosity over a triangle of three ingredients (or two and the liquid).
+
+    The three parts share a total: each point of the triangle gives their shares, and the
+    loadings are share times total (fractions of the formulation on `basis`). With three
+    ingredients the total is fixed (default: their present sum), so the solids are traded
+    against each other; with ``"liquid"`` as one of the three the two ingredients' total is
+    free and the liquid takes the rest of the triangle's total (default: the two
+    ingredients plus the liquid at present). Every other ingredient keeps its scenario
+    loading. Cells are evaluated as in `loading_map`.
+
+    Parameters
+    ----------
+    formulation : Formulation
+    ingredients : sequence of three int or str
+        Ingredients by 0-based index or name; at most one may be ``"liquid"``.
+    shear_rate_1_per_s : float
+        Shear rate of the viscosity. [1/s]
+    total : float, optional
+        Sum of the three parts' fractions on `basis` (0 < total <= 1).
+    n : int, optional
+        Points per edge of the triangle (2 to 401; default 21): n (n + 1) / 2 cells.
+    basis : {"mass", "volume"}, optional
+    windows : iterable, optional
+        As in `loading_map`.
+
+    Returns
+    -------
+    pandas.DataFrame
+        One row per point: share_1, share_2, share_3 (shares of the total, summing to 1),
+        loading_1, loading_2, loading_3 (fractions on `basis`; for the liquid its share
+        of the triangle's total), then the columns of `loading_map` after y_loading.
+        `attrs` as in `loading_map` with `parts` (the three names), total and current
+        (the scenario's shares).
+
+    Examples
+    --------
+    Illustrative call: two powders and the liquid, 3 points per edge.
+
+    >>> from predictor.formulation import Formulation, Ingredient
+    >>> form = Formulation(ingredients=(Ingredient("coarse", 2700.0, 0.3, diameter_m=20e-6),
+    ...                                 Ingredient("fine", 2700.0, 0.1, diameter_m=2e-6)))
+    >>> tri = loading_ternary(form, (0, 1, "liquid"), 100.0, n=3)
+    >>> len(tri), round(tri.attrs["total"], 6)
+    (6, 1.0)
+    """
+    n = _grid_size(n)
+    parts = list(ingredients) if isinstance(ingredients, list | tuple) else [ingredients]
+    if len(parts) != 3:
+        raise InputRangeError("ingredients", len(parts), "three ingredients (one may be "
+                              "'liquid')")
+    index = [None if p == LIQUID else _ingredient_index(formulation, p, f"ingredients[{j}]")
+             for j, p in enumerate(parts)]
+    solid = [k for k in index if k is not None]
+    if len(set(solid)) != len(solid) or len(solid) < 2:
+        raise InputRangeError("ingredients", ", ".join(map(str, parts)),
+                              "three different parts, at most one of them 'liquid'")
+    now = _fractions_on(formulation, basis)
+    parts_now = np.array([1.0 - now.sum() if k is None else now[k] for k in index])
+    if total is None:
+        total = float(parts_now.sum())
+    total = float(in_range(total, "total", 0.0, 1.0, low_open=True))
+    i, j = np.meshgrid(np.arange(n), np.arange(n), indexing="ij")
+    keep = i + j <= n - 1
+    shares = np.stack([i[keep], j[keep], (n - 1) - i[keep] - j[keep]], axis=1) / (n - 1)
+    loadings = {k: shares[:, m] * total for m, k in enumerate(index) if k is not None}
+    columns, attrs = _map_columns(formulation, loadings, basis, shear_rate_1_per_s, windows)
+    frame = pd.DataFrame({**{f"share_{m + 1}": shares[:, m] for m in range(3)},
+                          **{f"loading_{m + 1}": shares[:, m] * total for m in range(3)},
+                          **columns})
+    names = [LIQUID if k is None else formulation.ingredients[k].name for k in index]
+    frame.attrs.update(attrs, parts=names, total=total,
+                       current={f"share_{m + 1}": float(parts_now[m] / parts_now.sum())
+                                if parts_now.sum() > 0 else float("nan") for m in range(3)})
+    return frame
+
+
+__all__ += ["NO_LIQUID", "loading_map", "loading_ternary"]

@@ -259,11 +259,11 @@ _COMPILED: dict = {}
 
 def _compiled_kernel():
     if "kernel" not in _COMPILED:
-        import numba
+        from ._jit import compile_kernel
 
         # Serial on purpose: numba's parallel layers refuse concurrent calls from several
         # threads (one per app session), and two cores gained under 10 % here.
-        _COMPILED["kernel"] = numba.njit(cache=True)(_halley_kernel)
+        _COMPILED["kernel"] = compile_kernel(_halley_kernel)
     return _COMPILED["kernel"]
 
 

@@ -46,7 +46,8 @@ class FormulationSet:
     dicts map a parameter name to an array (N,), ``nan`` in rows where it does not apply.
     ``nan`` in `onset_stress_Pa`, `phi_max_frictional` or `radius_m` switches thickening or
     Brownian thinning off in that row. `yield_stress_Pa` is added to the liquid law's own
-    yield stress (e.g. from flocculated solids); 0 by default.
+    yield stress (0 by default); `network` holds each row's flocculated network (None: none),
+    whose yield stress at the row's loading is added to the suspension's stress.
     """
 
     phi: np.ndarray                   # effective solid volume fraction (with layers) [-]
@@ -66,6 +67,7 @@ class FormulationSet:
     relation_params: dict
     droplet_model: np.ndarray
     droplet_params: dict
+    network: np.ndarray               # object: `formulation.flocculation_network` or None
 
     def __len__(self) -> int:
         return int(self.phi.size)
@@ -91,7 +93,8 @@ class FormulationSet:
             for v in (value.values() if isinstance(value, dict) else (value,)):
                 v = np.asarray(v)
                 if v.dtype.kind in "OUS":
-                    v = np.unique(v.astype(str), return_inverse=True)[1].ravel()
+                    v = np.unique(np.array([str(x) for x in v.ravel()]),
+                                  return_inverse=True)[1].ravel()
                 columns.append(np.asarray(v, dtype=float))
         columns += [np.asarray(e, dtype=float).reshape(len(self), -1).T for e in extra]
         table = np.column_stack([c.T if c.ndim == 2 else c for c in columns])
@@ -165,6 +168,7 @@ def row_inputs(formulation: fm.Formulation, mix: fm.Mixture | None = None) -> di
         "liquid_law": law, "liquid_params": params, "relation": spec.name,
         "relation_params": rel, "droplet_model": droplet_model,
         "droplet_params": droplet_params,
+        "network": fm.flocculation_network(formulation, mix),
     }
 
 
@@ -198,6 +202,9 @@ def from_rows(rows: Sequence[Mapping]) -> FormulationSet:
             out[f.name] = np.array(values, dtype=object)
         elif f.name == "has_solids":
             out[f.name] = np.array(values, dtype=bool)
+        elif f.name == "network":
+            out[f.name] = np.empty(len(values), dtype=object)
+            out[f.name][:] = values
         else:
             out[f.name] = np.array(values, dtype=float)
     return FormulationSet(**out)
@@ -358,6 +365,14 @@ def evaluate(fs: FormulationSet, shear_rate_1_per_s) -> Result:
         params = {k: v[:, None] for k, v in _params(fs.liquid_params, sel, spec).items()}
         out["eta_l"][sel] = liquids.liquid_law(spec.name, **params).viscosity(
             rates if rates.ndim == 1 else rates[sel])
+    nets = np.flatnonzero(np.array([x is not None for x in fs.network], dtype=bool))
+    for rows in _groups(np.array([str(x) for x in fs.network[nets]])):   # flocculated
+        sel = nets[rows]
+        tau = np.asarray(fm.network_yield_stress(fs.network[sel[0]], fs.phi[sel]))[:, None]
+        sigma, eta, regime = fm.add_yield_stress(rates if rates.ndim == 1 else rates[sel],
+                                                 out["sigma"][sel], out["regime"][sel], tau)
+        out["sigma"][sel], out["eta"][sel], out["regime"][sel] = sigma, eta, regime
+        out["ys"][sel] += tau[:, 0]
     with np.errstate(invalid="ignore"):
         relative = out["eta"] / out["eta_l"]
     return Result(rates, out["eta"], out["sigma"], relative, out["eta_l"],

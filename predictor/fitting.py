@@ -18,7 +18,6 @@ import inspect
 from dataclasses import dataclass, field
 
 import numpy as np
-from scipy import optimize, stats
 
 from . import uncertainty
 from ._checks import as_array, fraction, in_range
@@ -408,6 +407,8 @@ def _grid(problem: _Problem, default: np.ndarray) -> np.ndarray:
 
 def _fit(spec: ModelSpec, x, y, *, x_name, y_name, fixed, bounds, weights, sigma_log,
          interval, n_bootstrap, seed, confidence) -> FitResult:
+    from scipy import optimize  # imported on first use: `import predictor` stays quick
+
     confidence = float(in_range(confidence, "confidence", 0.0, 1.0, low_open=True,
                                 high_open=True))
     if interval not in ("jacobian", "bootstrap"):
@@ -509,6 +510,8 @@ def _fit(spec: ModelSpec, x, y, *, x_name, y_name, fixed, bounds, weights, sigma
         cov = s2 * np.linalg.inv(jtj)
         cov = 0.5 * (cov + cov.T)
     se = np.sqrt(np.clip(np.diag(cov), 0.0, None))
+    from scipy import stats  # on first use: about 0.2 s to import
+
     tq = float(stats.t.ppf(0.5 * (1 + confidence), dof)) if not absolute else float(
         stats.norm.ppf(0.5 * (1 + confidence)))
     loose = [k for i, k in enumerate(free)
@@ -618,6 +621,8 @@ def _jacobian_u(log_model, problem, u):
 def _bootstrap(residuals, ly, lf, w, sw, problem, u_hat, dof, n_boot, seed):
     if isinstance(n_boot, bool) or not isinstance(n_boot, int | np.integer) or n_boot < 20:
         raise InputRangeError("n_bootstrap", n_boot, "an integer of at least 20")
+    from scipy import optimize
+
     rng = np.random.default_rng(seed)
     n = ly.size
     std = sw * (ly - lf) * np.sqrt(n / dof)

@@ -21,17 +21,23 @@ How a formulation becomes one viscosity (documented choices, common practice, no
 from __future__ import annotations
 
 import dataclasses
+import functools
+import warnings
 from dataclasses import dataclass, field
 
 import numpy as np
 import pandas as pd
 
-from . import composition, liquids, packing, shear, sizes
+from . import composition, interactions, liquids, packing, shear, sizes
 from .errors import InputRangeError
 from .registry import get_model
 from .viscosity import relative_viscosity
 
 SOLID, DROPLET = "solid", "droplet"
+#: Most dispersed ingredients read from a file (scenario or candidate table). A real
+#: formulation has a handful (the app edits up to 6); 50 is generous and bounds the work of
+#: every question, which solves for all ingredients at once (our limit, no source).
+MAX_INGREDIENTS = 50
 RANDOM_CLOSE_SPHERES = 0.64  # Berryman, Phys. Rev. A 27, 1053 (1983): 0.64 +- 0.02
 
 
@@ -53,6 +59,8 @@ class Liquid:
     glycerol_mass_fraction: float = 0.0
     reference_temperature_K: float = 298.15
     activation_temperature_K: float | None = None
+    ionic_strength_mol_per_L: float = 1e-3     # salt, for charged particles (interactions)
+    relative_permittivity: float | None = None  # None: water's at the temperature
 
     def newtonian_viscosity_Pa_s(self) -> float:
         """Viscosity at `temperature_K` of a preset or Newtonian liquid.
@@ -87,6 +95,10 @@ class Ingredient:
 
     `loading` is a fraction (0-1) of the whole formulation on `basis` ("mass" or "volume").
     `size` is a `sizes.SizeDistribution`; when None, a single size `diameter_m` is used.
+    A solid may carry particle interactions (`particle_interactions`): a surface potential
+    `surface_potential_V` (the verdict then follows from the pair energy in the liquid's
+    salt) or `flocculated=True` (stated by the user), both with the Hamaker constant
+    `hamaker_J` of the particles across the liquid.
     """
 
     name: str
@@ -102,6 +114,9 @@ class Ingredient:
     intrinsic_viscosity: float | None = None
     droplet_viscosity_Pa_s: float | None = None
     interfacial_tension_N_per_m: float | None = None
+    surface_potential_V: float | None = None
+    hamaker_J: float | None = None
+    flocculated: bool = False
 
     def distribution(self) -> sizes.SizeDistribution:
         if self.size is not None:
@@ -133,6 +148,7 @@ class Formulation:
                 raise InputRangeError(f"ingredients[{i}].basis", ing.basis, "'mass' or 'volume'")
             for name, (low, high) in _INGREDIENT_RANGES.items():
                 _check_range(f"ingredients[{i}].{name}", getattr(ing, name), low, high)
+            _check_interactions(i, ing)
             if ing.size is not None:
                 d = ing.size.diameters_m
                 _check_range(f"ingredients[{i}].size (smallest class)", float(d.min()), 1e-9, 1e-2)
@@ -149,13 +165,36 @@ _INGREDIENT_RANGES = {
     "density_kg_per_m3": (10.0, 25_000.0), "loading": (0.0, 1.0), "diameter_m": (1e-9, 1e-2),
     "aspect_ratio": (0.01, 100.0), "layer_thickness_m": (0.0, 1e-5), "phi_max": (0.05, 1.0),
     "intrinsic_viscosity": (1.0, 100.0), "droplet_viscosity_Pa_s": (1e-7, 1e7),
-    "interfacial_tension_N_per_m": (1e-7, 1.0),
+    "interfacial_tension_N_per_m": (1e-7, 1.0), "surface_potential_V": (-0.3, 0.3),
 }
 _LIQUID_RANGES = {
     "temperature_K": (150.0, 700.0), "density_kg_per_m3": (10.0, 25_000.0),
     "glycerol_mass_fraction": (0.0, 1.0), "reference_temperature_K": (150.0, 700.0),
-    "activation_temperature_K": (0.0, 1e5),
+    "activation_temperature_K": (0.0, 1e5), "ionic_strength_mol_per_L": (1e-9, 10.0),
+    "relative_permittivity": (1.0, 200.0),
 }
+
+
+def _check_interactions(i: int, ing: Ingredient) -> None:
+    """A Hamaker constant where interactions are asked for; only solids; A >= 0."""
+    if not isinstance(ing.flocculated, bool | np.bool_):
+        raise InputRangeError(f"ingredients[{i}].flocculated", ing.flocculated, "true or false")
+    wanted = ing.flocculated or ing.surface_potential_V is not None
+    if ing.hamaker_J is not None:
+        if isinstance(ing.hamaker_J, int | float) and ing.hamaker_J < 0:
+            raise InputRangeError(
+                f"ingredients[{i}].hamaker_J", ing.hamaker_J, "a value from 0 to 1e-18 J",
+                "Particles of one material always attract across a liquid (A >= 0); a "
+                "negative Hamaker constant is physical only between two different materials.")
+        _check_range(f"ingredients[{i}].hamaker_J", ing.hamaker_J, 0.0, 1e-18)
+    if wanted and ing.kind != SOLID:
+        raise InputRangeError(f"ingredients[{i}].kind", ing.kind,
+                              "'solid' for particle interactions (surface potential, "
+                              "flocculated state)")
+    if wanted and ing.hamaker_J is None:
+        raise InputRangeError(f"ingredients[{i}].hamaker_J", "none",
+                              "a Hamaker constant (J) when a surface potential or a "
+                              "flocculated state is given (see interactions.HAMAKER_CONSTANTS)")
 
 
 def _check_range(field_name: str, value, low: float, high: float) -> None:
@@ -376,13 +415,14 @@ def flow_curve_of(formulation: Formulation, shear_rate_1_per_s=None,
     def given(name):
         return None if np.isnan(row[name]) else float(row[name])
 
-    return shear.flow_curve(
+    curve = shear.flow_curve(
         rates, phi, liquid_law_name=law, liquid_params=params, medium_factor=medium,
         relation=row["relation"], relation_params=row["relation_params"],
         phi_max_zero_shear=ZERO_SHEAR_RATIO * row["phi_max"],
         phi_max_high_shear=row["phi_max"], phi_max_frictional=given("phi_max_frictional"),
         onset_stress_Pa=given("onset_stress_Pa"), radius_m=given("radius_m"),
         temperature_K=row["temperature_K"], yield_stress_Pa=row["yield_stress_Pa"])
+    return _with_added_yield_stress(curve, network_yield_stress(row["network"], phi))
 
 
 def _rates(shear_rate_1_per_s):
@@ -444,12 +484,14 @@ def predict(formulation: Formulation, shear_rate_1_per_s=None) -> pd.DataFrame:
 def flow_curve_summary(formulation: Formulation, shear_rate_1_per_s=None) -> dict:
     """Markers and warnings of the flow curve as one plain dict (for the app and the CLI).
 
-    Keys: phi, phi_max, headroom, warnings, and every marker of `shear.flow_curve`
-    (``thinning_onset_1_per_s``, ``dst_low_1_per_s``, ``apparent_yield_stress_Pa``, ...).
+    Keys: phi, phi_max, headroom, warnings, every marker of `shear.flow_curve`
+    (``thinning_onset_1_per_s``, ``dst_low_1_per_s``, ``apparent_yield_stress_Pa``, ...),
+    and particle_interactions (`interaction_rows`; empty without interactions).
     """
     attrs = predict(formulation, shear_rate_1_per_s).attrs
     return {"phi": attrs["phi"], "phi_max": attrs["phi_max"], "headroom": attrs["headroom"],
-            **attrs["markers"], "warnings": attrs["warnings"]}
+            **attrs["markers"], "warnings": attrs["warnings"],
+            "particle_interactions": interaction_rows(formulation)}
 
 
 def process_viscosities(formulation: Formulation, windows=None) -> pd.DataFrame:
@@ -505,8 +547,10 @@ def loading_sweep(formulation: Formulation, phi=None, n: int = 200,
     Returns
     -------
     pandas.DataFrame
-        Columns phi, mass_fraction (of all solids), relative_viscosity, viscosity_Pa_s;
-        `attrs` holds phi_max, the current loading and the shear rate.
+        Columns phi, mass_fraction (of all solids), relative_viscosity, viscosity_Pa_s,
+        yield_stress_Pa (of flocculated solids, `flocculation_yield_stress`; 0 without);
+        `attrs` holds phi_max, the current loading and the shear rate. The Newtonian view
+        leaves the yield stress out of the viscosity; at a shear rate it is included.
     """
     mix = mixture(formulation)
     grid = np.linspace(0.0, mix.phi_max * 0.995, n) if phi is None else np.atleast_1d(
@@ -528,6 +572,7 @@ def loading_sweep(formulation: Formulation, phi=None, n: int = 200,
         "mass_fraction": solid_mass_fraction(formulation, grid, mix),
         "relative_viscosity": eta_r,
         "viscosity_Pa_s": eta,
+        "yield_stress_Pa": flocculation_yield_stress(formulation, mix, grid),
     })
     frame.attrs.update(phi_max=mix.phi_max, phi_current=mix.phi_solids_effective,
                        shear_rate_1_per_s=shear_rate_1_per_s)
@@ -587,9 +632,26 @@ def max_loading(formulation: Formulation, viscosity_limit_Pa_s: float,
     """
     from . import engine
 
-    phi, _ = engine.max_loading(engine.stack([formulation]), viscosity_limit_Pa_s,
-                                shear_rate_1_per_s)
+    fs = engine.stack([formulation])
+    phi, reason = engine.max_loading(fs, viscosity_limit_Pa_s, shear_rate_1_per_s)
+    if reason[0] == "liquid":
+        rate = float(shear_rate_1_per_s)
+        eta = float(engine.evaluate(fs.at_loading(0.0), [rate]).viscosity_Pa_s[0, 0])
+        warnings.warn(f"even the liquid without solids (with its droplets, if any) is "
+                      f"{eta:.4g} Pa*s at {rate:g} 1/s, above the limit "
+                      f"{float(viscosity_limit_Pa_s):.4g} Pa*s: no solid loading meets it "
+                      "(the answer 0 means none).", UserWarning, stacklevel=2)
     return float(phi[0])
+
+
+def require_solid(mix: Mixture) -> Mixture:
+    """`mix`, or `InputRangeError` when it has no solid ingredient to scale: the solids
+    questions (`max_loading`, a loading sweep) are not asked of droplets alone."""
+    if not mix.is_solid.any():
+        raise InputRangeError("ingredients", "no solid",
+                              "at least one solid ingredient to scale (for droplets, use the "
+                              "phase-ratio questions in predictor.phase_ratio)")
+    return mix
 
 
 def with_solids_scaled(formulation: Formulation, phi_solids_effective: float) -> Formulation:
@@ -606,3 +668,194 @@ def with_solids_scaled(formulation: Formulation, phi_solids_effective: float) ->
         else:
             new.append(dataclasses.replace(ing, loading=float(mix.phi[k]), basis="volume"))
     return dataclasses.replace(formulation, ingredients=tuple(new))
+
+
+# --- particle interactions (predictor.interactions) in a formulation ---------------------
+
+
+@dataclass(frozen=True)
+class ParticleInteraction:
+    """Interactions of one solid ingredient (see `particle_interactions`).
+
+    `separation_m` is the contact separation H that `interactions.yodel_yield_stress`
+    uses (inf when stable); `detail` the full `interactions.StabilityVerdict` when the
+    verdict was computed from a surface potential, None when the user stated "flocculated".
+    """
+
+    ingredient: str
+    verdict: str
+    stated: bool
+    hamaker_J: float
+    diameter_m: float
+    separation_m: float
+    size_factor: float
+    detail: interactions.StabilityVerdict | None
+
+
+def particle_interactions(formulation: Formulation) -> tuple[ParticleInteraction, ...]:
+    """Verdict of every solid that carries interactions (surface potential or flocculated).
+
+    A surface potential gives `interactions.stability_verdict` for the ingredient's Sauter
+    diameter, its adsorbed layer and the liquid's salt, temperature and permittivity. A
+    stated flocculated state has its contacts at twice the layer thickness, or at
+    `interactions.CLOSEST_APPROACH_m` without a layer. The YODEL size is the volume median
+    diameter with `interactions.yodel_size_factor` of the distribution.
+    """
+    liq = formulation.liquid
+    found = []
+    for ing in formulation.ingredients:
+        if ing.kind != SOLID or not (ing.flocculated or ing.surface_potential_V is not None):
+            continue
+        dist = ing.distribution()
+        d50, sauter, factor = _sizes_of(dist)
+        if ing.flocculated:
+            found.append(ParticleInteraction(
+                ing.name, "flocculated", True, ing.hamaker_J, d50,
+                max(2.0 * ing.layer_thickness_m, interactions.CLOSEST_APPROACH_m), factor, None))
+            continue
+        detail = _verdict(sauter, ing.hamaker_J, ing.surface_potential_V,
+                          liq.ionic_strength_mol_per_L, ing.layer_thickness_m, liq.temperature_K,
+                          liq.relative_permittivity)
+        found.append(ParticleInteraction(ing.name, detail.verdict, False, ing.hamaker_J,
+                                         d50, detail.bond_separation_m, factor, detail))
+    return tuple(found)
+
+
+# Sweeps and bisections ask the same questions many times: each answer is kept once.
+@functools.lru_cache(maxsize=256)
+def _verdict(*args) -> interactions.StabilityVerdict:
+    """`interactions.stability_verdict`, once per set of inputs."""
+    return interactions.stability_verdict(*args)
+
+
+@functools.lru_cache(maxsize=256)
+def _sizes_of(dist: sizes.SizeDistribution) -> tuple[float, float, float]:
+    """(volume median diameter, Sauter diameter, YODEL size factor) of a distribution."""
+    factor = interactions.yodel_size_factor(dist.diameters_m, dist.fractions)
+    return dist.d50_m, dist.sauter_diameter_m, float(np.clip(factor, 0.01, 100.0))
+
+
+def flocculation_yield_stress(formulation: Formulation, mix: Mixture | None = None,
+                              phi_solids_effective=None):
+    """Yield stress of the flocculated solids' network at the mixture's loading. [Pa]
+
+    At `phi_solids_effective` (an array: the loading sweep) when given, else at the
+    mixture's own effective solid fraction (a float).
+
+    `interactions.yodel_yield_stress` at the total effective solid fraction and the
+    solids' phi_max, for each solid whose verdict (`particle_interactions`) is
+    "flocculated" or "weakly flocculated", weighted by its share of the solids' effective
+    volume (our own mixing rule, common practice, no source). The percolation threshold is
+    `interactions.YODEL_PERCOLATION`, lowered to half of phi_max for very loose packings;
+    contacts held beyond 1 um (very weak secondary minima) are taken at 1 um, where the
+    yield stress is negligible. 0 when no solid is flocculated or below percolation; inf at
+    and above phi_max.
+    """
+    network = flocculation_network(formulation, mix)
+    phi = None if phi_solids_effective is None else np.asarray(phi_solids_effective, float)
+    if network is None:
+        return 0.0 if phi is None else np.zeros_like(phi)
+    mix = mix or mixture(formulation)
+    tau = network_yield_stress(network, mix.phi_solids_effective if phi is None else phi)
+    return float(tau) if np.ndim(tau) == 0 else tau
+
+
+def flocculation_network(formulation: Formulation, mix: Mixture | None = None):
+    """What `flocculation_yield_stress` needs beyond the loading, or None (no network).
+
+    (percolation threshold, phi_max, ((share, diameter_m, hamaker_J, separation_m,
+    size_factor), ...)): constant while the solids are scaled along their shares, so the
+    engine carries it per row and `network_yield_stress` gives the yield stress at any
+    loading.
+    """
+    states = [s for s in particle_interactions(formulation) if s.verdict != "stable"]
+    if not states:
+        return None
+    mix = mix or mixture(formulation)
+    names = [i.name for i in formulation.ingredients]
+    volume = np.where(mix.is_solid, mix.phi * mix.swelling, 0.0)
+    total = volume.sum()
+    phi0 = min(interactions.YODEL_PERCOLATION, 0.5 * mix.phi_max)
+    terms = []
+    for state in states:
+        k = names.index(state.ingredient)
+        share = volume[k] / total if total > 0 else 1.0 / len(states)
+        terms.append((float(share), float(state.diameter_m), float(state.hamaker_J),
+                      float(min(state.separation_m, 1e-6)), float(state.size_factor)))
+    return (float(phi0), float(mix.phi_max), tuple(terms))
+
+
+def network_yield_stress(network, phi_solids_effective):
+    """Yield stress [Pa] of a `flocculation_network` at effective solid fractions (0 if None)."""
+    phi = np.asarray(phi_solids_effective, dtype=float)
+    if network is None:
+        return 0.0 if phi.ndim == 0 else np.zeros_like(phi)
+    phi0, phi_max, terms = network
+    tau = 0.0
+    for share, diameter, hamaker, separation, size_factor in terms:
+        tau = tau + share * interactions.yodel_yield_stress(
+            np.minimum(phi, 1.0), phi0, phi_max, diameter, hamaker, separation,
+            size_factor=size_factor)
+    return float(tau) if np.ndim(tau) == 0 else tau
+
+
+def _with_added_yield_stress(curve: shear.FlowCurve, yield_stress_Pa: float) -> shear.FlowCurve:
+    """The flow curve with a network yield stress added to its stress (Herschel-Bulkley-like:
+    sigma = tau_y + sigma_suspension(rate)), on top of any yield stress of the liquid.
+
+    YODEL gives the suspension's own yield stress, so it is added as it is, not scaled by
+    the suspension factor that a liquid's yield stress gets in `shear.flow_curve`. Marker
+    ``flocculation_yield_stress_Pa`` (only when > 0).
+    """
+    if yield_stress_Pa <= 0:
+        return curve
+    sigma, viscosity, regime = add_yield_stress(curve.shear_rate_1_per_s,
+                                                curve.shear_stress_Pa, curve.regime,
+                                                yield_stress_Pa)
+    markers = dict(curve.markers, flocculation_yield_stress_Pa=float(yield_stress_Pa))
+    markers["apparent_yield_stress_Pa"] = markers.get("apparent_yield_stress_Pa", 0.0) \
+        + yield_stress_Pa
+    note = (f"Flocculated solids: their network adds a yield stress of {yield_stress_Pa:.3g} Pa "
+            "(YODEL, Flatt & Bowen 2006) to the flow curve.")
+    return dataclasses.replace(curve, shear_stress_Pa=sigma, viscosity_Pa_s=viscosity,
+                               relative_viscosity=viscosity / curve.liquid_viscosity_Pa_s,
+                               regime=regime, markers=markers,
+                               warnings=tuple(curve.warnings) + (note,))
+
+
+def add_yield_stress(shear_rate_1_per_s, shear_stress_Pa, regime, yield_stress_Pa):
+    """A network yield stress added to flow curves (Herschel-Bulkley-like), array-wise.
+
+    sigma = tau_y + sigma_suspension(rate); "yield" where tau_y carries more than half the
+    stress (jammed points stay jammed). Arrays broadcast: rates (M,), stresses and regimes
+    (M,) or (N, M), tau_y a float or (N, 1). Returns (stress, viscosity, regime).
+    """
+    tau = np.asarray(yield_stress_Pa, dtype=float)
+    sigma = np.asarray(shear_stress_Pa, dtype=float) + tau
+    regime = np.asarray(regime)
+    regime = np.where((tau > 0) & (sigma < 2.0 * tau) & (regime != "jammed"), "yield", regime)
+    return sigma, sigma / shear_rate_1_per_s, regime.astype(str)
+
+
+def interaction_rows(formulation: Formulation) -> list[dict]:
+    """`particle_interactions` as plain rows for tables, the CLI and the report.
+
+    Keys: ingredient, verdict, basis ("stated" or "pair energy"), barrier_kT,
+    secondary_minimum_kT, reachable_well_kT, debye_length_m, kappa_a, criterion, notes
+    (nan / "" where the state was stated by the user).
+    """
+    rows = []
+    for s in particle_interactions(formulation):
+        d = s.detail
+        rows.append({
+            "ingredient": s.ingredient, "verdict": s.verdict,
+            "basis": "stated" if s.stated else "pair energy",
+            "barrier_kT": d.barrier_kT if d else float("nan"),
+            "secondary_minimum_kT": d.secondary_minimum_kT if d else float("nan"),
+            "reachable_well_kT": d.reachable_well_kT if d else float("nan"),
+            "debye_length_m": d.debye_length_m if d else float("nan"),
+            "kappa_a": d.kappa_a if d else float("nan"),
+            "criterion": d.criterion if d else "stated by the user",
+            "notes": " ".join(d.notes) if d else "",
+        })
+    return rows

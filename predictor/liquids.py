@@ -970,7 +970,10 @@ def _invert_numerically(func, tau, values):
     """
     func = _KERNELS.get(func.__name__.replace("_", "-"), func)
     eta0 = values["zero_shear_viscosity_Pa_s"]
-    lo = np.log(np.maximum(tau / eta0, 1e-300))
+    # In logs, with no floor: a floor (once 1e-300) answered for another stress when
+    # tau / eta_0 underflowed; ln(tau) - ln(eta_0) holds any positive tau.
+    with np.errstate(divide="ignore"):
+        lo = np.where(tau > 0, np.log(np.where(tau > 0, tau, 1.0)) - np.log(eta0), 0.0)
     hi = lo.copy()
     for _ in range(700):                # expand until the stress at hi reaches tau
         need = np.exp(hi) * func(np.exp(hi), **values) < tau

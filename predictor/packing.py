@@ -33,11 +33,9 @@ from concurrent.futures import ThreadPoolExecutor
 from dataclasses import dataclass, field
 
 import numpy as np
-from numba import njit
-from scipy.optimize import brentq
-from scipy.spatial import cKDTree
 
 from ._checks import as_array, guarded, in_range, positive, scalar_or_array
+from ._jit import lazy_njit
 from .errors import InputRangeError, LoadlineError, ValidityWarning
 from .registry import Param, get_model, model, models
 from .sizes import SizeDistribution
@@ -373,24 +371,27 @@ def _desmond_weeks(d, f, phi0):
     return float(phi0 / star * (star + c1 * delta + c2 * skew * delta**2))
 
 
-@njit(cache=True)
-def _cpm_gamma(d, y, beta, loosening, wall):  # pragma: no cover - compiled
-    """gamma_i of the compressible packing model; d descending, y volume fractions."""
-    n = d.size
-    gamma = np.empty(n)
-    for i in range(n):
-        s = 1.0
-        for j in range(n):
-            if j == i or y[j] == 0.0:
-                continue
-            if d[j] > d[i]:   # coarser class j: wall effect on class i
-                b = 1.0 - (1.0 - d[i] / d[j]) ** wall if wall > 0 else 0.0
-                s -= (1.0 - beta[i] + b * beta[i] * (1.0 - 1.0 / beta[j])) * y[j]
-            else:             # finer class j: loosening effect on class i
-                a = math.sqrt(1.0 - (1.0 - d[j] / d[i]) ** loosening) if loosening > 0 else 0.0
-                s -= (1.0 - a * beta[i] / beta[j]) * y[j]
-        gamma[i] = beta[i] / s if s > 0 else np.inf
-    return gamma
+def _cpm_gamma(d, y, beta, loosening, wall):
+    """gamma_i of the compressible packing model; d descending, y volume fractions.
+
+    All class pairs at once (n x n arrays; n is a few hundred classes at most), so the
+    packing estimates need no compiled code.
+    """
+    di, dj = d[:, None], d[None, :]
+    bi, bj = beta[:, None], beta[None, :]
+    coarser = dj > di                  # class j coarser than class i: wall effect on i
+    if wall > 0:
+        b = 1.0 - np.where(coarser, 1.0 - di / dj, 0.0) ** wall
+    else:
+        b = np.zeros_like(di * dj)
+    if loosening > 0:                  # class j finer (or equal): loosening effect on i
+        a = np.sqrt(1.0 - np.where(coarser, 0.0, 1.0 - dj / di) ** loosening)
+    else:
+        a = np.zeros_like(di * dj)
+    effect = np.where(coarser, 1.0 - bi + b * bi * (1.0 - 1.0 / bj), 1.0 - a * bi / bj)
+    counted = (y[None, :] != 0.0) & ~np.eye(d.size, dtype=bool)
+    s = 1.0 - np.sum(np.where(counted, effect * y[None, :], 0.0), axis=1)
+    return np.where(s > 0, beta / np.where(s > 0, s, 1.0), np.inf)
 
 
 @model("packing", PHI_MONO,
@@ -478,6 +479,8 @@ def _compressible_packing(d, f, phi0, k, loosening=1.02, wall=1.50):
     lo, hi = 1e-3, upper * (1.0 - 1e-12)
     if excess(hi) < 0:
         return float(hi)
+    from scipy.optimize import brentq
+
     return float(brentq(excess, lo, hi, xtol=1e-12))
 
 
@@ -567,7 +570,7 @@ def _desmond_weeks_message(d, f) -> str | None:
 # ------------------------------------------------------------------------------------------
 # the jamming simulation
 # ------------------------------------------------------------------------------------------
-@njit(cache=True, nogil=True)
+@lazy_njit(nogil=True)
 def _forces(x, rad, pi, pj, box, f):  # pragma: no cover - compiled
     """Harmonic contact forces (unit spring constant); energy, sum of overlaps, contacts."""
     n = x.shape[0]
@@ -605,7 +608,7 @@ def _forces(x, rad, pi, pj, box, f):  # pragma: no cover - compiled
     return energy, overlap_sum, contacts
 
 
-@njit(cache=True, nogil=True)
+@lazy_njit(nogil=True)
 def _fire(x, v, mass, rad, pi, pj, box, x_ref, half_skin, st, max_steps, e_zero,
           f_rel):  # pragma: no cover - compiled
     """FIRE energy minimisation (Bitzek et al. 2006) with the FIRE 2.0 Euler step.
@@ -694,6 +697,8 @@ def _neighbour_pairs(x, rad, box, skin, max_groups=6):
     with its own cut-off, so a few large spheres do not force a long cut-off on the many
     small ones.
     """
+    from scipy.spatial import cKDTree
+
     xw = np.mod(x, box)
     level = np.minimum(np.floor(np.log2(rad.max() / rad)).astype(int), max_groups - 1)
     groups = [g for g in (np.flatnonzero(level == k) for k in range(level.max() + 1)) if g.size]
@@ -1180,8 +1185,31 @@ def _calibration_note(delta: float) -> str | None:
     return None
 
 
+def _simulation_sample_message(d, f, n_particles: int = 2000) -> str | None:
+    """Why `simulation` cannot represent a distribution with `n_particles` spheres, or None.
+
+    Spheres follow the distribution in number (`sample_diameters`): a coarse class holding
+    much of the volume but few of the particles may get no sphere at all, and the simulated
+    packing is then that of the fine classes only. Checked before the simulation runs.
+    """
+    n = int(min(max(n_particles, 1), 200_000))
+    diam = sample_diameters(d, f, n)
+    missing = float(np.sum(f[d > diam.max()]))
+    if missing <= 0.01:
+        return None
+    number = f / (d / d.max()) ** 3
+    share = float(np.sum(number[d > diam.max()]) / number.sum())
+    needed = f"about {min(1.0 / share, 1e300):.2g}" if share > 0 else "too many"
+    return (f"the simulation cannot represent this distribution: with {n} spheres "
+            f"{100 * missing:.3g} % of the volume (sizes above {diam.max() * 1e6:.3g} um, up "
+            f"to {d.max() * 1e6:.3g} um) gets no sphere, a size ratio of "
+            f"{d.max() / d.min():.3g} too large for the box; it would need {needed} spheres. "
+            "Use the estimators above.")
+
+
 _MESSAGES = {"desmond-weeks": _desmond_weeks_message, "furnas": _furnas_message,
-             "simulation-fit": _simulation_fit_message}
+             "simulation-fit": _simulation_fit_message,
+             "simulation": _simulation_sample_message}
 
 DEFAULT_METHOD = "simulation-fit"
 
@@ -1352,13 +1380,18 @@ def packing_estimates(diameters_m, fractions=None, basis: str = "volume",
             skipped[spec.name] = "not run here: the simulation runs on demand (seconds)"
             continue
         check = _MESSAGES.get(spec.name)
-        message = check(d, f) if check else None
+        if spec.name == "simulation":
+            message = check(d, f, simulation_params.get("n_particles", 2000))
+        else:
+            message = check(d, f) if check else None
         if message:
             skipped[spec.name] = message
             continue
         kwargs = {"phi_mono": phi0}
         if spec.name == "simulation":
-            kwargs.update(simulation_params)
+            kwargs.update(simulation_params)   # its own reliability warnings are shown
+            estimates[spec.name] = float(spec.func(d, f, **kwargs))
+            continue
         with warnings.catch_warnings():
             warnings.simplefilter("ignore", ValidityWarning)
             estimates[spec.name] = float(spec.func(d, f, **kwargs))

@@ -11,11 +11,10 @@ import inspect
 from collections.abc import Callable
 from dataclasses import dataclass
 
-import numpy as np
-
 from .errors import InputRangeError, UnknownModelError
 
-KINDS = ("suspension", "emulsion", "packing", "liquid", "shear")
+KINDS = ("suspension", "emulsion", "packing", "liquid", "shear", "thixotropy", "process",
+         "interaction")
 
 
 @dataclass(frozen=True)
@@ -59,6 +58,8 @@ class ModelSpec:
 
     def check_params(self, params: dict) -> dict[str, float]:
         """Defaults overlaid with `params`; unknown names or values out of bounds raise."""
+        import numpy as np  # here, not at the top: `loadline models` reads the registry module
+
         unknown = set(params) - set(self.param_names())
         if unknown:
             name = sorted(unknown)[0]
@@ -79,6 +80,8 @@ class ModelSpec:
 
     def validity_message(self, phi, params: dict) -> str | None:
         """A plain sentence when some phi lies outside the relation's validity range."""
+        import numpy as np
+
         phi = np.asarray(phi, dtype=float)
         if self.phi_range_relative:
             scale = np.asarray(params.get("phi_max", 1.0), dtype=float)
@@ -97,6 +100,21 @@ class ModelSpec:
 
 
 _MODELS: dict[str, ModelSpec] = {}
+#: The modules that register relations; `models()` and `get_model()` import them on first use.
+MODEL_MODULES = ("suspension", "emulsion", "packing", "liquids", "shear", "sizes", "stability",
+                 "thixotropy", "process", "interactions")
+_LOADED: list[bool] = []
+
+
+def _load_relations() -> None:
+    """Import every model module once, so that every relation is registered."""
+    if _LOADED:
+        return
+    _LOADED.append(True)   # before importing: a module that reads the registry re-enters
+    import importlib
+
+    for name in MODEL_MODULES:
+        importlib.import_module(f"predictor.{name}")
 
 
 def model(kind: str, *params: Param, validity: str, source: str,
@@ -117,12 +135,17 @@ def model(kind: str, *params: Param, validity: str, source: str,
 
 
 def models(kind: str | None = None) -> list[ModelSpec]:
-    """Every registered relation, or those of one kind, in registration order."""
-    return [s for s in _MODELS.values() if kind is None or s.kind == kind]
+    """Every registered relation, or those of one kind: by kind (the order of `KINDS`),
+    then in the order their module registers them (the same whichever module loaded first).
+    """
+    _load_relations()
+    ordered = sorted(_MODELS.values(), key=lambda s: KINDS.index(s.kind))
+    return [s for s in ordered if kind is None or s.kind == kind]
 
 
 def get_model(name: str, kind: str | tuple[str, ...] | None = None) -> ModelSpec:
     """The spec registered under `name`; `UnknownModelError` lists the valid names."""
+    _load_relations()
     kinds = (kind,) if isinstance(kind, str) else kind
     valid = [s.name for s in models() if kinds is None or s.kind in kinds]
     spec = _MODELS.get(str(name).strip().lower().replace("_", "-").replace(" ", "-"))
@@ -152,13 +175,53 @@ def _write_readme_table(path) -> None:
     import pathlib
 
     # Run as a script this module is __main__: read the registry of the imported package.
+    from predictor.files import atomic_write
     from predictor.registry import models_markdown as table
 
     path = pathlib.Path(path)
     text = path.read_text()
     start = text.index("<!-- models:start -->") + len("<!-- models:start -->\n")
     end = text.index("<!-- models:end -->")
-    path.write_text(text[:start] + table() + text[end:])
+    atomic_write(path, text[:start] + table() + text[end:])
+
+
+#: The static snapshot of the registry that `loadline models` reads without numpy.
+SNAPSHOT = "data/models.json"
+
+
+def snapshot() -> list[dict]:
+    """The registry as plain JSON-ready data: one dict per relation.
+
+    Each parameter is an object ``{name, unit, default, bounds, description}``; ``default``
+    is None where the function has no default and an infinite bound is None (JSON has no
+    inf). `loadline models` prints this from `predictor/data/models.json`, so listing the
+    relations imports no numeric library; tests/test_registry.py fails when it is stale.
+    """
+    import math
+
+    def number(x):
+        return float(x) if isinstance(x, int | float) and math.isfinite(x) else None
+
+    out = []
+    for spec in models():
+        defaults = spec.defaults()
+        out.append({
+            "name": spec.name, "kind": spec.kind,
+            "parameters": [{"name": p.name, "unit": p.unit,
+                            "default": number(defaults.get(p.name)),
+                            "bounds": [number(p.bounds[0]), number(p.bounds[1])],
+                            "description": p.description} for p in spec.params],
+            "validity": spec.validity, "source": spec.source,
+            "phi_range": [number(x) for x in spec.phi_range],
+            "phi_range_relative": spec.phi_range_relative,
+        })
+    return out
+
+
+def snapshot_text() -> str:
+    import json
+
+    return json.dumps(snapshot(), indent=1, ensure_ascii=False) + "\n"
 
 
 if __name__ == "__main__":
@@ -167,3 +230,10 @@ if __name__ == "__main__":
 
     if sys.argv[1:] == ["--readme"]:
         _write_readme_table(pathlib.Path(__file__).parents[1] / "README.md")
+    elif sys.argv[1:] == ["--snapshot"]:
+        # Run as a script this module is __main__: read the registry of the imported package.
+        from predictor.registry import SNAPSHOT, snapshot_text
+
+        (pathlib.Path(__file__).parent / SNAPSHOT).write_text(snapshot_text())
+    else:
+        raise SystemExit("usage: python -m predictor.registry --readme | --snapshot")

@@ -1,8 +1,10 @@
 """A report of one scenario: one self-contained HTML file, and optionally a PDF.
 
 The report formats what `predictor` computes; it computes nothing itself. Sections: inputs
-echoed with units, summary, flow curve, loading sweep with the packing range, process
-windows, uncertainty, storage, the relations used with their sources, and the cautions.
+echoed with units, summary, flow curve, loading sweep with the packing range, the design map
+of the first two solids (when there are two or more), process windows, process checks (pipe,
+mixer, film at reference conditions), uncertainty, storage,
+the relations used with their sources, and the cautions.
 
 Charts are Altair charts rendered offline by vl-convert and embedded as inline SVG, so the
 HTML opens without a network. The PDF is one long vector page: the same text, tables and
@@ -23,9 +25,9 @@ from dataclasses import dataclass, field
 import numpy as np
 import pandas as pd
 
-from . import charts_export, design, labels
+from . import charts, design, labels
 from . import formulation as fm
-from .cli import CAUTIONS
+from .cautions import CAUTIONS
 from .errors import LoadlineError
 from .registry import get_model, models
 from .units import from_si
@@ -178,10 +180,12 @@ def build_report(form: fm.Formulation, viscosity_unit: str = "Pa*s",
     sections.append(sec)
 
     sec = Section("Flow curve")
-    plot = pd.DataFrame({"shear rate [1/s]": curve["shear_rate_1_per_s"].to_numpy(),
-                         f"viscosity [{vu}]": from_si(curve["viscosity_Pa_s"].to_numpy(), vu,
-                                                      "viscosity")})
-    sec.charts.append(charts_export.flow_curve_chart(plot, vu))
+    chart = _flow_curve_chart(curve, vu)
+    if chart is None:
+        sec.paragraphs.append("No flow at any shear rate of the curve: the solids are at or "
+                              "above the packing limit, so there is no flow curve to draw.")
+    else:
+        sec.charts.append(chart)
     rates = np.array([1e-3, 1e-1, 1e1, 1e3, 1e5])
     few = fm.predict(form, rates)
     shown = pd.DataFrame({"shear rate [1/s]": rates,
@@ -233,15 +237,26 @@ def build_report(form: fm.Formulation, viscosity_unit: str = "Pa*s",
         sec.paragraphs.append("Viscosity in the sweep: the Newtonian view (the relation at "
                               "phi_max times the liquid's Newtonian viscosity), with the band "
                               "from the spread of the packing estimators.")
-        plot = pd.DataFrame({"phi solids [-]": sweep["phi"].to_numpy(),
-                             f"viscosity [{vu}]": from_si(sweep["viscosity_Pa_s"].to_numpy(),
-                                                          vu, "viscosity")})
+        plot = pd.DataFrame({"phi": sweep["phi"].to_numpy(),
+                             "viscosity": from_si(sweep["viscosity_Pa_s"].to_numpy(), vu,
+                                                  "viscosity"), "relation": form.model})
+        band = None
         if "viscosity_low_Pa_s" in sweep:
-            plot["low"] = from_si(sweep["viscosity_low_Pa_s"].to_numpy(), vu, "viscosity")
-            plot["high"] = from_si(sweep["viscosity_high_Pa_s"].to_numpy(), vu, "viscosity")
-        finite = np.isfinite(plot[f"viscosity [{vu}]"])
-        sec.charts.append(charts_export.loading_sweep_chart(
-            plot[finite], vu, mix.phi_solids_effective, mix.phi_max, packing_range))
+            band = pd.DataFrame({
+                "phi": plot["phi"],
+                "low": from_si(sweep["viscosity_low_Pa_s"].to_numpy(), vu, "viscosity"),
+                "high": from_si(sweep["viscosity_high_Pa_s"].to_numpy(), vu, "viscosity")})
+            band = band[np.isfinite(band["low"]) & np.isfinite(band["high"])]
+        finite = np.isfinite(plot["viscosity"])
+        # the sweep's own Newtonian view at the current loading (as the app's summary)
+        current = from_si(float(fm.relative_viscosity_at(form, mix.phi_solids_effective, mix))
+                          * mix.liquid_viscosity_Pa_s, vu, "viscosity")
+        sec.charts.append(charts.loading_sweep(
+            plot[finite], y_title=f"Viscosity [{vu}]", phi_max=mix.phi_max,
+            phi_max_range=packing_range, band=band,
+            current={"phi": mix.phi_solids_effective, "viscosity": current,
+                     "label": "current loading"} if math.isfinite(current) else None))
+        plot = plot.rename(columns={"viscosity": f"viscosity [{vu}]"})
         pick = np.linspace(0, len(sweep) - 1, 8).round().astype(int)
         sec.tables.append(("Selected loadings", pd.DataFrame({
             "phi solids [-]": sweep["phi"].to_numpy()[pick],
@@ -251,11 +266,17 @@ def build_report(form: fm.Formulation, viscosity_unit: str = "Pa*s",
         sec.paragraphs.append("No solids: there is no solids loading to sweep.")
     sections.append(sec)
 
+    solids = [k for k, i in enumerate(form.ingredients) if i.kind == fm.SOLID]
+    if len(solids) >= 2:
+        sections.append(_design_map_section(form, solids[:2], vu, notes))
+
     sec = Section("Process windows")
     table, origin = _process_table(form, vu)
     sec.tables.append(("Viscosity in each process step", table))
     sec.paragraphs.append(f"Shear rates: {origin}.")
     sections.append(sec)
+
+    sections.append(_process_checks_section(form, notes))
 
     sec = Section("Uncertainty")
     if has_solids:
@@ -289,6 +310,10 @@ def build_report(form: fm.Formulation, viscosity_unit: str = "Pa*s",
         sec.paragraphs.append(f"No storage verdict: {err}")
     sections.append(sec)
 
+    rows = fm.interaction_rows(form)
+    if rows:
+        sections.append(_interaction_section(form, rows))
+
     sec = Section("Relations used and their sources")
     sec.tables.append(("", _models_used(form, mix)))
     sections.append(sec)
@@ -299,6 +324,173 @@ def build_report(form: fm.Formulation, viscosity_unit: str = "Pa*s",
     stamp = datetime.datetime.now(datetime.UTC).strftime("%Y-%m-%d %H:%M UTC")
     subtitle = f"{form.description}  Generated by Loadline on {stamp}."
     return Report(form.name or "Loadline report", subtitle.strip(), sections, notes)
+
+
+def _interaction_section(form: fm.Formulation, rows: list[dict]) -> Section:
+    """Each solid's verdict (pair energy or stated) and the network yield stress."""
+    sec = Section("Particle forces (dispersed or flocculated)")
+    sec.tables.append(("", pd.DataFrame({
+        "ingredient": [r["ingredient"] for r in rows],
+        "verdict": [r["verdict"] for r in rows],
+        "from": [r["basis"] for r in rows],
+        "barrier [kT]": [r["barrier_kT"] for r in rows],
+        "deepest reachable well [kT]": [r["reachable_well_kT"] for r in rows],
+        "Debye length [nm]": [1e9 * r["debye_length_m"] for r in rows]})))
+    tau = fm.flocculation_yield_stress(form)
+    sec.paragraphs.append(
+        f"Criterion: {rows[0]['criterion'] if rows[0]['basis'] != 'stated' else 'stated'}. "
+        "Pair energies of equal spheres in the Derjaguin approximation (van der Waals, "
+        "double layer at constant potential after Hogg, Healy & Fuerstenau 1966, steric "
+        "after Alexander and de Gennes).")
+    shown = f"{tau:.4g} Pa" if math.isfinite(tau) else "no flow (jammed)"
+    sec.paragraphs.append(
+        f"Network yield stress at this loading: {shown} (YODEL, Flatt & Bowen, J. Am. "
+        "Ceram. Soc. 89, 1244, 2006), added to the flow curve. A yield stress changes pump "
+        "start-up, line restart and mixing: confirm by measurement.")
+    for row in rows:
+        if row["notes"]:
+            sec.paragraphs.append(f"Note ({row['ingredient']}): {row['notes']}")
+    return sec
+
+
+#: The report's design map: shear rate (pumping and mixing, common practice, no source) and
+#: grid points per side.
+MAP_SHEAR_RATE_1_PER_S = 100.0
+MAP_POINTS = 15
+
+
+def _map_range(now: float) -> tuple[float, float]:
+    """From no loading to twice the present one (at least 20 points more, at most 90 %)."""
+    return 0.0, float(min(0.9, max(2.0 * now, now + 0.2)))
+
+
+def _design_map_section(form, pair: list[int], vu: str, notes: list[str]) -> Section:
+    """The map of the first two solids' loadings (mass basis) at the pumping shear rate."""
+    sec = Section("Design map of the first two solids")
+    mix = fm.mixture(form)
+    x, y = pair
+    try:
+        grid = design.loading_map(form, x, y, _map_range(mix.mass_fraction[x]),
+                                  _map_range(mix.mass_fraction[y]), MAP_SHEAR_RATE_1_PER_S,
+                                  n=MAP_POINTS, basis="mass")
+    except (LoadlineError, ValueError) as err:
+        notes.append(f"design map not shown: {err}")
+        sec.paragraphs.append(f"No design map: {err}")
+        return sec
+    names = grid.attrs["x_ingredient"], grid.attrs["y_ingredient"]
+    sec.charts.append(charts.design_map(grid, vu))     # drawn CHART_WIDTH wide
+    jammed = int((grid["regime"] == "jammed").sum())
+    sec.paragraphs.append(
+        f"Viscosity at {MAP_SHEAR_RATE_1_PER_S:g} 1/s over the loadings of {names[0]} and "
+        f"{names[1]} (wt% of the formulation), every other ingredient at its scenario "
+        f"loading; {MAP_POINTS} x {MAP_POINTS} recipes, {jammed} of them at or beyond the "
+        "packing limit (grey: no flow). The diamond is the scenario's own recipe. Try "
+        "'loadline map' with --window limits for the region that passes pumping and sag.")
+    for message in grid.attrs.get("warnings", ())[:3]:
+        sec.paragraphs.append(f"Note: {message}")
+    return sec
+
+
+#: Reference conditions of the report's process checks (our own round numbers, to be
+#: replaced by the real line, mixer and film: app page "Process checks", `loadline pipe`).
+PROCESS_REFERENCE = {"flows_L_per_min": (1.0, 10.0, 100.0), "diameter_m": 0.025,
+                     "length_m": 10.0, "impeller": "disc turbine", "speed_rpm": 120.0,
+                     "impeller_diameter_m": 0.1, "tank_diameter_m": 0.3,
+                     "film_thickness_m": 100e-6, "wavelength_m": 1e-3,
+                     "surface_tension_N_per_m": 0.035}
+
+
+def pipe_table(flow, flow_unit: str = "L/min", pressure_unit: str = "bar") -> pd.DataFrame:
+    """The rows of a `process.PipeFlow` in the units people read (table, CSV, JSON, report).
+
+    The friction factor is Fanning's (a quarter of Darcy's)."""
+    rows = pd.DataFrame(flow.rows())
+    return pd.DataFrame({
+        f"flow [{flow_unit}]": from_si(rows["flow_rate_m3_per_s"].to_numpy(), flow_unit,
+                                       "flow_rate"),
+        "velocity [m/s]": rows["mean_velocity_m_per_s"],
+        f"pressure drop [{pressure_unit}]": from_si(rows["pressure_drop_Pa"].to_numpy(),
+                                                    pressure_unit, "pressure"),
+        "regime": rows["regime"],
+        "Reynolds [-]": rows["reynolds"],
+        "critical Reynolds [-]": rows["critical_reynolds"],
+        "n' [-]": rows["flow_index"],
+        "friction factor [-]": rows["friction_factor"],
+        "wall stress [Pa]": rows["wall_shear_stress_Pa"],
+        "wall shear rate [1/s]": rows["wall_shear_rate_1_per_s"],
+        "plug radius [mm]": 1e3 * rows["plug_radius_m"],
+        "correlation": rows["correlation"],
+    })
+
+
+def _process_checks_section(form, notes: list[str]) -> Section:
+    """Pipe, mixer and coating numbers at `PROCESS_REFERENCE` (the `loadline pipe` table)."""
+    from . import process
+
+    ref = PROCESS_REFERENCE
+    sec = Section("Process checks")
+    sec.paragraphs.append(
+        f"At reference conditions: a smooth pipe or hose of {1e3 * ref['diameter_m']:g} mm "
+        f"bore and {ref['length_m']:g} m; a {ref['impeller']} of "
+        f"{1e3 * ref['impeller_diameter_m']:g} mm at {ref['speed_rpm']:g} rpm in a "
+        f"{1e3 * ref['tank_diameter_m']:g} mm tank; a {1e6 * ref['film_thickness_m']:g} um "
+        "wet film on a vertical wall. Use the app's Process checks page or loadline pipe "
+        "for your own line, mixer and film.")
+    try:
+        with warnings.catch_warnings(record=True) as caught:
+            warnings.simplefilter("always")
+            flows = np.array(ref["flows_L_per_min"]) / 60e3
+            flow = process.pipe_flow_of(form, flows, ref["diameter_m"], ref["length_m"])
+            tank = process.stirred_tank_of(form, ref["speed_rpm"] / 60,
+                                           ref["impeller_diameter_m"], ref["tank_diameter_m"],
+                                           ref["impeller"])
+            film = process.coating_of(form, ref["film_thickness_m"], ref["wavelength_m"],
+                                      surface_tension_N_per_m=ref["surface_tension_N_per_m"])
+    except LoadlineError as err:
+        sec.paragraphs.append(f"No process checks: {err}")
+        return sec
+    sec.tables.append(("Pipe or hose", pipe_table(flow)))
+    level = ("never (a yield stress holds the ripple)" if not math.isfinite(
+        film.levelling_time_s) else _g(film.levelling_time_s))
+    sec.tables.append(("Restart, mixer and film", pd.DataFrame([
+        ("apparent yield stress", _g(flow.yield_stress_Pa), "Pa"),
+        ("restart pressure of the standing line, 4 tau_y L/D",
+         _g(flow.startup_pressure_Pa / 1e5), "bar"),
+        ("mixer: Metzner-Otto shear rate", _g(tank.effective_shear_rate_1_per_s), "1/s"),
+        ("mixer: viscosity at that rate", _g(tank.viscosity_Pa_s), "Pa*s"),
+        ("mixer: impeller Reynolds number", _g(tank.reynolds), f"- ({tank.regime})"),
+        ("mixer: power", _g(tank.power_W), "W"),
+        ("mixer: cavern (flow does not reach the wall)", "yes" if tank.cavern else "no", ""),
+        ("film: wall stress rho g h", _g(film.wall_shear_stress_Pa), "Pa"),
+        ("film: stands (no sag)", "yes" if film.stands else "no", ""),
+        ("film: sag velocity of the surface", _g(1e3 * film.sag_velocity_m_per_s), "mm/s"),
+        (f"film: levelling time (ripple down {process.LEVELLING_FACTOR:g}-fold)", level, "s"),
+    ], columns=["quantity", "value", "unit"])))
+    for message in dict.fromkeys(str(w.message) for w in caught):
+        sec.paragraphs.append(f"Note: {message}")
+    sec.paragraphs.append(f"Caution: {process.CAUTION}")
+    return sec
+
+
+def _flow_curve_chart(curve: pd.DataFrame, vu: str) -> dict | None:
+    """The app's flow-curve panels (process windows, viscosity, stress) as one chart; None
+    when no point flows (jammed)."""
+    from . import shear
+
+    frame = pd.DataFrame({"rate": curve["shear_rate_1_per_s"].to_numpy(),
+                          "viscosity": from_si(curve["viscosity_Pa_s"].to_numpy(), vu,
+                                               "viscosity"),
+                          "stress": curve["shear_stress_Pa"].to_numpy()})
+    if "regime" in curve:
+        frame["regime"] = curve["regime"].astype(str).to_numpy()
+    windows = pd.DataFrame([tuple(w) for w in getattr(shear, "PROCESS_SHEAR_RATES", ())],
+                           columns=["name", "low", "high"])
+    drawable = np.isfinite(frame["viscosity"]) & (frame["viscosity"] > 0)
+    if not drawable.any():
+        return None
+    return charts.flow_curve(frame[drawable], windows=windows, x_title="Shear rate [1/s]",
+                             y_title=f"Viscosity [{vu}]", stress_title="Shear stress [Pa]",
+                             joined=True, width=CHART_WIDTH)
 
 
 def _marker_row(key: str, value: float, viscosity_unit: str) -> tuple:
@@ -388,7 +580,7 @@ def render_html(report: Report) -> str:
         slug = re.sub(r"[^a-z]+", "-", sec.title.lower()).strip("-")
         parts.append(f"<section id='{slug}'><h2>{k}. {html.escape(sec.title)}</h2>")
         for chart in sec.charts:
-            parts.append(f"<figure>{charts_export.to_svg(chart)}</figure>")
+            parts.append(f"<figure>{charts.to_svg(chart, CHART_WIDTH)}</figure>")
         for text in sec.paragraphs:
             parts.append(f"<p>{html.escape(text)}</p>")
         for caption, table in sec.tables:
@@ -406,6 +598,8 @@ def render_html(report: Report) -> str:
 # -- PDF --------------------------------------------------------------------------------------
 
 _PAGE_W = 900
+#: Plot width of the report's charts: with their axes they fit the page's 900 px.
+CHART_WIDTH = 700
 _LINE = 16
 
 
@@ -440,7 +634,7 @@ def render_svg(report: Report) -> str:
         y += 12
         text(f"{k}. {sec.title}", 16, "bold")
         for chart in sec.charts:
-            svg = charts_export.to_svg(chart)
+            svg = charts.to_svg(chart, CHART_WIDTH)
             height = float(re.search(r'height="([\d.]+)"', svg).group(1))
             body = re.sub(r"^<svg", f"<svg x='40' y='{y}'", svg.strip(), count=1)
             items.append(body)
@@ -473,20 +667,24 @@ def _text_table(frame: pd.DataFrame) -> str:
 
 def write_report(scenario_path, html_path, pdf_path=None,
                  viscosity_unit: str = "Pa*s") -> list[pathlib.Path]:
-    """Read a scenario file and write its HTML report (and PDF); returns the paths written."""
+    """Read a scenario file and write its HTML report (and PDF); returns the paths written.
+
+    Both outputs go through `files.atomic_write`: neither may be the scenario (or the other
+    output), and each is replaced whole or not at all.
+    """
+    from .files import atomic_write, check_output
     from .scenario import read_scenario
 
+    check_output(html_path, [scenario_path])
+    if pdf_path:
+        check_output(pdf_path, [scenario_path, html_path])
     form = read_scenario(scenario_path)
     report = build_report(form, viscosity_unit, source=str(scenario_path))
-    html_path = pathlib.Path(html_path)
-    html_path.parent.mkdir(parents=True, exist_ok=True)
-    html_path.write_text(render_html(report), encoding="utf-8")
-    written = [html_path]
+    html = render_html(report)
+    pdf = render_pdf(report) if pdf_path else None
+    written = [atomic_write(html_path, html, [scenario_path])]
     if pdf_path:
-        pdf_path = pathlib.Path(pdf_path)
-        pdf_path.parent.mkdir(parents=True, exist_ok=True)
-        pdf_path.write_bytes(render_pdf(report))
-        written.append(pdf_path)
+        written.append(atomic_write(pdf_path, pdf, [scenario_path, html_path]))
     return written
 
 

@@ -11,14 +11,13 @@ from __future__ import annotations
 
 import json
 import math
-import os
 import pathlib
-import tempfile
 import warnings
 
 from . import sizes
-from .errors import LoadlineError, ScenarioError
-from .formulation import Formulation, Ingredient, Liquid
+from .errors import LoadlineError, ScenarioError, UnitError
+from .files import atomic_write, load_json, number
+from .formulation import MAX_INGREDIENTS, Formulation, Ingredient, Liquid
 from .registry import get_model
 from .units import parse_quantity
 
@@ -33,15 +32,21 @@ _LIQUID_QUANTITIES = {
     "density": ("density_kg_per_m3", "density", "kg/m**3"),
     "reference_temperature": ("reference_temperature_K", "temperature", "K"),
     "activation_temperature": ("activation_temperature_K", "temperature", "K"),
+    "ionic_strength": ("ionic_strength_mol_per_L", "concentration", "mol/L"),
 }
+_LIQUID_NUMBERS = ("relative_permittivity",)
 _INGREDIENT_QUANTITIES = {
     "density": ("density_kg_per_m3", "density", "kg/m**3"),
     "diameter": ("diameter_m", "length", "m"),
     "layer_thickness": ("layer_thickness_m", "length", "m"),
     "droplet_viscosity": ("droplet_viscosity_Pa_s", "viscosity", "Pa*s"),
     "interfacial_tension": ("interfacial_tension_N_per_m", "interfacial_tension", "N/m"),
+    "surface_potential": ("surface_potential_V", "potential", "V"),
+    "hamaker_constant": ("hamaker_J", "energy", "J"),
 }
 _INGREDIENT_NUMBERS = ("aspect_ratio", "phi_max", "intrinsic_viscosity")
+# Optional true/false fields, written only when true (older files stay as they were).
+_INGREDIENT_FLAGS = ("flocculated",)
 
 # Older schema versions -> function upgrading a document by one version.
 _MIGRATIONS: dict[int, callable] = {}
@@ -57,11 +62,9 @@ def _read_quantity(raw, dimension: str, field: str):
     if isinstance(raw, dict):
         if "value" not in raw:
             raise ScenarioError(f"{field}: expected {{'value': ..., 'unit': ...}}, got {raw!r}.")
-        value = raw["value"]
-        if isinstance(value, bool) or not isinstance(value, int | float):
-            raise ScenarioError(f"{field}: value {value!r} is not a number.")
+        value = number(raw["value"], f"{field}.value")
         unit = str(raw.get("unit", "")).strip()
-        result = parse_quantity(f"{value!r} {unit}" if unit else float(value), dimension, field)
+        result = parse_quantity(f"{value!r} {unit}" if unit else value, dimension, field)
     elif isinstance(raw, int | float) and not isinstance(raw, bool):
         result = float(raw)
     elif isinstance(raw, str):
@@ -91,6 +94,9 @@ def scenario_to_dict(formulation: Formulation) -> dict:
     }
     for key, (attr, _, unit) in _LIQUID_QUANTITIES.items():
         liquid[key] = _quantity(getattr(liq, attr), unit)
+    for key in _LIQUID_NUMBERS:
+        value = getattr(liq, key)
+        liquid[key] = None if value is None else float(value)
     ingredients = []
     for ing in formulation.ingredients:
         doc = {"name": ing.name, "kind": ing.kind,
@@ -100,6 +106,9 @@ def scenario_to_dict(formulation: Formulation) -> dict:
         for key in _INGREDIENT_NUMBERS:
             value = getattr(ing, key)
             doc[key] = None if value is None else float(value)
+        for key in _INGREDIENT_FLAGS:
+            if getattr(ing, key):
+                doc[key] = True
         doc["size_distribution"] = None if ing.size is None else ing.size.to_dict()
         ingredients.append(doc)
     return {
@@ -123,9 +132,11 @@ _KNOWN_KEYS = {
     "": {"format", "schema_version", "name", "description", "relations", "liquid",
          "ingredients"},
     "liquid": {"name", "preset", "law", "parameters", "glycerol_mass_fraction",
-               *_LIQUID_QUANTITIES},
+               *_LIQUID_QUANTITIES, *_LIQUID_NUMBERS},
     "ingredient": {"name", "kind", "loading", "size_distribution", *_INGREDIENT_QUANTITIES,
-                   *_INGREDIENT_NUMBERS},
+                   *_INGREDIENT_NUMBERS, *_INGREDIENT_FLAGS},
+    "relations": {"solids", "droplets", "parameters", "thickening_onset_stress",
+                  "phi_max_frictional"},
 }
 
 
@@ -134,8 +145,9 @@ def unknown_keys(doc) -> list[str]:
     if not isinstance(doc, dict):
         return []
     found = [k for k in doc if k not in _KNOWN_KEYS[""]]
-    if isinstance(doc.get("liquid"), dict):
-        found += [f"liquid.{k}" for k in doc["liquid"] if k not in _KNOWN_KEYS["liquid"]]
+    for part in ("liquid", "relations"):
+        if isinstance(doc.get(part), dict):
+            found += [f"{part}.{k}" for k in doc[part] if k not in _KNOWN_KEYS[part]]
     items = doc.get("ingredients")
     for i, item in enumerate(items if isinstance(items, list) else []):
         if isinstance(item, dict):
@@ -170,28 +182,45 @@ def _from_dict(doc: dict, source: str) -> Formulation:
     while version < SCHEMA_VERSION:
         doc = _MIGRATIONS[version](doc)
         version = doc["schema_version"]
-    extra = unknown_keys(doc)   # after migration: renamed keys are known again
-    if extra:
+    extra = unknown_keys(doc) + _unknown_parameters(doc)   # after migration: renamed keys
+    if extra:                                                # are known again
         warnings.warn(f"{source}: ignored unknown keys {', '.join(extra)}", UserWarning,
                       stacklevel=4)
-    raw = doc["liquid"]
+    raw = _object(doc.get("liquid"), "liquid")
     liquid_kwargs = {}
     for key, (attr, dimension, _) in _LIQUID_QUANTITIES.items():
         value = _read_quantity(raw.get(key), dimension, f"liquid.{key}")
         if value is not None:
             liquid_kwargs[attr] = value
+    for key in _LIQUID_NUMBERS:
+        if raw.get(key) is not None:
+            liquid_kwargs[key] = number(raw[key], f"liquid.{key}")
+    law = str(raw.get("law", "newtonian"))
+    law_units = _law_units(law)
     params = {}
-    for name, q in (raw.get("parameters") or {}).items():
+    for name, q in _object(raw.get("parameters") or {}, "liquid.parameters").items():
+        if law_units is not None and name not in law_units:
+            continue   # named in the warning above
         unit = q.get("unit", "") if isinstance(q, dict) else ""
         value = q.get("value") if isinstance(q, dict) else q
-        params[name] = _si_from_unit(value, unit, f"liquid.parameters.{name}")
+        params[name] = _si_from_unit(value, str(unit), f"liquid.parameters.{name}",
+                                     (law_units or {}).get(name))
+    glycerol = raw.get("glycerol_mass_fraction", 0.0)
     liquid = Liquid(name=str(raw.get("name", "")), preset=str(raw.get("preset", "")),
-                    law=str(raw.get("law", "newtonian")), params=params,
-                    glycerol_mass_fraction=float(raw.get("glycerol_mass_fraction", 0.0)),
+                    law=law, params=params,
+                    glycerol_mass_fraction=number(glycerol, "liquid.glycerol_mass_fraction"),
                     **liquid_kwargs)
+    items = doc.get("ingredients", [])
+    if not isinstance(items, list):
+        raise ScenarioError(f"ingredients: expected a list, got {type(items).__name__}.")
+    if len(items) > MAX_INGREDIENTS:
+        raise ScenarioError(f"ingredients: {len(items)} given, at most {MAX_INGREDIENTS} are "
+                            "read (a formulation has a handful of dispersed ingredients; the "
+                            "limit bounds the work of every prediction).")
     ingredients = []
-    for k, item in enumerate(doc.get("ingredients", [])):
+    for k, item in enumerate(items):
         where = f"ingredients[{k}]"
+        item = _object(item, where)
         kwargs = {}
         for key, (attr, dimension, _) in _INGREDIENT_QUANTITIES.items():
             value = _read_quantity(item.get(key), dimension, f"{where}.{key}")
@@ -199,25 +228,85 @@ def _from_dict(doc: dict, source: str) -> Formulation:
                 kwargs[attr] = value
         for key in _INGREDIENT_NUMBERS:
             if item.get(key) is not None:
-                kwargs[key] = float(item[key])
-        loading = item["loading"]
+                kwargs[key] = number(item[key], f"{where}.{key}")
+        for key in _INGREDIENT_FLAGS:
+            if item.get(key) is not None:
+                if not isinstance(item[key], bool):
+                    raise ScenarioError(f"{where}.{key} = {item[key]!r}: expected true or false.")
+                kwargs[key] = item[key]
+        loading = _object(item.get("loading"), f"{where}.loading")
         dist = item.get("size_distribution")
         ingredients.append(Ingredient(
             name=str(item.get("name", f"ingredient {k + 1}")), kind=str(item.get("kind", "solid")),
-            loading=float(loading["value"]), basis=str(loading.get("basis", "mass")),
+            loading=number(loading.get("value"), f"{where}.loading.value"),
+            basis=str(loading.get("basis", "mass")),
             size=_read_distribution(dist, f"{where}.size_distribution"), **kwargs))
-    relations = doc.get("relations", {})
+    relations = _object(doc.get("relations", {}), "relations")
+    model_params = _object(relations.get("parameters", {}), "relations.parameters")
+    known = _relation_parameters(relations)
+    frictional = relations.get("phi_max_frictional")
     return Formulation(
         liquid=liquid, ingredients=tuple(ingredients), name=str(doc.get("name", "")),
         description=str(doc.get("description", "")),
         model=str(relations.get("solids", "krieger-dougherty")),
         droplet_model=str(relations.get("droplets", "phan-thien-pham")),
-        model_params={k: float(v) for k, v in relations.get("parameters", {}).items()},
+        model_params={k: number(v, f"relations.parameters.{k}") for k, v in model_params.items()
+                      if known is None or k in known},
         droplet_model_params=_droplet_parameters(relations),
         thickening_onset_stress_Pa=_read_quantity(relations.get("thickening_onset_stress"),
                                                   "stress", "relations.thickening_onset_stress"),
-        phi_max_frictional=(None if relations.get("phi_max_frictional") is None
-                            else float(relations["phi_max_frictional"])))
+        phi_max_frictional=(None if frictional is None
+                            else number(frictional, "relations.phi_max_frictional")))
+
+
+def _object(raw, field: str) -> dict:
+    if not isinstance(raw, dict):
+        raise ScenarioError(f"{field}: expected an object {{...}}, got {raw!r:.60}.")
+    return raw
+
+
+def _law_units(law: str) -> dict | None:
+    """Parameter name -> registry unit of a liquid law (None when the law is unknown: the
+    Liquid itself then names the law as unknown)."""
+    from .errors import UnknownModelError
+    from .registry import get_model
+
+    try:
+        return {p.name: p.unit for p in get_model(law, kind="liquid").params}
+    except UnknownModelError:
+        return None
+
+
+def _relation_parameters(relations: dict) -> set | None:
+    """Names `relations.parameters` may hold: those of the solid and droplet relations, and
+    the phi_max and intrinsic viscosity a calibration overrides (None: a relation unknown)."""
+    from .errors import UnknownModelError
+    from .registry import get_model
+
+    names = {"phi_max", "intrinsic_viscosity"}
+    for key, default in (("solids", "krieger-dougherty"), ("droplets", "phan-thien-pham")):
+        try:
+            names |= set(get_model(str(relations.get(key, default))).param_names())
+        except UnknownModelError:
+            return None
+    return names
+
+
+def _unknown_parameters(doc: dict) -> list[str]:
+    """Relation and liquid-law parameters the named relations do not take."""
+    found = []
+    relations = doc.get("relations")
+    if isinstance(relations, dict) and isinstance(relations.get("parameters"), dict):
+        known = _relation_parameters(relations)
+        if known is not None:
+            found += [f"relations.parameters.{k}" for k in relations["parameters"]
+                      if k not in known]
+    liquid = doc.get("liquid")
+    if isinstance(liquid, dict) and isinstance(liquid.get("parameters"), dict):
+        units = _law_units(str(liquid.get("law", "newtonian")))
+        if units is not None:
+            found += [f"liquid.parameters.{k}" for k in liquid["parameters"] if k not in units]
+    return found
 
 
 def _droplet_parameters(relations: dict) -> dict:
@@ -225,13 +314,15 @@ def _droplet_parameters(relations: dict) -> dict:
     space for both relations, so the shared parameters that the droplet relation takes are
     read as its own (what those files meant)."""
     if "droplet_parameters" in relations:
-        return {k: float(v) for k, v in (relations["droplet_parameters"] or {}).items()}
+        given = _object(relations["droplet_parameters"] or {}, "relations.droplet_parameters")
+        return {k: number(v, f"relations.droplet_parameters.{k}") for k, v in given.items()}
     try:
         names = get_model(str(relations.get("droplets", "phan-thien-pham")),
                           kind="emulsion").param_names()
     except LoadlineError:
         return {}
-    return {k: float(v) for k, v in relations.get("parameters", {}).items() if k in names}
+    shared = _object(relations.get("parameters", {}), "relations.parameters")
+    return {k: number(v, f"relations.parameters.{k}") for k, v in shared.items() if k in names}
 
 
 def _read_distribution(raw, field: str):
@@ -249,32 +340,46 @@ def _read_distribution(raw, field: str):
     kind = raw.get("type", "table")
     dist = sizes.SizeDistribution
     if kind == "table":
-        return dist.from_dict(raw)
+        for key in ("diameters_m", "fractions"):
+            values = raw.get(key)
+            if isinstance(values, list):
+                for i, value in enumerate(values):
+                    number(value, f"{field}.{key}[{i}]")
+        return dist.from_dict(raw).limit_classes(field=field)
     if kind == "lognormal":
         return dist.lognormal(_read_quantity(raw.get("median"), "length", f"{field}.median"),
-                              float(raw.get("geometric_std", 1.0)),
+                              number(raw.get("geometric_std", 1.0), f"{field}.geometric_std"),
                               basis=str(raw.get("basis", "volume")))
     if kind == "rosin-rammler":
         return dist.rosin_rammler(
             _read_quantity(raw.get("characteristic"), "length", f"{field}.characteristic"),
-            float(raw.get("uniformity", 1.0)))
+            number(raw.get("uniformity", 1.0), f"{field}.uniformity"))
     if kind == "single":
         return dist.single(_read_quantity(raw.get("diameter"), "length", f"{field}.diameter"))
     raise ScenarioError(f"{field}.type = {kind!r}: expected 'table', 'lognormal', "
                         "'rosin-rammler' or 'single'.")
 
 
-def _si_from_unit(value, unit: str, field: str) -> float:
-    """SI value of a law parameter whose unit may be a power-law unit (Pa*s**n)."""
-    if isinstance(value, bool) or not isinstance(value, int | float):
-        raise ScenarioError(f"{field}: value {value!r} is not a number.")
-    from .units import Q_
+def _si_from_unit(value, unit: str, field: str, expected: str | None = None) -> float:
+    """SI value of a law parameter, checked against the unit its relation declares.
+
+    `expected` is the registry unit ("Pa*s", "s", "-" ...); a power-law consistency
+    (``consistency_*``) may carry any Pa*s**n (mass / length / time**k).
+    """
+    value = number(value, f"{field}.value")
+    if unit.strip() in ("", "-"):
+        return value    # a bare number is in SI units, as everywhere in a scenario
+    from .units import Q_, check_dimension
 
     try:
-        q = Q_(float(value), "" if unit.strip() in ("", "-") else unit)
-        return float(q.to_base_units().magnitude)
+        q = Q_(value, unit)
     except Exception as err:  # pint raises many kinds; report them as one
-        raise ScenarioError(f"{field}: unit {unit!r} is not understood ({err}).") from None
+        raise UnitError(f"{field}: unit {unit!r} is not understood ({type(err).__name__})."
+                        ) from None
+    if expected is not None:
+        check_dimension(q, expected, field, power_law=field.split(".")[-1].startswith(
+            "consistency"))
+    return float(q.to_base_units().magnitude)
 
 
 def dumps(formulation: Formulation) -> str:
@@ -289,7 +394,7 @@ def loads(text: str, source: str = "the scenario") -> Formulation:
     if "\x00" in text:
         raise ScenarioError("the scenario holds NUL characters: a binary file, not JSON.")
     try:
-        doc = json.loads(text)
+        doc = load_json(text, "the scenario")
     except json.JSONDecodeError as err:
         ends_early = err.pos >= len(text.rstrip()) or err.msg.startswith("Unterminated")
         cut = " (the file ends early: truncated?)" if ends_early else ""
@@ -330,30 +435,21 @@ def read_scenario(path) -> Formulation:
         raise ScenarioError(f"{path.name}: {err}{hint}") from None
 
 
-def write_scenario(formulation: Formulation, path) -> pathlib.Path:
-    """Write `formulation` to `path` atomically; keep the previous good file as `.bak`."""
+def write_scenario(formulation: Formulation, path, inputs=()) -> pathlib.Path:
+    """Write `formulation` to `path` atomically; keep the previous good file as `.bak`.
+
+    Goes through `files.atomic_write`: `path` is refused when it is one of `inputs`, an
+    existing file keeps its permission bits, and no temporary file is left behind.
+    """
     path = pathlib.Path(path)
     text = dumps(formulation)
     loads(text)  # never write what cannot be read back
     path.parent.mkdir(parents=True, exist_ok=True)
     if path.exists():
         try:
-            loads(path.read_text(encoding="utf-8-sig"))
-            _atomic_write(path.with_name(path.name + ".bak"), path.read_bytes())
+            old = path.read_bytes()
+            loads(old.decode("utf-8-sig"))
+            atomic_write(path.with_name(path.name + ".bak"), old, inputs)
         except (LoadlineError, OSError, UnicodeDecodeError):
             pass  # the old file is not a good copy: keep the .bak we have
-    _atomic_write(path, text.encode("utf-8"))
-    return path
-
-
-def _atomic_write(path: pathlib.Path, data: bytes) -> None:
-    fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent)
-    try:
-        with os.fdopen(fd, "wb") as handle:
-            handle.write(data)
-            handle.flush()
-            os.fsync(handle.fileno())
-        os.replace(tmp, path)
-    except BaseException:
-        pathlib.Path(tmp).unlink(missing_ok=True)
-        raise
+    return atomic_write(path, text, inputs)

@@ -623,7 +623,6 @@ def _grid_bounds(model, rates, sig_jam):
             rates.max(axis=-1, keepdims=True), g_hi) * 4.0, np.inf)
     sig_hi = np.minimum(sig_hi, sig_jam)
     sig_hi = np.where(np.isfinite(sig_hi), sig_hi, sig_lo * 1e12)   # guard; see the checks
-    sig_lo = np.maximum(sig_lo, 1e-300)
     sig_lo = np.where(np.isfinite(sig_jam) & (sig_lo >= sig_jam), sig_jam * 1e-6, sig_lo)
     for scale in (model.stress_scale, model.star):   # show the features near the range too
         use = np.isfinite(scale) & (scale > 0)
@@ -681,6 +680,20 @@ def _solve(model, rates, points_per_decade=60.0):
     sig_jam = model.jamming_stress()
     dead = ((~np.isfinite(model.g_hs) & ~model.thickening) | (sig_jam == 0.0)).ravel()
     jam_rate[dead] = 0.0
+    if np.any(~dead):
+        # The stress at the lowest rate underflows: no grid or bracket can hold it, and a
+        # floor would answer for another rate (1e-300 1/s once returned exactly 1 Pa*s).
+        live = model.take(~dead)
+        low_rate = rates[~dead].min(axis=-1, keepdims=True)
+        with np.errstate(under="ignore"):
+            s_lo = live.stress(low_rate, live.plateaus()[0]).ravel() / 4.0
+        bad = ~(s_lo >= _TINY)
+        if np.any(bad):
+            rate = float(low_rate.ravel()[bad][0])
+            lowest = rate * (_TINY / s_lo[bad][0]) if s_lo[bad][0] > 0 else float("inf")
+            raise InputRangeError("shear_rate_1_per_s", rate,
+                                  f"a rate whose shear stress is a representable number "
+                                  f"(here above about {min(lowest, 1e300):.2g} 1/s)")
     mono = ~dead & ~model.thickening.ravel()
     if mono.any():
         sub = model.take(mono)
@@ -991,6 +1004,11 @@ def flow_curve(shear_rate_1_per_s, phi, *, liquid_law_name="newtonian", liquid_p
     relative = viscosity / eta_l
     return FlowCurve(rates, sigma, viscosity, relative, eta_l, solved.regime[0].astype(str),
                      markers, tuple(messages))
+
+
+#: Smallest stress the flow-curve grid holds: the smallest normal float, times 1e4 so the
+#: grid below the lowest stress and the bisection keep full precision. [Pa]
+_TINY = float(np.finfo(float).tiny) * 1e4
 
 
 def _plateau_markers(model, law, critical_reduced_stress):

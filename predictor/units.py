@@ -10,14 +10,36 @@ import functools
 import re
 
 import numpy as np
-import pint
 
 from .errors import InputRangeError, UnitError
 
-ureg = pint.UnitRegistry()
-# "cm3" and "m2" are common in data sheets; pint wants "cm**3".
-ureg.preprocessors.append(lambda s: re.sub(r"(?<=[a-zA-Zµ])([23])\b", r"**\1", s))
-Q_ = ureg.Quantity
+
+@functools.cache
+def registry():
+    """The one pint `UnitRegistry` of Loadline, built on first use.
+
+    Building it reads pint's definitions file (about 0.2 s here); pint's own disk cache
+    (``cache_folder=":auto:"``, the per-user cache folder) cuts that to about 0.05 s from
+    the second process on. A cache folder that cannot be written or read is skipped.
+    """
+    import pint
+
+    try:
+        ureg = pint.UnitRegistry(cache_folder=":auto:")
+    except Exception:  # noqa: BLE001  read-only home, a half-written cache file, ...
+        ureg = pint.UnitRegistry()
+    # "cm3" and "m2" are common in data sheets; pint wants "cm**3".
+    ureg.preprocessors.append(lambda s: re.sub(r"(?<=[a-zA-Zµ])([23])\b", r"**\1", s))
+    return ureg
+
+
+def __getattr__(name: str):
+    # `units.ureg` and `units.Q_` stay available, built only when first asked for.
+    if name == "ureg":
+        return registry()
+    if name == "Q_":
+        return registry().Quantity
+    raise AttributeError(f"module {__name__!r} has no attribute {name!r}")
 
 #: Dimension names accepted by `parse_quantity`, with the SI unit each is converted to.
 SI_UNITS = {
@@ -31,6 +53,11 @@ SI_UNITS = {
     "time": "s",
     "dimensionless": "",
     "consistency": "Pa*s",   # power-law consistency K: Pa*s^n, checked loosely (n varies)
+    "flow_rate": "m**3/s",
+    "pressure": "Pa",
+    "potential": "V",
+    "energy": "J",
+    "concentration": "mol/L",
 }
 
 _NUMBER = r"[-+]?(?:\d+\.?\d*|\.\d+)(?:[eE][-+]?\d+)?"
@@ -88,7 +115,8 @@ def parse_quantity(text, dimension: str, field: str) -> float:
         raise UnitError(f"{field} = {text!r} could not be converted to {target or 'a pure number'}"
                         f" ({type(err).__name__}).") from None
     if scale is None:       # not an affine unit: let pint convert this very number
-        q = Q_(number, ureg.parse_units(unit))
+        ureg = registry()
+        q = ureg.Quantity(number, ureg.parse_units(unit))
         return float(q.m_as(target)) if target else float(q.to("dimensionless").magnitude)
     return number * scale + offset
 
@@ -103,7 +131,8 @@ def _affine(unit: str, target: str) -> tuple[float | None, float]:
     ``(None, 0)`` sends a non-affine unit back to pint for every value.
     """
     def convert(x: float) -> float:
-        q = Q_(x, ureg.parse_units(unit))
+        ureg = registry()
+        q = ureg.Quantity(x, ureg.parse_units(unit))
         return float(q.m_as(target)) if target else float(q.to("dimensionless").magnitude)
 
     offset = convert(0.0)
@@ -136,10 +165,48 @@ def from_si(value, unit: str, dimension: str):
     target = SI_UNITS[dimension]
     scale, offset = _affine(target, unit) if unit else (1.0, 0.0)
     if scale is None:
-        magnitude = Q_(np.asarray(value, dtype=float), target).m_as(unit)
+        magnitude = registry().Quantity(np.asarray(value, dtype=float), target).m_as(unit)
     else:
         magnitude = np.asarray(value, dtype=float) * scale + offset
     return float(magnitude) if np.ndim(magnitude) == 0 else magnitude
+
+
+def check_dimension(quantity, expected: str, field: str, power_law: bool = False) -> None:
+    """Refuse a pint quantity whose unit is not of the dimension of `expected`.
+
+    `expected` is a unit ("Pa*s", "s", "-" or "" for a pure number). With `power_law`, any
+    Pa*s**n is accepted (mass / length / time**k: a power-law consistency).
+
+    Raises
+    ------
+    UnitError
+        Naming the field, the unit given and the unit expected.
+
+    Examples
+    --------
+    >>> Q_ = registry().Quantity
+    >>> check_dimension(Q_(800, "mPa*s"), "Pa*s", "zero_shear_viscosity_Pa_s")
+    >>> check_dimension(Q_(800, "mm"), "Pa*s", "eta_0")  # doctest: +ELLIPSIS
+    Traceback (most recent call last):
+    ...
+    predictor.errors.UnitError: eta_0: unit 'mm' has the dimension [length]; expected a ...
+    """
+    target = registry().parse_units("" if expected.strip() in ("", "-") else expected)
+    dims = dict(quantity.dimensionality)
+    if power_law:
+        ok = dims.get("[mass]") == 1 and dims.get("[length]") == -1 and set(dims) <= {
+            "[mass]", "[length]", "[time]"}
+    else:
+        ok = quantity.dimensionality == target.dimensionality
+    if not ok:
+        kinds = {"[mass] / [length] / [time]": "viscosity",
+                 "[mass] / [length] / [time] ** 2": "stress", "[time]": "time",
+                 "dimensionless": "pure number"}
+        want = kinds.get(str(target.dimensionality), str(target.dimensionality))
+        shown = f"{quantity.units:~}" or "-"
+        raise UnitError(f"{field}: unit {shown!r} has the dimension "
+                        f"{quantity.dimensionality}; expected a {want} unit like "
+                        f"{expected.strip() or '-'!r}.")
 
 
 def parse_loading(text, field: str = "loading", default_basis: str = "volume"):

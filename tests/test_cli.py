@@ -5,11 +5,13 @@ from __future__ import annotations
 import csv
 import io
 import json
+import math
 import pathlib
 
 import pandas as pd
 import pytest
 
+import predictor
 from predictor import formulation as fm
 from predictor.cli import CAUTIONS, main
 from predictor.registry import models
@@ -17,7 +19,8 @@ from predictor.scenario import read_scenario
 
 DEMO = pathlib.Path(__file__).resolve().parents[1] / "data_demo"
 SCENARIO = str(DEMO / "mineral_coating.loadline.json")
-COMMANDS = ["predict", "sweep", "max-load", "screen", "pack", "fit", "report", "models", "demo"]
+COMMANDS = ["predict", "sweep", "max-load", "screen", "pack", "fit", "report", "pipe", "models",
+            "demo"]
 
 
 def run(capsys, *argv):
@@ -35,6 +38,34 @@ def test_models_table_and_json(capsys):
     code, out, _ = run(capsys, "models", "--kind", "packing", "--csv")
     names = pd.read_csv(io.StringIO(out))["name"].tolist()
     assert names == [m.name for m in models("packing")]
+
+
+def test_models_json_matches_its_schema_and_the_registry(capsys):
+    import jsonschema
+
+    schema = json.loads((pathlib.Path(predictor.__file__).parent / "schemas"
+                         / "models.schema.json").read_text())
+    jsonschema.Draft202012Validator.check_schema(schema)
+    code, out, _ = run(capsys, "models", "--json")
+    doc = json.loads(out)
+    assert code == 0
+    jsonschema.validate(doc, schema, cls=jsonschema.Draft202012Validator)
+    by_name = {r["name"]: r for r in doc["rows"]}
+    for spec in models():
+        params = by_name[spec.name]["parameters"]
+        assert [p["name"] for p in params] == list(spec.param_names())
+        for p, param in zip(params, spec.params, strict=True):
+            assert p["unit"] == param.unit and p["description"] == param.description
+            assert p["bounds"] == [b if math.isfinite(b) else None for b in param.bounds]
+    # Krieger & Dougherty, Trans. Soc. Rheol. 3, 137 (1959): intrinsic viscosity 2.5 for
+    # spheres (Einstein's value) is the default of the relation.
+    kd = {p["name"]: p for p in by_name["krieger-dougherty"]["parameters"]}
+    assert kd["intrinsic_viscosity"]["default"] == 2.5
+    # A schema that can fail: a parameter given as a string (the old form) is rejected.
+    bad = json.loads(out)
+    bad["rows"][0]["parameters"] = ["intrinsic_viscosity=2.5 [-] (2.5..20)"]
+    with pytest.raises(jsonschema.ValidationError):
+        jsonschema.validate(bad, schema, cls=jsonschema.Draft202012Validator)
 
 
 def test_predict_json_equals_core(capsys):
@@ -134,7 +165,11 @@ def test_screen_bad_rows_exit_3_and_escaped_csv(capsys):
 def test_screen_progress_bar_on_stderr(capsys):
     code, _, err = run(capsys, "screen", str(DEMO / "candidates.csv"), "--progress",
                        "--show", "2")
-    assert code == 0 and "screen [" in err and "100.0 %" in err and "13/13 rows" in err
+    # The bar is rich's: label, bar, percentage, rows done of the total.
+    assert code == 0 and err.startswith("screen ") and "100%" in err and "13/13 rows" in err
+    code, _, err = run(capsys, "screen", str(DEMO / "candidates.csv"), "--no-progress",
+                       "--show", "2")
+    assert code == 0 and "13/13" not in err
 
 
 def test_pack_size_table(capsys):
@@ -188,3 +223,97 @@ def test_help_has_examples_and_cautions(capsys, command):
 def test_top_level_help(capsys):
     code, out, _ = run(capsys, "--help")
     assert code == 0 and all(c in out for c in COMMANDS) and "Caution" in out
+
+
+# -- issue 20: hostile input through the commands ---------------------------------------------
+CORPUS = pathlib.Path(__file__).resolve().parent / "corpus"
+
+
+@pytest.mark.parametrize("command", [["predict"], ["sweep"], ["max-load", "--limit", "1 Pa*s"],
+                                     ["report", "-o", "never.html"]])
+def test_deeply_nested_scenario_is_refused_by_every_command(capsys, command, tmp_path,
+                                                            monkeypatch):
+    monkeypatch.chdir(tmp_path)
+    code, out, err = run(capsys, command[0], str(CORPUS / "scenario_deep_nesting.loadline.json"),
+                         *command[1:])
+    assert code == 1 and "levels deep" in err and "Recursion" not in err
+    assert not (tmp_path / "never.html").exists()
+
+
+def test_max_load_checks_its_viscosity_unit(capsys):
+    code, _, err = run(capsys, "max-load", SCENARIO, "--limit", "1 Pa*s",
+                       "--viscosity-unit", "furlongs")
+    assert code == 1 and "--viscosity-unit = 'furlongs'" in err and "pint" not in err
+
+
+def test_report_of_a_scenario_without_ingredients(capsys, tmp_path):
+    out_file = tmp_path / "r.html"
+    code, _, err = run(capsys, "report", str(CORPUS / "scenario_no_ingredients.loadline.json"),
+                       "-o", str(out_file))
+    assert code == 0, err
+    assert "corpus: no ingredients" in out_file.read_text(encoding="utf-8")
+
+
+def test_sweep_without_solids_refuses_like_max_load(capsys):
+    path = str(CORPUS / "scenario_no_ingredients.loadline.json")
+    code_sweep, _, err_sweep = run(capsys, "sweep", path)
+    code_max, _, err_max = run(capsys, "max-load", path, "--limit", "1 Pa*s")
+    assert code_sweep == code_max == 1
+    assert "no solid" in err_sweep and err_sweep == err_max
+
+
+def test_limit_below_the_liquid_says_even_the_liquid_fails(capsys):
+    # The demo slip's liquid is water, 1.002 mPa*s at 25 degC (its scenario); 0.1 mPa*s
+    # is below it, so no loading can meet the limit.
+    code, out, err = run(capsys, "max-load", str(DEMO / "ceramic_slip.loadline.json"),
+                         "--limit", "0.1 mPa*s", "--json")
+    assert code == 0
+    assert json.loads(out)["rows"][0]["max phi solids [-]"] == 0.0
+    assert "even the liquid without solids" in err and "0.001002 Pa*s" in err
+
+
+def test_tiny_shear_rate_gives_the_plateau_or_a_refusal_never_a_default(capsys):
+    # Before: 1e-300 1/s returned exactly 1 Pa*s (a 1e-300 Pa stress floor divided by the
+    # rate). Now the zero-shear plateau (the value at 1e-12 1/s), or a refusal naming the rate.
+    path = str(DEMO / "ceramic_slip.loadline.json")
+    _, plateau, _ = run(capsys, "predict", path, "--shear-rate", "1e-12 1/s", "--json")
+    code, out, _ = run(capsys, "predict", path, "--shear-rate", "1e-300 1/s", "--json")
+    assert code == 0
+    assert json.loads(out)["rows"][0]["viscosity [Pa*s]"] == pytest.approx(
+        json.loads(plateau)["rows"][0]["viscosity [Pa*s]"], rel=1e-6)
+    code, _, err = run(capsys, "predict", path, "--shear-rate", "1e-306 1/s")
+    assert code == 1 and "shear_rate_1_per_s = 1e-306" in err
+
+
+def test_pack_simulation_says_when_it_cannot_represent_the_sizes(capsys, tmp_path):
+    # Half the volume at 1 nm, half at 10 mm: a 10 mm sphere is 1e21 times the volume of a
+    # 1 nm one, so 2000 spheres drawn in number are all 1 nm (by hand).
+    path = tmp_path / "two.csv"
+    path.write_text("size [um],amount [vol%]\n0.001,50\n10000,50\n", encoding="utf-8")
+    code, out, _ = run(capsys, "pack", str(path), "--simulation", "--json")
+    assert code == 0
+    rows = {r["method"]: r for r in json.loads(out)["rows"]}
+    assert rows["simulation"]["phi_max [-]"] is None
+    assert "cannot represent this distribution" in rows["simulation"]["note"]
+
+
+def test_pack_simulation_shows_its_elapsed_time(capsys, tmp_path, monkeypatch):
+    # The jamming simulation reports no progress of its own; --progress redraws the elapsed
+    # time on stderr while it runs (here a stand-in that takes 0.35 s).
+    import time
+
+    from predictor import cli, packing
+
+    real = packing.packing_estimates
+
+    def slow(*args, **kwargs):
+        time.sleep(0.35)
+        kwargs["include_simulation"] = False
+        return real(*args, **kwargs)
+
+    monkeypatch.setattr(packing, "packing_estimates", slow)
+    monkeypatch.setattr(cli, "TICK_SECONDS", 0.1)
+    code, _, err = run(capsys, "pack", str(DEMO / "sizes_filler_coarse.csv"), "--simulation",
+                       "--progress")
+    assert code == 0
+    assert "pack: jamming simulation: 0 s" in err and "done in 0." in err

@@ -116,6 +116,25 @@ CASES = [
     ("scenario", "whitespace.csv", (ScenarioError, ["whitespace.csv", "empty"])),
     ("scenario", "binary.png", (ScenarioError, ["binary.png", "UTF-8"])),
     ("scenario", "nul_bytes.csv", (ScenarioError, ["nul_bytes.csv", "NUL"])),
+    # issue 20 (hostile input). Each of these passed silently or with a traceback before:
+    # a RecursionError; true read as 1.0; the last of two keys kept (the solid became a
+    # droplet); 800 mm read as 0.8 Pa*s; furlongs read as vol%.
+    ("scenario", "scenario_deep_nesting.loadline.json",
+     (ScenarioError, ["scenario_deep_nesting.loadline.json", "100000 levels deep", "64"])),
+    ("scenario", "scenario_bool_for_number.loadline.json",
+     (ScenarioError, ["ingredients[0].aspect_ratio", "true", "not a number"])),
+    ("scenario", "scenario_duplicate_keys.loadline.json",
+     (ScenarioError, ["scenario_duplicate_keys.loadline.json", "'kind'", "twice"])),
+    ("scenario", "scenario_law_unit_wrong.loadline.json",
+     (UnitError, ["liquid.parameters.zero_shear_viscosity_Pa_s", "'mm'", "[length]",
+                  "viscosity", "'Pa*s'"])),
+    ("size", "size_amount_wrong_unit.csv",
+     (UnitError, ["size_amount_wrong_unit.csv", "amount [furlongs]", "[furlongs]",
+                  "percent or fraction"])),
+    ("candidates", "cand_huge_shear_rate.csv",
+     {"rows": 1, "errors": 1, "names": ["A"], "phi": [math.nan],
+      "error": ["column 'window 1 shear rate [1/s]' = '1e308' is not allowed; expected a "
+                "shear rate up to 1e+09 1/s."]}),
 ]
 
 
@@ -123,7 +142,8 @@ def _check_values(got: dict, expected: dict) -> None:
     assert got.keys() == expected.keys()
     for key, want in expected.items():
         if isinstance(want, list) and want and isinstance(want[0], float):
-            np.testing.assert_allclose(got[key], want, rtol=1e-9, err_msg=key)
+            np.testing.assert_allclose(np.asarray(got[key], dtype=float), want, rtol=1e-9,
+                                       err_msg=key)
         elif isinstance(want, float):
             assert got[key] == pytest.approx(want, rel=1e-9), key
         else:
@@ -216,3 +236,97 @@ def test_lab_text_upload_with_bom_and_decimal_commas():
     got = labdata.read_lab_text(text).table
     np.testing.assert_allclose(got["viscosity_Pa_s"], [0.0012, 0.0025], rtol=1e-12)
     np.testing.assert_allclose(got["phi"], [0.10, 0.25], rtol=1e-12)
+
+
+# -- issue 20: hostile input ------------------------------------------------------------------
+
+
+def test_unknown_relation_and_law_parameters_are_named_in_the_warning(tmp_path):
+    # Before: relations.parameters.phi_maxx and an unknown law parameter were dropped
+    # without a word, while unknown top-level keys were named.
+    path = tmp_path / "scenario_unknown_parameter.loadline.json"
+    shutil.copyfile(CORPUS / path.name, path)
+    with pytest.warns(UserWarning) as record:
+        form = scenario.read_scenario(path)
+    message = " ".join(str(w.message) for w in record)
+    assert "relations.parameters.phi_maxx" in message
+    assert "liquid.parameters.viscosity_guess_Pa_s" in message
+    assert form.model_params == {"phi_max": 0.6}
+    assert form.liquid.params == {"viscosity_Pa_s": pytest.approx(1e-3)}
+
+
+def test_wide_first_row_is_echoed_unshifted_with_its_cell_count(tmp_path):
+    # Before: pandas took the leading cells of a first row wider than the header as an
+    # index, so the echo showed cells 35..40 and the message "row 2 has 11 cells".
+    path = tmp_path / "cand_wide_first_row.csv"
+    shutil.copyfile(CORPUS / path.name, path)
+    summary, frame = batch.screen_file(path, keep=-1)
+    assert summary.rows == 2 and summary.errors == 1
+    first = frame.iloc[0]
+    assert (first["candidate"], first["note"]) == ("B", "invented")
+    assert first["ingredient 1 loading [wt%]"] == "1"      # the third cell of the row
+    assert first["window 1 shear rate [1/s]"] == "4"
+    assert "row 2 has 42 cells, the header has 6" in first["error"]
+    # the next row is read as written: 30 wt% of 2500 kg/m3 in water
+    assert frame.iloc[1]["candidate"] == "A" and frame.iloc[1]["status"] == "ok"
+    assert frame.iloc[1]["phi solids [-]"] == pytest.approx(PHI_30WT, rel=1e-9)
+
+
+def test_scenario_with_too_many_ingredients_is_refused_naming_the_limit(tmp_path):
+    import json
+
+    from predictor.formulation import MAX_INGREDIENTS
+
+    doc = json.loads((CORPUS / "scenario_bom.loadline.json").read_text(encoding="utf-8-sig"))
+    doc["ingredients"] = doc["ingredients"] * (MAX_INGREDIENTS + 1)
+    path = tmp_path / "many.loadline.json"
+    path.write_text(json.dumps(doc), encoding="utf-8")
+    _check_error(lambda: scenario.read_scenario(path), ScenarioError,
+                 [f"{MAX_INGREDIENTS + 1} given", f"at most {MAX_INGREDIENTS}"])
+    doc["ingredients"] = doc["ingredients"][:MAX_INGREDIENTS]
+    path.write_text(json.dumps(doc), encoding="utf-8")
+    assert len(scenario.read_scenario(path).ingredients) == MAX_INGREDIENTS
+
+
+def test_candidate_table_with_too_many_ingredients_is_refused(tmp_path):
+    path = tmp_path / "many.csv"
+    path.write_text("candidate,ingredient 51 loading [wt%],ingredient 51 density [kg/m3]\n"
+                    "A,30,2500\n", encoding="utf-8")
+    _check_error(lambda: _candidates(path), InputRangeError,
+                 ["ingredient 51 loading", "1 to 50"])
+
+
+def test_size_table_with_very_many_classes_is_rebinned_keeping_the_volume(tmp_path):
+    # 100 000 equal retained masses on a log grid from 1 to 1000 um: the cumulative volume
+    # is linear in log(d), so D50 is the geometric middle, sqrt(1 * 1000) = 31.62 um, and
+    # D10 is 10**0.3 = 1.995 um (by hand). The rebinned table keeps both.
+    path = tmp_path / "many.csv"
+    exponents = np.arange(100_000) / 100_000 * 3
+    path.write_text("size [um],retained [g]\n" + "".join(
+        f"{10 ** e:.9g},1\n" for e in exponents), encoding="utf-8")
+    with pytest.warns(UserWarning, match="100000 size classes were rebinned onto 200"):
+        dist = batch.read_size_table(path)
+    assert dist.diameters_m.size <= 200
+    assert dist.d50_m == pytest.approx(math.sqrt(1000) * 1e-6, rel=2e-3)
+    assert dist.d10_m == pytest.approx(10 ** 0.3 * 1e-6, rel=2e-3)
+    assert dist.fractions.sum() == pytest.approx(1.0)
+
+
+def test_size_table_retained_in_a_mass_unit_is_read(tmp_path):
+    path = tmp_path / "kg.csv"
+    path.write_text("size [um],retained [kg]\n1,5\n2,5\n", encoding="utf-8")
+    np.testing.assert_allclose(batch.read_size_table(path).fractions, [0.5, 0.5])
+
+
+def test_window_limit_below_the_liquid_is_explained_in_the_row(tmp_path):
+    # The batch default liquid is water at 25 degC, about 0.89 mPa*s (its own output); a
+    # 0.1 mPa*s ceiling cannot be met by any loading. Before: max solids 0 with no word.
+    path = tmp_path / "low.csv"
+    path.write_text("candidate,ingredient 1 loading [wt%],ingredient 1 density [kg/m3],"
+                    "ingredient 1 d50 [um],window 1 shear rate [1/s],"
+                    "window 1 max viscosity [mPa*s]\nA,30,2500,5,10,0.1\nB,30,2500,5,10,100\n",
+                    encoding="utf-8")
+    _, frame = batch.screen_file(path, keep=-1)
+    assert frame["window 1 max solids [vol%]"].tolist()[0] == 0.0
+    assert "even the liquid without solids" in frame["warnings"].iat[0]
+    assert "even the liquid" not in frame["warnings"].iat[1]

@@ -23,18 +23,23 @@ import predictor as pr
 from predictor import (
     composition,
     emulsion,
+    files,
+    interactions,
     liquids,
     packing,
+    process,
     shear,
     sizes,
     stability,
     suspension,
+    thixotropy,
     viscosity,
 )
 from predictor.errors import LoadlineError, ValidityWarning
 from tests.conftest import FUZZ_CASES, FUZZ_EXAMPLES
 
-MODULES = [suspension, emulsion, liquids, shear, stability, composition, viscosity, packing]
+MODULES = [suspension, emulsion, liquids, shear, stability, composition, viscosity, packing,
+           thixotropy, process, interactions]
 # Slow by design (seconds per call): fuzzed with few cases in their own tests.
 SLOW = {"jamming_simulation", "simulation", "simulation_fit", "max_packing_simulation"}
 
@@ -230,3 +235,113 @@ def test_fuzz_scenario_bytes(raw):
     result = check_outcome("scenario.loads(bytes)",
                            lambda: pr.scenario.loads(raw.decode("utf-8", errors="replace")))
     assert result is None or isinstance(result, pr.Formulation)
+
+
+# -- issue 20: hostile JSON shapes and units ---------------------------------------------------
+# Each strategy below found a fault before issue 20 was fixed: deep nesting raised a
+# RecursionError, true was read as 1.0, a repeated key kept its last value silently, and a
+# unit of the wrong dimension was converted to base units without a check.
+
+DEMO_DOC = json.loads(DEMO_TEXT)
+
+
+def _get(doc, path):
+    for key in path:
+        doc = doc[key]
+    return doc
+
+
+NUMBER_PATHS = [p for p in PATHS if isinstance(_get(DEMO_DOC, p), int | float)
+                and not isinstance(_get(DEMO_DOC, p), bool) and p[-1] != "schema_version"]
+OBJECT_PATHS = [()] + [p for p in PATHS if isinstance(_get(DEMO_DOC, p), dict)
+                       and _get(DEMO_DOC, p)]
+UNIT_PATHS = [p for p in PATHS if isinstance(_get(DEMO_DOC, p), dict)
+              and "unit" in _get(DEMO_DOC, p) and _get(DEMO_DOC, p)["unit"] not in ("", "-")]
+# Units of many dimensions, each a valid pint unit (common practice, no source).
+OTHER_UNITS = ["mm", "um", "s", "min", "kg", "g/cm**3", "Pa", "kPa", "K", "degC", "furlong",
+               "m**3", "J", "N/m", "1/s", "Pa*s", "cP", "mPa*s", "W", "mol"]
+
+
+@given(depth=st.one_of(st.integers(1, 100), st.integers(100, 200_000)),
+       shape=st.sampled_from(["[", '{"a":']), inside=st.booleans())
+@settings(max_examples=FUZZ_EXAMPLES // 3)
+def test_fuzz_json_nesting(depth, shape, inside):
+    closing = "]" if shape == "[" else "}"
+    nested = shape * depth + "1" + closing * depth
+    if inside:      # deep nesting inside a real scenario, in a key Loadline ignores
+        text = DEMO_TEXT.rstrip()[:-1].rstrip() + ', "notes": ' + nested + "}"
+    else:
+        text = nested
+    result = check_outcome("json nesting", lambda: pr.scenario.loads(text, "deep.json"))
+    if depth + inside > files.MAX_JSON_DEPTH:
+        assert result is None   # refused, with a message (checked by check_outcome)
+        with pytest.raises(pr.ScenarioError, match="levels deep"):
+            pr.scenario.loads(text)
+
+
+@given(path=st.sampled_from(NUMBER_PATHS), value=st.booleans())
+@settings(max_examples=FUZZ_EXAMPLES // 3)
+def test_fuzz_booleans_for_numbers(path, value):
+    doc = json.loads(DEMO_TEXT)
+    _get(doc, path[:-1])[path[-1]] = value
+    FUZZ_CASES["booleans for numbers"] += 1
+    with pytest.raises(pr.LoadlineError) as err:
+        pr.scenario.loads(json.dumps(doc))
+    name = path[-1] if path[-1] != "value" else path[-2]
+    assert str(name) in str(err.value) and str(value).lower() in str(err.value)
+
+
+def _dump_with_duplicate(node, target, key, here=()):
+    """JSON text of `node` with `key` written twice in the object at path `target`."""
+    if isinstance(node, dict):
+        items = [f"{json.dumps(k)}: {_dump_with_duplicate(v, target, key, here + (k,))}"
+                 for k, v in node.items()]
+        if here == target:
+            items.append(f"{json.dumps(key)}: {json.dumps(node[key])}")
+        return "{" + ", ".join(items) + "}"
+    if isinstance(node, list):
+        return "[" + ", ".join(_dump_with_duplicate(v, target, key, here + (i,))
+                               for i, v in enumerate(node)) + "]"
+    return json.dumps(node)
+
+
+@given(target=st.sampled_from(OBJECT_PATHS), data=st.data())
+@settings(max_examples=FUZZ_EXAMPLES // 3)
+def test_fuzz_duplicate_keys(target, data):
+    key = data.draw(st.sampled_from(sorted(_get(DEMO_DOC, target))), label="key")
+    text = _dump_with_duplicate(DEMO_DOC, target, key)
+    FUZZ_CASES["duplicate keys"] += 1
+    with pytest.raises(pr.ScenarioError, match=f"{key!r} appears twice"):
+        pr.scenario.loads(text)
+
+
+@given(path=st.sampled_from(UNIT_PATHS), unit=st.sampled_from(OTHER_UNITS))
+@settings(max_examples=FUZZ_EXAMPLES // 3)
+def test_fuzz_units_of_the_wrong_dimension(path, unit):
+    doc = json.loads(DEMO_TEXT)
+    node = _get(doc, path)
+    old = pr.units.ureg.parse_units(node["unit"]).dimensionality
+    node["unit"] = unit
+    result = check_outcome("scenario units", lambda: pr.scenario.loads(json.dumps(doc)))
+    if pr.units.ureg.parse_units(unit).dimensionality != old:
+        assert result is None, f"{unit} accepted at {'.'.join(map(str, path))}"
+        with pytest.raises(pr.UnitError) as err:
+            pr.scenario.loads(json.dumps(doc))
+        assert str(path[-1]) in str(err.value)
+
+
+@given(kind=st.sampled_from(["passing", "amount", "retained"]),
+       unit=st.sampled_from(OTHER_UNITS + ["vol%", "wt%", "num%", "%", "-", "g", "mL"]))
+@settings(max_examples=FUZZ_EXAMPLES // 3)
+def test_fuzz_size_table_amount_units(kind, unit, tmp_path_factory):
+    from predictor import batch
+
+    path = tmp_path_factory.mktemp("sizes") / "sizes.csv"
+    total = "0,50,100" if kind == "passing" else "50,50,0"
+    amounts = total.split(",")
+    path.write_text(f"size [um],{kind} [{unit}]\n" + "".join(
+        f"{d},{a}\n" for d, a in zip((1, 2, 4), amounts, strict=True)), encoding="utf-8")
+    result = check_outcome("size table units", lambda: batch.read_size_table(path))
+    share = unit in ("vol%", "wt%", "num%", "%", "-")
+    amount_of_matter = kind == "retained" and unit in ("kg", "g", "mL", "m**3")
+    assert (result is not None) == (share or amount_of_matter), unit

@@ -17,7 +17,7 @@ IDS = [s.name for s in SPECS]
 ROOT = pathlib.Path(pr.__file__).parent
 # Orchestration and edge modules may use pandas/pint; model modules may not.
 EDGE_MODULES = {"__init__", "formulation", "design", "scenario", "cli", "units", "batch",
-                "report", "labdata", "phase_ratio", "charts_export"}
+                "report", "labdata", "phase_ratio", "charts", "candidates"}
 FORBIDDEN = {"streamlit", "altair", "pint", "pandas"}
 
 
@@ -107,7 +107,8 @@ def test_design_model_names_are_registered():
 
 
 MODEL_MODULES = ["suspension", "emulsion", "liquids", "shear", "stability", "composition",
-                 "viscosity", "packing", "blend", "sizes"]
+                 "viscosity", "packing", "blend", "sizes", "thixotropy", "process",
+                 "interactions"]
 # Long-running simulations check their own inputs and run numba kernels in worker threads,
 # where numpy's error state does not reach.
 UNGUARDED = {"simulate_jamming", "simulation"}
@@ -122,3 +123,12 @@ def test_public_model_functions_are_guarded(name):
                if not f.startswith("_") and obj.__module__ == module.__name__
                and f not in UNGUARDED and not getattr(obj, "__loadline_guarded__", False)]
     assert not missing, f"public functions without @guarded in {name}: {missing}"
+
+
+def test_models_snapshot_is_current():
+    # `loadline models` reads predictor/data/models.json so that it starts without numpy;
+    # regenerate with `python -m predictor.registry --snapshot` after changing a relation.
+    from predictor.registry import SNAPSHOT, snapshot_text
+
+    assert (ROOT / SNAPSHOT).read_text(encoding="utf-8") == snapshot_text(), (
+        "predictor/data/models.json is stale: run `python -m predictor.registry --snapshot`")

@@ -15,7 +15,8 @@ from predictor.scenario import read_scenario
 
 DEMO = pathlib.Path(__file__).resolve().parents[1] / "data_demo"
 SECTIONS = ["Inputs", "Summary", "Flow curve", "Loading sweep and packing range",
-            "Process windows", "Uncertainty", "Storage (settling and creaming)",
+            "Design map of the first two solids", "Process windows", "Process checks",
+            "Uncertainty", "Storage (settling and creaming)",
             "Relations used and their sources", "Cautions"]
 
 
@@ -87,6 +88,20 @@ def test_cautions_models_and_sources(coating):
     assert "krieger-dougherty" in text and "Krieger &amp; Dougherty" in text
 
 
+def test_process_checks_match_the_core(coating):
+    # The pipe table is process.pipe_flow_of at the reference conditions, with its caution.
+    from predictor import process
+    from predictor.report import PROCESS_REFERENCE, _g
+
+    text = coating[0].read_text(encoding="utf-8").replace("&#x27;", "'")
+    form = read_scenario(DEMO / "mineral_coating.loadline.json")
+    ref = PROCESS_REFERENCE
+    flow = process.pipe_flow_of(form, ref["flows_L_per_min"][1] / 60e3, ref["diameter_m"],
+                                ref["length_m"])
+    assert f"<td class='n'>{_g(flow.pressure_drop_Pa / 1e5)}</td>" in text
+    assert process.CAUTION in text
+
+
 def test_pdf_written(coating):
     data = coating[1].read_bytes()
     assert data.startswith(b"%PDF") and len(data) > 10_000
@@ -97,3 +112,39 @@ def test_emulsion_only_scenario(tmp_path):
     text = path.read_text(encoding="utf-8")
     assert "No solids: there is no solids loading to sweep." in text
     assert "phan-thien-pham" in text
+
+
+def test_report_shows_particle_forces_when_a_solid_carries_them(tmp_path):
+    import dataclasses
+
+    from predictor.scenario import write_scenario
+
+    form = read_scenario(DEMO / "ceramic_slip.loadline.json")
+    ing = dataclasses.replace(form.ingredients[0], surface_potential_V=0.03, hamaker_J=4.8e-20)
+    form = dataclasses.replace(form, ingredients=(ing,), liquid=dataclasses.replace(
+        form.liquid, ionic_strength_mol_per_L=0.5))
+    path = write_scenario(form, tmp_path / "slip.loadline.json")
+    html_path, = write_report(path, tmp_path / "slip.html")[:1]
+    text = html_path.read_text(encoding="utf-8")
+    parser = _Collector()
+    parser.feed(text)
+    titles = [re.sub(r"^\d+\.\s*", "", t) for t in parser.h2]
+    assert "Particle forces (dispersed or flocculated)" in titles
+    tau = fm.flocculation_yield_stress(form)
+    assert f"Network yield stress at this loading: {tau:.4g} Pa" in text
+    assert "flocculated" in text and "rule of thumb" in text
+
+
+def test_report_charts_are_the_app_charts_and_fit_the_pdf_page():
+    # One chart module (issue 13): the report draws predictor.charts' flow-curve panels and
+    # loading sweep, and their SVG fits the PDF page with its 40 px margin.
+    from predictor import charts, report
+
+    built = report.build_report(read_scenario(DEMO / "ceramic_slip.loadline.json"))
+    specs = [c for sec in built.sections for c in sec.charts]
+    assert len(specs) == 2 and all(s["$schema"] == charts.alt.SCHEMA_URL for s in specs)
+    assert "vconcat" in specs[0]                       # the app's stacked flow-curve panels
+    for spec in specs:
+        svg = charts.to_svg(spec, report.CHART_WIDTH)
+        width = float(re.search(r'width="([\d.]+)"', svg).group(1))
+        assert width <= report._PAGE_W - 40

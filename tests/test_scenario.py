@@ -46,7 +46,7 @@ def test_units_written_out_and_other_units_read():
     (lambda d: d.update(schema_version="one"), "schema_version"),
     (lambda d: d.update(format="something-else"), "format"),
     (lambda d: d["ingredients"][0].update(density="2.7 m"), "density"),
-    (lambda d: d["ingredients"][0].update(loading={"basis": "mass"}), "malformed"),
+    (lambda d: d["ingredients"][0].update(loading={"basis": "mass"}), "loading.value"),
     (lambda d: d["ingredients"][0].update(kind="gas"), "kind"),
     (lambda d: d["ingredients"][0]["density"].update(value="heavy"), "not a number"),
 ])

@@ -9,7 +9,8 @@ import pandas as pd
 import streamlit as st
 
 import predictor
-from app import charts, compute, state, widgets
+from app import compute, state, widgets
+from predictor import charts
 
 state.init()
 ss = st.session_state

@@ -7,7 +7,8 @@ import pandas as pd
 import streamlit as st
 
 import predictor
-from app import charts, compute, state, widgets
+from app import compute, lab_panels, state, widgets
+from predictor import charts
 
 state.init()
 ss = st.session_state
@@ -64,6 +65,9 @@ def upload_box() -> None:
                      help="Columns such as 'solids [vol%]' or 'solids [wt%]', "
                      "'viscosity [mPa*s]' or 'relative viscosity [-]', optionally "
                      "'shear rate [1/s]'. Lines starting with # are comments.")
+    st.button("Use the demo lab data", key="cal_demo", on_click=lab_panels.use_demo,
+              icon=":material/science:", help="Invented lab files: a loading series, five "
+              "flow curves, curves at three gaps and step tests.")
     if ss.get("cal_message"):
         st.error(ss["cal_message"], icon=":material/error:")
     if ss["cal_text"]:
@@ -165,6 +169,12 @@ def body() -> None:
                 st.caption(note)
 
 
+@widgets.page_body
+def lab_body() -> None:
+    lab_panels.body()
+
+
 widgets.page_header("Calibrate", "Fit the relation to your own measurements")
 body()
+lab_body()
 widgets.footer()

@@ -7,8 +7,8 @@ import pandas as pd
 import streamlit as st
 
 import predictor
-from app import charts, compute, state, widgets
-from predictor import labels
+from app import compute, state, widgets
+from predictor import charts, labels
 from predictor.units import from_si, to_si
 
 state.init()

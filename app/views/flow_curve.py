@@ -7,7 +7,8 @@ import pandas as pd
 import streamlit as st
 
 import predictor
-from app import charts, compute, state, widgets
+from app import compute, state, widgets
+from predictor import charts
 from predictor.units import from_si, to_si
 
 state.init()
@@ -55,6 +56,7 @@ def body() -> None:
     if scenario is None:
         return
     metrics = st.container()
+    widgets.interaction_summary(scenario)
     left, right = st.columns([1, 3], gap="large")
     with left:
         controls()

@@ -4,8 +4,8 @@ import pandas as pd
 import streamlit as st
 
 import predictor
-from app import charts, compute, state, widgets
-from predictor import labels
+from app import compute, state, widgets
+from predictor import charts, labels
 from predictor import scenario as sc
 from predictor.units import from_si, to_si
 
@@ -132,6 +132,7 @@ def body() -> None:
                 "Droplets page.", icon=":material/info:")
         return
     metrics = st.container()
+    widgets.interaction_summary(scenario)
     controls, main = st.columns([1, 3], gap="large")
     with controls:
         relation_controls(s)
@@ -226,7 +227,9 @@ def _add_compare_files() -> None:
     for upload in files:
         try:
             text = widgets.read_upload(upload, (".json",))
-            kept.append(sc.dumps(sc.loads(text)))
+            form, notes = state.with_notes(sc.loads, text, upload.name)
+            kept.append(sc.dumps(form))
+            problems.extend(notes)
         except predictor.LoadlineError as err:
             problems.append(f"{upload.name}: {err}")
     if len(kept) > state.MAX_COMPARE:

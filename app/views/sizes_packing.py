@@ -11,7 +11,8 @@ import streamlit as st
 from streamlit.runtime.scriptrunner import add_script_run_ctx, get_script_run_ctx
 
 import predictor
-from app import charts, compute, state, widgets
+from app import compute, state, widgets
+from predictor import charts
 from predictor.units import from_si, to_si
 
 state.init()
@@ -83,8 +84,9 @@ def distribution(solids: list[dict]) -> str | None:
             st.info("Upload a size table above, or use the demo size table.")
             return None
         st.caption(f"Table: **{ss['sz_table_name']}**")
-        return json.dumps(compute.size_table(ss["sz_table_bytes"], ss["sz_table_name"]),
-                          sort_keys=True)
+        table = compute.size_table(ss["sz_table_bytes"], ss["sz_table_name"])
+        widgets.show_warnings(table["notes"])       # e.g. a table rebinned to bound the work
+        return json.dumps(table["dist"], sort_keys=True)
     st.selectbox("Shape", list(KINDS), key="sz_kind", format_func=KINDS.get)
     a, b = st.columns(2)
     a.number_input(f"Size [{state.label(ss['unit_size'])}]", key="sz_size", format="%.4g",

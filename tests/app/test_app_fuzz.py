@@ -32,9 +32,11 @@ BASE_SEED = int(os.environ.get("LOADLINE_APP_FUZZ_SEED", "0"))
 # (seed, opening scenario): every demo is a starting point; more walks under a long run.
 WALKS = [(1, "mineral_coating"), (2, "hand_cream"), (3, "ceramic_slip"), (4, "mineral_coating")]
 PAGES = ["loading_sweep", "flow_curve", "sizes_packing", "droplets", "calibrate",
-         "batch_screen"]
-# Buttons left out of the walk: the jamming simulation runs for seconds to minutes.
-SLOW_BUTTONS = {"sz_run"}
+         "design_map", "batch_screen", "process_checks",
+         "particle_forces"]
+# Widgets left out of the walk: the jamming simulation runs for seconds to minutes, and the
+# design map's grid size (a 41 x 41 map runs 1 681 predictions until the engine lands).
+SLOW_BUTTONS = {"sz_run", "map_n"}
 TRACEBACK = "Traceback (most recent call last)"
 
 NUMBERS = [0.0, -0.0, -1.0, -1e6, 1e-12, 1e-300, 1e12, 1e300, -1e300, 0.5, 1.0, 99.99, 100.0,

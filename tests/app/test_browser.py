@@ -1,4 +1,5 @@
-"""Real-browser end-to-end tests: `streamlit run app/main.py` driven by Debian's chromium.
+"""Real-browser end-to-end tests: the app (`python -m app.serve`, as `make run` starts it)
+driven by Debian's chromium.
 
 One server per pytest(-xdist) worker, on a free loopback port, killed by its PID at the end.
 Screenshots of every page go to artifacts/screenshots/ (for people to look at; no
@@ -37,7 +38,8 @@ DATA = pathlib.Path(__file__).parent / "data"
 WAIT_MS = 60_000
 PAGES = {"Loading sweep": "loading-sweep", "Flow curve": "flow-curve",
          "Sizes & packing": "sizes-packing", "Droplets": "droplets",
-         "Calibrate": "calibrate", "Batch screen": "batch-screen"}
+         "Calibrate": "calibrate", "Design map": "design-map", "Batch screen": "batch-screen",
+         "Particle forces": "particle-forces"}
 
 
 def _need_browser() -> None:
@@ -71,7 +73,7 @@ def server():
     log = tempfile.TemporaryFile()
     env = {**os.environ, "LOADLINE_SCENARIO": "data_demo/mineral_coating.loadline.json"}
     proc = subprocess.Popen(
-        [sys.executable, "-m", "streamlit", "run", "app/main.py", "--server.headless", "true",
+        [sys.executable, "-m", "app.serve", "--server.headless", "true",
          "--server.port", str(port), "--server.address", "127.0.0.1",
          "--browser.gatherUsageStats", "false", "--server.fileWatcherType", "none"],
         cwd=REPO, env=env, stdout=log, stderr=subprocess.STDOUT, start_new_session=True)
@@ -301,3 +303,41 @@ def test_page_change_reaches_the_saved_file(page):
     expect(save).to_be_enabled(timeout=WAIT_MS)
     saved = json.loads(pathlib.Path(_download(page, save)).read_text())
     assert saved["relations"]["solids"] == "quemada"
+
+
+def test_particle_forces_verdict_and_apply(page):
+    from playwright.sync_api import expect
+
+    _go(page, "Particle forces")
+    callout = page.get_by_text("— criterion: energy barrier of at least 15 kT")
+    expect(callout).to_be_visible(timeout=WAIT_MS)
+    expect(_metric(page, "Barrier [kT]")).not_to_have_text("", timeout=WAIT_MS)
+    page.get_by_role("button", name="Apply to the scenario").click()
+    _settled(page)
+    _go(page, "Flow curve")
+    expect(page.get_by_text("Particle forces:")).to_be_visible(timeout=WAIT_MS)
+
+
+def test_clicking_a_design_map_cell_loads_its_recipe(page):
+    """A click on a map cell puts that recipe's loadings into the sidebar scenario."""
+    import re
+
+    from playwright.sync_api import expect
+
+    _go(page, "Design map")
+    chart = page.get_by_test_id("stVegaLiteChart").first
+    chart.wait_for(timeout=WAIT_MS)
+    page.wait_for_timeout(1500)
+    sidebar = page.get_by_test_id("stSidebar")
+    first = demo().ingredients[0].name
+    expect(sidebar.get_by_text(f"1 · {first} — 35 wt%")).to_be_visible(timeout=WAIT_MS)
+    box = chart.bounding_box()
+    chart.click(position={"x": box["width"] * 0.45, "y": box["height"] * 0.45})
+    _settled(page)
+    note = page.get_by_test_id("stAlert").filter(has_text="into the scenario")
+    expect(note).to_be_visible(timeout=WAIT_MS)
+    loaded = re.search(rf"Loaded {re.escape(first)} ([\d.]+) and", note.inner_text())
+    assert loaded, note.inner_text()
+    value = float(loaded.group(1))
+    assert 20 <= value <= 60 and value != 35          # a cell of the default map
+    expect(sidebar.get_by_text(f"1 · {first} — {value:g} wt%")).to_be_visible(timeout=WAIT_MS)

@@ -9,7 +9,7 @@ import numpy as np
 import pandas as pd
 import pytest
 
-from app import charts
+from predictor import charts
 
 
 def _sweep():
@@ -134,7 +134,47 @@ def test_every_builder_writes_valid_vega_lite(big):
                               big=big),
         charts.blend_curve(blend2, names=["coarse", "fine"], big=big),
         charts.blend_curve(blend3, names=["a", "b", "c"], big=big),
+        charts.system_curve(pd.DataFrame({"flow": [1.0, 10.0, 100.0],
+                                          "pressure": [0.1, 0.3, 2.0],
+                                          "regime": ["laminar", "laminar", "turbulent"]}),
+                            x_title="Flow rate [L/min]", y_title="Pressure drop [bar]",
+                            point={"flow": 10.0, "pressure": 0.3}, restart=0.5, big=big),
     ]
     for spec in specs:
         _valid(spec)  # schema validation; raises on an invalid spec
         assert "vega-lite" in spec.get("$schema", "")
+
+
+@pytest.mark.parametrize("big", [False, True])
+def test_points_and_lines_writes_valid_vega_lite(big):
+    points = pd.DataFrame({"series": ["a", "a", "b"], "x": [0.1, 1.0, 10.0],
+                           "y": [1.0, 2.0, -1.0]})          # a non-positive y is left out
+    lines = pd.DataFrame({"series": ["a", "a"], "x": [0.1, 10.0], "y": [1.0, 3.0]})
+    for line_frame in (lines, lines.iloc[:0]):
+        spec = charts.points_and_lines(points, line_frame, x="x", y="y", series="series",
+                                       x_title="Shear rate [1/s]", y_title="Shear stress [Pa]",
+                                       series_title="Series", title="t", big=big)
+        _valid(spec)
+        frames = list(spec["datasets"].values())
+        assert all((np.asarray(f["y"]) > 0).all() for f in frames)
+        assert {"Shear rate [1/s]", "Shear stress [Pa]"} <= set(_titles(spec))
+
+
+def test_energy_curve_axes_rule_and_export():
+    from predictor import interactions
+
+    curve = interactions.energy_curve(1e-6, 4.8e-20, 0.03, 1e-3)
+    frame = pd.concat([pd.DataFrame({"separation_nm": curve.separation_m * 1e9,
+                                     "energy_kT": values, "term": term})
+                       for term, values in (("total", curve.total_kT),
+                                            ("van der Waals", curve.van_der_waals_kT))])
+    chart = charts.energy_curve(frame, threshold_kT=15.0)
+    titles = _titles(chart)
+    assert "Pair energy [kT]" in titles and "Surface separation [nm]" in titles
+    text = json.dumps(chart, default=str)
+    assert "barrier rule of thumb 15 kT" in text
+    # the y range holds the barrier and clips the deep van der Waals well
+    domain = chart["layer"][0]["encoding"]["y"]["scale"]["domain"]
+    assert domain[1] > curve.total_kT.max() and domain[0] > curve.van_der_waals_kT.min()
+    _valid(chart)
+    assert charts.to_png(chart)[:8] == b"\x89PNG\r\n\x1a\n"

@@ -82,3 +82,22 @@ def test_shear_rate_unit_follows_the_selector():
     assert delta(at, "Viscosity [mPa·s]") == "at 600 1/min"
     assert metric(at, "Viscosity [mPa·s]") == widgets.fmt(
         from_si(row["viscosity_Pa_s"], "mPa*s", "viscosity"))
+
+
+def test_flocculated_solid_shows_its_verdict_and_yield_stress():
+    # the ceramic slip with its alumina stated flocculated (A = 4.8e-20 J)
+    at = page("flow_curve", scenario="ceramic_slip", ing0_interaction="flocculated",
+              ing0_hamaker=4.8).run()
+    assert not at.exception
+    import dataclasses
+
+    form = demo("ceramic_slip")
+    ing = dataclasses.replace(form.ingredients[0], flocculated=True, hamaker_J=4.8e-20)
+    form = dataclasses.replace(form, ingredients=(ing, *form.ingredients[1:]))
+    tau = fm.flocculation_yield_stress(form)
+    assert tau > 0
+    assert f"Network yield stress {widgets.fmt(tau, 3)} Pa" in messages(at)
+    assert "calcined alumina**: flocculated (stated)" in messages(at)
+    row = _at_rate(form, 100.0)
+    assert metric(at, "Viscosity [mPa·s]") == widgets.fmt(
+        from_si(row["viscosity_Pa_s"], "mPa*s", "viscosity"))

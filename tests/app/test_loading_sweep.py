@@ -117,3 +117,36 @@ def test_bad_comparison_file_is_named():
     assert not at.exception
     assert "broken.loadline.json" in messages(at) and "not valid JSON" in messages(at)
     assert at.session_state["compare_scenarios"] == []
+
+
+def test_charged_solid_in_salt_shows_the_verdict():
+    # alumina at 30 mV in 0.5 mol/L of salt: screened, its 1.5 nm layer too thin to hold
+    # the particles out of the van der Waals well, so flocculated
+    at = page("loading_sweep", scenario="ceramic_slip", ing0_interaction="charged",
+              ing0_potential=30.0, ing0_hamaker=4.8, liq_salt=500.0).run()
+    assert not at.exception
+    form = demo("ceramic_slip")
+    ing = dataclasses.replace(form.ingredients[0], surface_potential_V=0.03, hamaker_J=4.8e-20)
+    form = dataclasses.replace(form, ingredients=(ing, *form.ingredients[1:]),
+                               liquid=dataclasses.replace(form.liquid,
+                                                          ionic_strength_mol_per_L=0.5))
+    row = fm.interaction_rows(form)[0]
+    assert row["verdict"] == "flocculated"
+    text = " ".join(e.value for e in at.info)
+    assert (f"calcined alumina**: flocculated (barrier {widgets.fmt(row['barrier_kT'], 3)} kT)"
+            in text)
+    assert f"Network yield stress {widgets.fmt(fm.flocculation_yield_stress(form), 3)} Pa" in text
+
+
+# issue 20: the Compare uploader refuses deep nesting with a message and shows unknown keys.
+def test_deep_or_odd_comparison_files_are_explained():
+    doc = json.loads(sc.dumps(demo()))
+    doc["supplier"] = "nobody"
+    at = page("loading_sweep").run()
+    at.file_uploader(key="compare_upload").set_value(
+        [("deep.loadline.json", b"[" * 100_000 + b"]" * 100_000, "application/json"),
+         ("extra.loadline.json", json.dumps(doc).encode(), "application/json")]).run()
+    assert not at.exception
+    assert "deep.loadline.json" in messages(at) and "levels deep" in messages(at)
+    assert "supplier" in messages(at)
+    assert len(at.session_state["compare_scenarios"]) == 1

@@ -14,7 +14,8 @@ from predictor.units import from_si
 from tests.app.conftest import DEMOS, REPO, TIMEOUT, demo, messages, metric
 
 PAGES = ["loading_sweep", "flow_curve", "sizes_packing", "droplets", "calibrate",
-         "batch_screen"]
+         "design_map", "batch_screen", "process_checks",
+         "particle_forces"]
 
 
 def _app() -> AppTest:
@@ -145,3 +146,50 @@ def test_flow_law_parameter_reaches_the_metric():
                                                       "zero_shear_viscosity_Pa_s": 0.4})
     assert metric(at, "Viscosity now") == widgets.fmt(
         _viscosity_mPa_s(dataclasses.replace(form, liquid=liquid)))
+
+
+def test_sidebar_particle_interactions_reach_the_scenario():
+    at = _app().run()
+    at.selectbox(key="ing1_interaction").set_value("charged").run()
+    assert not at.exception
+    at.number_input(key="ing1_potential").set_value(-40.0).run()
+    at.number_input(key="ing1_hamaker").set_value(5.0).run()
+    at.number_input(key="liq_salt").set_value(20.0).run()
+    assert not at.exception
+    values = {k: at.session_state[k] for k in state.all_keys(
+        {"n_ing": at.session_state["n_ing"]}) if k in at.session_state}
+    form = sc.scenario_from_dict(state.document(values))
+    pigment = form.ingredients[1]
+    assert pigment.surface_potential_V == pytest.approx(-0.04)
+    assert pigment.hamaker_J == pytest.approx(5e-20)
+    assert form.liquid.ionic_strength_mol_per_L == pytest.approx(0.02)
+    # and back: a loaded scenario shows the same values
+    shown = state.values_from_formulation(form, values)
+    assert shown["ing1_interaction"] == "charged" and shown["ing1_potential"] == -40.0
+    assert shown["liq_salt"] == 20.0
+
+
+# issue 20: hostile uploads in the Open box. Deep nesting once raised a RecursionError (a red
+# exception box); unknown keys once warned only in the server log.
+def test_deeply_nested_upload_is_refused_with_a_message():
+    at = _app().run()
+    deep = b"[" * 100_000 + b"]" * 100_000
+    at.file_uploader(key="open_file").set_value(
+        ("deep.loadline.json", deep, "application/json")).run()
+    assert not at.exception
+    assert "deep.loadline.json" in messages(at) and "levels deep" in messages(at)
+    assert at.session_state["sc_name"] == demo().name      # the scenario is kept
+
+
+def test_unknown_keys_of_an_upload_reach_the_user():
+    import json
+
+    at = _app().run()
+    doc = json.loads(sc.dumps(demo()))
+    doc["colour"] = "blue"
+    doc["relations"]["parameters"]["phi_maxx"] = 0.6
+    at.file_uploader(key="open_file").set_value(
+        ("extra.loadline.json", json.dumps(doc).encode(), "application/json")).run()
+    assert not at.exception
+    shown = " ".join(w.value for w in at.warning)
+    assert "colour" in shown and "relations.parameters.phi_maxx" in shown

@@ -77,3 +77,16 @@ def test_simulation_runs_on_demand_only():
     sim = at.session_state["sz_sim"]
     assert 0.5 < sim["phi"] < 0.8
     assert any("Simulated φmax" in s.value for s in at.success)
+
+
+def test_size_table_with_very_many_classes_is_rebinned_with_a_note():
+    # issue 20: a 5 000-class table is rebinned onto sizes.MAX_CLASSES classes and the page
+    # says so (the note once reached only the server log). D50 of equal retained amounts on a
+    # log grid from 1 to 1000 um is sqrt(1 * 1000) = 31.6 um (by hand).
+    rows = "".join(f"{10 ** (3 * k / 5000):.9g},1\n" for k in range(5000))
+    at = page("sizes_packing", scenario="ceramic_slip").run()
+    at.file_uploader(key="sz_upload").set_value(
+        ("many.csv", ("size [um],retained [g]\n" + rows).encode(), "text/csv")).run()
+    assert not at.exception
+    assert "5000 size classes were rebinned" in messages(at)
+    assert metric(at, "D50") == widgets.fmt(31.6, 3)

@@ -25,7 +25,8 @@ def _shown(at) -> list[str]:
     return cells
 
 
-@pytest.mark.parametrize("view", ["loading_sweep", "flow_curve", "sizes_packing"])
+@pytest.mark.parametrize("view", ["loading_sweep", "flow_curve", "sizes_packing",
+                                  "process_checks"])
 def test_a_jammed_slip_is_said_in_words(view):
     # 95 wt% alumina is far past the packing limit of the invented slip.
     at = page(view, scenario="ceramic_slip", ing0_loading=95.0).run()

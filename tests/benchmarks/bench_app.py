@@ -122,6 +122,9 @@ CASES = [  # (name, scope, view, scenario, change, values factory, seed)
     ("Sizes & packing: change the median size", "page", "sizes_packing", "ceramic_slip",
      lambda at, v: at.number_input(key="sz_size").set_value(v), lambda: _numbers(2.0, 0.37),
      {"bl_powders": []}),
+    ("Particle forces: change the surface potential", "page", "particle_forces",
+     "ceramic_slip", lambda at, v: at.number_input(key="pf_potential").set_value(v),
+     lambda: _numbers(5.0, 3.1), {"pf_salt": 10.0}),
 ]
 
 

@@ -1,5 +1,6 @@
-"""Altair chart builders: DataFrames in, a Vega-Lite spec (dict) out; no physics, no
-Streamlit.
+"""Altair chart builders of the app and the report: DataFrames in, a Vega-Lite spec (dict)
+out; no physics, no Streamlit. One module for both (the report renders the same specs to
+SVG offline with `to_svg`); Altair is imported when the first chart is built.
 
 Colours are the Okabe-Ito palette (distinguishable with the common colour-vision
 deficiencies). Every axis carries a quantity and a unit. `big=True` is the presentation
@@ -11,10 +12,10 @@ from __future__ import annotations
 import json
 import math
 
-import altair as alt
 import numpy as np
 import pandas as pd
-from altair.utils import schemapi
+
+from ._lazy import LazyModule
 
 OKABE_ITO = ["#0072B2", "#D55E00", "#009E73", "#CC79A7", "#E69F00", "#56B4E9", "#000000",
              "#F0E442"]
@@ -41,10 +42,16 @@ def config(big: bool = False) -> dict:
     }
 
 
-# Altair checks every object against the Vega-Lite schema as it is built; that costs more
-# than the rest of a page run. The finished specs are checked once, in the tests
-# (tests/app/test_charts.py validates every builder's output), so the eager check is off.
-schemapi.disable_debug_mode()
+def _quiet_schema_checks(altair) -> None:
+    # Altair checks every object against the Vega-Lite schema as it is built; that costs
+    # more than the rest of a page run. The finished specs are checked once, in the tests
+    # (tests/app/test_charts.py validates every builder's output), so the eager check is off.
+    from altair.utils import schemapi
+
+    schemapi.disable_debug_mode()
+
+
+alt = LazyModule("altair", on_import=_quiet_schema_checks)
 
 
 class Figure:
@@ -227,21 +234,56 @@ def lines(data: pd.DataFrame, *, x: str, y: str, series: str, x_title: str, y_ti
     return fig.spec(chart, big)
 
 
-def to_png(spec: dict) -> bytes:
+def system_curve(curve: pd.DataFrame, *, x_title: str, y_title: str,
+                 point: dict | None = None, restart: float | None = None,
+                 big: bool = False) -> dict:
+    """Pressure drop against flow rate (columns flow, pressure, regime), the operating point
+    and the restart pressure as a dashed rule; log-log, to lay over a pump curve."""
+    fig = Figure()
+    regimes = ["laminar", "transitional", "turbulent"]
+    colour = alt.Color("regime:N", title="Regime", sort=regimes,
+                       scale=alt.Scale(domain=regimes, range=["#1f77b4", "#ff7f0e", "#d62728"]))
+    x = alt.X("flow:Q", title=x_title, scale=alt.Scale(type="log"))
+    y = alt.Y("pressure:Q", title=y_title, scale=alt.Scale(type="log"))
+    tips = [alt.Tooltip("flow:Q", format=".4g", title=x_title),
+            alt.Tooltip("pressure:Q", format=".4g", title=y_title),
+            alt.Tooltip("regime:N", title="Regime")]
+    parts = [fig.chart(curve).mark_line(strokeWidth=2.4, color="#555").encode(x=x, y=y),
+             fig.chart(curve).mark_circle(size=38).encode(x=x, y=y, color=colour,
+                                                          tooltip=tips)]
+    if restart is not None and restart > 0:
+        parts.append(fig.chart(pd.DataFrame({"pressure": [restart]})).mark_rule(
+            strokeDash=[6, 4], color="#7f7f7f").encode(
+            y="pressure:Q", tooltip=[alt.Tooltip("pressure:Q", format=".4g",
+                                                 title="Restart pressure")]))
+    if point is not None:
+        parts.append(fig.chart(pd.DataFrame([point])).mark_point(
+            shape="diamond", size=180, filled=True, color="black").encode(
+            x="flow:Q", y="pressure:Q", tooltip=tips[:2]))
+    chart = fig.layer(*parts, height=_height(big), width="container")
+    return fig.spec(chart, big)
+
+
+#: Width in pixels of an exported chart (PNG/SVG) drawn at the page's container width.
+EXPORT_WIDTH = 820
+
+
+def to_png(spec: dict, width: int = EXPORT_WIDTH) -> bytes:
     """The chart as PNG bytes, rendered offline by vl-convert."""
     import vl_convert as vlc
 
-    return vlc.vegalite_to_png(export_json(spec), scale=2)
+    return vlc.vegalite_to_png(export_json(spec, width), scale=2)
 
 
-def to_svg(spec: dict) -> str:
+def to_svg(spec: dict, width: int = EXPORT_WIDTH) -> str:
+    """The chart as SVG text, rendered offline by vl-convert (fonts bundled, no network)."""
     import vl_convert as vlc
 
-    return vlc.vegalite_to_svg(export_json(spec))
+    return vlc.vegalite_to_svg(export_json(spec, width))
 
 
-def export_json(spec: dict) -> str:
-    """The spec as standalone Vega-Lite JSON: data inlined, fixed width instead of the
+def export_json(spec: dict, width: int = EXPORT_WIDTH) -> str:
+    """The spec as standalone Vega-Lite JSON: data inlined, `width` pixels instead of the
     page's container width."""
     out = {k: v for k, v in spec.items() if k != "datasets"}
     out["datasets"] = {name: _records(frame) for name, frame in spec.get("datasets", {}).items()}
@@ -249,7 +291,7 @@ def export_json(spec: dict) -> str:
     def fix(node):
         if isinstance(node, dict):
             if node.get("width") == "container":
-                node["width"] = 820
+                node["width"] = width
             for value in node.values():
                 fix(value)
         elif isinstance(node, list):
@@ -282,8 +324,8 @@ def flow_curve(curve: pd.DataFrame, *, windows: pd.DataFrame, x_title: str, y_ti
     fixed width (for PNG/SVG export).
     """
     fig = Figure()
-    if joined:
-        width = 820
+    if joined and width == "container":
+        width = EXPORT_WIDTH
     lo = float(curve["rate"].min())
     hi = float(curve["rate"].max())
     x_scale = alt.Scale(type="log", domain=[lo, hi], nice=False)
@@ -626,4 +668,343 @@ def blend_curve(frame: pd.DataFrame, *, names: list[str], big: bool = False):
                  alt.Tooltip("share_3:Q", format=".0f"), alt.Tooltip("phi_max:Q", format=".4f")]
     ).properties(height=_height(big, 320), width="container",
                  title=f"Rest of the solids: {names[2]}")
+    return fig.spec(chart, big)
+
+
+def energy_curve(frame: pd.DataFrame, *, threshold_kT: float, big: bool = False) -> dict:
+    """Pair energy in kT against separation (log x): total and its terms, the zero line and
+    the barrier rule of thumb. `frame`: separation_nm, energy_kT, term. The y range is
+    clipped to the region that decides the verdict (deep wells run off the bottom)."""
+    fig = Figure()
+    total = frame.loc[frame["term"] == "total", "energy_kT"]
+    top = max(float(np.nanmax(total.clip(upper=1e4))) * 1.25 if len(total) else 0.0,
+              1.6 * threshold_kT)
+    bottom = max(min(float(np.nanmin(total)) * 1.25 if len(total) else 0.0, -10.0), -top)
+    names = list(dict.fromkeys(frame["term"]))
+    y = alt.Y("energy_kT:Q", title="Pair energy [kT]",
+              scale=alt.Scale(domain=[bottom, top], clamp=True))
+    curves = fig.chart(frame).mark_line(strokeWidth=2.4, clip=True).encode(
+        x=alt.X("separation_nm:Q", title="Surface separation [nm]",
+                scale=alt.Scale(type="log", nice=False,
+                                domain=[float(frame["separation_nm"].min()),
+                                        float(frame["separation_nm"].max())]),
+                axis=alt.Axis(format="~g", values=decades(float(frame["separation_nm"].min()),
+                                                          float(frame["separation_nm"].max())))),
+        y=y,
+        color=alt.Color("term:N", title="Term", scale=_palette(names), sort=names),
+        strokeDash=alt.condition(alt.datum.term == "total", alt.value([1, 0]), alt.value([5, 3])),
+        tooltip=[alt.Tooltip("term:N", title="Term"),
+                 alt.Tooltip("separation_nm:Q", format=".3g", title="Separation [nm]"),
+                 alt.Tooltip("energy_kT:Q", format=".3g", title="Energy [kT]")])
+    rules = pd.DataFrame({"energy_kT": [0.0, threshold_kT],
+                          "label": ["0", f"barrier rule of thumb {threshold_kT:g} kT"]})
+    lines = fig.chart(rules).mark_rule(color=GREY, strokeDash=[2, 2]).encode(
+        y=alt.Y("energy_kT:Q", scale=alt.Scale(domain=[bottom, top], clamp=True)),
+        tooltip=[alt.Tooltip("label:N", title="Line")])
+    chart = fig.layer(curves, lines, height=_height(big), width="container")
+    return fig.spec(chart, big)
+
+
+# --- design-space maps (the app page, the report and `loadline map --png`) ---------------
+
+MAP_LINE_COLOURS = [VERMILLION, PURPLE, ORANGE, SKY, BLUE, YELLOW]
+MAP_WIDTH, MAP_HEIGHT = 560, 440   # px; the triangle's marks are sized from them
+PACKING_LINE = "packing limit"
+FEASIBLE_LINE = "feasible region"
+NO_FLOW = "#4D4D4D"
+
+
+def boundary_segments(x, y, mask) -> pd.DataFrame:
+    """Cell edges of a regular grid where a boolean field changes: x, y, x2, y2.
+
+    `x`, `y` are the cell centres (any order, each pair once); the edges lie half a step
+    from the centres, so the segments outline the region where `mask` is true.
+    """
+    x, y, mask = (np.asarray(v) for v in (x, y, mask))
+    xs, ys = np.unique(x), np.unique(y)
+    if xs.size < 2 or ys.size < 2:
+        return pd.DataFrame(columns=["x", "y", "x2", "y2"])
+    grid = np.zeros((ys.size, xs.size), dtype=bool)
+    grid[np.searchsorted(ys, y), np.searchsorted(xs, x)] = mask.astype(bool)
+    dx, dy = (xs[-1] - xs[0]) / (xs.size - 1), (ys[-1] - ys[0]) / (ys.size - 1)
+    pad = np.pad(grid, 1)                              # outside the map counts as False
+    rows = []
+    vertical = pad[1:-1, 1:] != pad[1:-1, :-1]         # between column i-1 and i
+    for j, i in zip(*np.nonzero(vertical), strict=True):
+        edge = xs[0] + (i - 0.5) * dx
+        if 0 < i < xs.size:                            # the map's own frame is not a limit
+            rows.append((edge, ys[j] - dy / 2, edge, ys[j] + dy / 2))
+    horizontal = pad[1:, 1:-1] != pad[:-1, 1:-1]
+    for j, i in zip(*np.nonzero(horizontal), strict=True):
+        edge = ys[0] + (j - 0.5) * dy
+        if 0 < j < ys.size:
+            rows.append((xs[i] - dx / 2, edge, xs[i] + dx / 2, edge))
+    return pd.DataFrame(rows, columns=["x", "y", "x2", "y2"])
+
+
+def design_map_chart(cells: pd.DataFrame, *, x_title: str, y_title: str, colour_title: str,
+                     windows=(), current: dict | None = None, width=MAP_WIDTH,
+                     height=MAP_HEIGHT, selectable: bool = False,
+                     title: str | None = "Design map") -> dict:
+    """Viscosity over two loadings: log-coloured cells, packing limit, window limits.
+
+    `cells` has x, y (the loadings as shown), value (viscosity in the shown unit; NaN or inf
+    where there is no flow), headroom (phi/phi_max), regime, and optionally x_loading,
+    y_loading (what a click selects), feasible and one bool column per window. `windows`:
+    (label, column) pairs. `current`: {"x", "y"} of the scenario's own recipe. Returns the
+    Vega-Lite spec as a dict; with `selectable`, clicking a cell selects it (param "cell").
+    """
+    data = cells.replace([np.inf, -np.inf], np.nan).copy()
+    xs, ys = np.unique(data["x"]), np.unique(data["y"])
+    dx = (xs[-1] - xs[0]) / max(xs.size - 1, 1)
+    dy = (ys[-1] - ys[0]) / max(ys.size - 1, 1)
+    data["x0"], data["x1"] = data["x"] - dx / 2, data["x"] + dx / 2
+    data["y0"], data["y1"] = data["y"] - dy / 2, data["y"] + dy / 2
+    x_scale = alt.Scale(domain=[float(xs[0] - dx / 2), float(xs[-1] + dx / 2)], nice=False,
+                        zero=False)
+    y_scale = alt.Scale(domain=[float(ys[0] - dy / 2), float(ys[-1] + dy / 2)], nice=False,
+                        zero=False)
+    x_enc = alt.X("x0:Q", scale=x_scale, title=x_title)
+    y_enc = alt.Y("y0:Q", scale=y_scale, title=y_title)
+    tips = [alt.Tooltip("x:Q", format=".4g", title=x_title),
+            alt.Tooltip("y:Q", format=".4g", title=y_title),
+            alt.Tooltip("value:Q", format=".4g", title=colour_title),
+            alt.Tooltip("headroom:Q", format=".3f", title="φ/φmax"),
+            alt.Tooltip("regime:N", title="regime")]
+    if "feasible" in data:
+        tips.append(alt.Tooltip("feasible:N", title="inside every window"))
+    flowing = data[data["value"].notna() & (data["value"] > 0)]
+    layers = []
+    heat = alt.Chart(flowing).mark_rect().encode(
+        x=x_enc, x2="x1:Q", y=y_enc, y2="y1:Q", tooltip=tips,
+        color=alt.Color("value:Q", title=colour_title,
+                        scale=alt.Scale(type="log", scheme="viridis"),
+                        legend=alt.Legend(orient="right", direction="vertical",
+                                          format=",~g", gradientLength=220)))
+    if selectable:
+        heat = heat.add_params(alt.selection_point(name="cell", on="click", clear="dblclick",
+                                                   fields=["x_loading", "y_loading"]))
+    layers.append(heat)
+    stopped = data[~(data["value"].notna() & (data["value"] > 0))]
+    if len(stopped):
+        layers.append(alt.Chart(stopped).mark_rect(color=NO_FLOW, opacity=0.85).encode(
+            x=x_enc, x2="x1:Q", y=y_enc, y2="y1:Q", tooltip=tips))
+    if "feasible" in data and data["feasible"].any():
+        # Stippled, so the colours keep their meaning under the shading.
+        layers.append(alt.Chart(data[data["feasible"].astype(bool)]).mark_point(
+            shape="circle", filled=True, color="#FFFFFF", stroke=GREEN, strokeWidth=1,
+            opacity=0.9, size=40).encode(x=alt.X("x:Q", scale=x_scale, title=x_title),
+                                         y=alt.Y("y:Q", scale=y_scale, title=y_title),
+                                         tooltip=tips))
+    # Drawn in this order: the feasible outline (wide, underneath), the windows (dashed),
+    # the packing limit on top; where limits coincide each stays visible.
+    lines = []
+    if "feasible" in data:
+        lines.append((FEASIBLE_LINE, data["feasible"].astype(bool), GREEN, 6, [1, 0]))
+    lines += [(label, data[column].astype(bool), colour, 2.5, [7, 4])
+              for (label, column), colour in zip(windows, MAP_LINE_COLOURS, strict=False)]
+    lines.append((PACKING_LINE, data["headroom"].fillna(np.inf) < 1.0, "#000000", 3, [1, 0]))
+    drawn = [(label, colour, width, dash,
+              boundary_segments(data["x"], data["y"], mask).assign(line=label))
+             for label, mask, colour, width, dash in lines]
+    drawn = [item for item in drawn if len(item[4])]   # only limits that cross the map
+    scale = alt.Scale(domain=[d[0] for d in drawn], range=[d[1] for d in drawn])
+    limits = [alt.Chart(segments).mark_rule(strokeWidth=width, strokeDash=dash).encode(
+        x=alt.X("x:Q", scale=x_scale, title=x_title), x2="x2:Q",
+        y=alt.Y("y:Q", scale=y_scale, title=y_title), y2="y2:Q",
+        color=alt.Color("line:N", title="Limits", scale=scale,
+                        legend=alt.Legend(orient="bottom", direction="horizontal",
+                                          symbolStrokeWidth=3)))
+        for _label, _colour, width, dash, segments in drawn]
+    if limits:                  # one legend for all limits, apart from the colour bar
+        layers.append(alt.layer(*limits))
+    if current is not None:
+        dot = pd.DataFrame([{"x": float(current["x"]), "y": float(current["y"]),
+                             "label": "current recipe"}])
+        base = alt.Chart(dot).encode(x=alt.X("x:Q", scale=x_scale, title=x_title),
+                                     y=alt.Y("y:Q", scale=y_scale, title=y_title))
+        layers.append(base.mark_point(shape="diamond", filled=True, color="#FFFFFF",
+                                      stroke="#000000", strokeWidth=1.5, size=180))
+        layers.append(base.mark_text(align="left", dx=10, dy=-10, color="#000000",
+                                     fontWeight="bold").encode(text="label:N"))
+    chart = alt.layer(*layers).resolve_scale(color="independent").properties(
+        width=width, height=height)
+    if title:
+        chart = chart.properties(title=title)
+    return chart.to_dict(validate=False)
+
+
+def ternary_chart(cells: pd.DataFrame, *, parts: list[str], colour_title: str,
+                  current: dict | None = None, width=MAP_WIDTH, height=MAP_HEIGHT,
+                  title: str | None = "Design triangle") -> dict:
+    """Viscosity over a triangle of three parts' shares (share_1..3 sum to 1).
+
+    `cells` has share_1, share_2, share_3, value (viscosity as shown; NaN or inf where there
+    is no flow), headroom, regime and optionally feasible. Part 1 sits at the lower left
+    corner, part 2 at the lower right, part 3 at the top. Returns the Vega-Lite spec.
+    """
+    data = cells.replace([np.inf, -np.inf], np.nan).copy()
+    data["tx"] = data["share_2"] + data["share_3"] / 2
+    data["ty"] = data["share_3"] * np.sqrt(3) / 2
+    n = int(round(1.0 / data["share_1"][data["share_1"] > 0].min())) + 1 if (
+        data["share_1"] > 0).any() else 2
+    size = (0.8 * min(width if isinstance(width, int | float) else MAP_WIDTH, height) / n) ** 2
+    axis = alt.Axis(labels=False, ticks=False, grid=False, domain=False, title=None)
+    scale = alt.Scale(domain=[-0.08, 1.08], nice=False)
+    x_enc = alt.X("tx:Q", scale=scale, axis=axis)
+    y_enc = alt.Y("ty:Q", scale=alt.Scale(domain=[-0.08, 0.95], nice=False), axis=axis)
+    tips = [alt.Tooltip(f"share_{k}:Q", format=".0%", title=parts[k - 1]) for k in (1, 2, 3)]
+    tips += [alt.Tooltip("value:Q", format=".4g", title=colour_title),
+             alt.Tooltip("headroom:Q", format=".3f", title="φ/φmax"),
+             alt.Tooltip("regime:N", title="regime")]
+    if "feasible" in data:
+        tips.append(alt.Tooltip("feasible:N", title="inside every window"))
+    flowing = data["value"].notna() & (data["value"] > 0)
+    layers = [alt.Chart(data[flowing]).mark_point(shape="triangle-up", filled=True, opacity=1,
+                                                  size=size).encode(
+        x=x_enc, y=y_enc, tooltip=tips,
+        color=alt.Color("value:Q", title=colour_title,
+                        scale=alt.Scale(type="log", scheme="viridis"),
+                        legend=alt.Legend(orient="right", direction="vertical",
+                                          format=",~g")))]
+    if (~flowing).any():
+        layers.append(alt.Chart(data[~flowing]).mark_point(
+            shape="triangle-up", filled=True, opacity=0.85, color=NO_FLOW, size=size).encode(
+            x=x_enc, y=y_enc, tooltip=tips))
+    if "feasible" in data and data["feasible"].any():     # stippled, as on the map
+        layers.append(alt.Chart(data[data["feasible"].astype(bool)]).mark_point(
+            shape="circle", filled=True, color="#FFFFFF", stroke=GREEN, strokeWidth=1,
+            opacity=0.9, size=40).encode(x=x_enc, y=y_enc, tooltip=tips))
+    h = np.sqrt(3) / 2
+    frame = pd.DataFrame({"tx": [0.0, 1.0, 0.5, 0.0], "ty": [0.0, 0.0, h, 0.0],
+                          "order": [0, 1, 2, 3]})
+    layers.append(alt.Chart(frame).mark_line(color="#000000", strokeWidth=1.2).encode(
+        x=x_enc, y=y_enc, order="order:Q"))
+    corners = pd.DataFrame({"tx": [0.0, 1.0, 0.5], "ty": [-0.05, -0.05, h + 0.04],
+                            "label": parts})
+    layers.append(alt.Chart(corners).mark_text(fontWeight="bold").encode(
+        x=x_enc, y=y_enc, text="label:N"))
+    if current is not None and all(np.isfinite(current.get(f"share_{k}", np.nan))
+                                   for k in (1, 2, 3)):
+        dot = pd.DataFrame([{"tx": current["share_2"] + current["share_3"] / 2,
+                             "ty": current["share_3"] * h, "label": "current recipe"}])
+        layers.append(alt.Chart(dot).mark_point(shape="diamond", filled=True, color="#FFFFFF",
+                                                stroke="#000000", strokeWidth=1.5,
+                                                size=180).encode(x=x_enc, y=y_enc))
+        layers.append(alt.Chart(dot).mark_text(align="left", dx=10, dy=-10,
+                                                fontWeight="bold").encode(
+            x=x_enc, y=y_enc, text="label:N"))
+    chart = alt.layer(*layers).resolve_scale(color="independent").properties(
+        width=width, height=height)
+    if title:
+        note = "grey: no flow (packing limit) or no liquid"
+        if "feasible" in data:
+            note += "; white dots: inside every window"
+        chart = chart.properties(title=alt.TitleParams(title, subtitle=note))
+    return chart.to_dict(validate=False)
+
+
+def _shown_cells(grid: pd.DataFrame, viscosity_unit: str) -> pd.DataFrame:
+    from .units import from_si
+
+    cells = pd.DataFrame({
+        "value": from_si(grid["viscosity_Pa_s"].to_numpy(dtype=float), viscosity_unit,
+                         "viscosity"),
+        "headroom": grid["phi_over_phi_max"].to_numpy(dtype=float),
+        "regime": grid["regime"].astype(str).to_numpy()})
+    for w in grid.attrs.get("windows", []):
+        cells[w["column"]] = grid[f"{w['column']}_pass"].to_numpy()
+    if "feasible" in grid:
+        cells["feasible"] = grid["feasible"].to_numpy()
+    return cells
+
+
+def loading_map_chart(grid: pd.DataFrame, viscosity_unit: str = "Pa*s", *, width=MAP_WIDTH,
+                      height=MAP_HEIGHT, selectable: bool = False,
+                      title: str | None = None) -> dict:
+    """The chart of a `design.loading_map` result: loadings in wt% or vol%, viscosity in
+    `viscosity_unit`, each window's limit as a line, the current recipe marked."""
+    unit = "wt%" if grid.attrs.get("basis", "mass") == "mass" else "vol%"
+    cells = _shown_cells(grid, viscosity_unit)
+    cells["x"] = 100 * grid["x_loading"].to_numpy(dtype=float)
+    cells["y"] = 100 * grid["y_loading"].to_numpy(dtype=float)
+    cells["x_loading"], cells["y_loading"] = grid["x_loading"], grid["y_loading"]
+    now = grid.attrs.get("current")
+    current = None if now is None else {"x": 100 * now["x_loading"], "y": 100 * now["y_loading"]}
+    rate = grid.attrs.get("shear_rate_1_per_s")
+    windows = [(f"{w['name']} limit", w["column"]) for w in grid.attrs.get("windows", [])]
+    return design_map_chart(
+        cells, x_title=f"{grid.attrs.get('x_ingredient', 'x')} [{unit}]",
+        y_title=f"{grid.attrs.get('y_ingredient', 'y')} [{unit}]",
+        colour_title=f"viscosity at {rate:g} 1/s [{viscosity_unit}]" if rate else
+        f"viscosity [{viscosity_unit}]", windows=windows, current=current, width=width,
+        height=height, selectable=selectable, title=title)
+
+
+def loading_ternary_chart(tri: pd.DataFrame, viscosity_unit: str = "Pa*s", *,
+                          width=MAP_WIDTH, height=MAP_HEIGHT,
+                          title: str | None = None) -> dict:
+    """The chart of a `design.loading_ternary` result (shares of the triangle's total)."""
+    cells = _shown_cells(tri, viscosity_unit)
+    for k in (1, 2, 3):
+        cells[f"share_{k}"] = tri[f"share_{k}"].to_numpy(dtype=float)
+    unit = "wt%" if tri.attrs.get("basis", "mass") == "mass" else "vol%"
+    total = tri.attrs.get("total", float("nan"))
+    parts = list(tri.attrs.get("parts", ["1", "2", "3"]))
+    rate = tri.attrs.get("shear_rate_1_per_s")
+    return ternary_chart(
+        cells, parts=parts, colour_title=f"viscosity at {rate:g} 1/s [{viscosity_unit}]"
+        if rate else f"viscosity [{viscosity_unit}]", current=tri.attrs.get("current"),
+        width=width, height=height,
+        title=title or f"Shares of {100 * total:.3g} {unit} in total")
+
+
+def design_map(grid: pd.DataFrame, viscosity_unit: str, big: bool = False,
+               joined: bool = False) -> dict:
+    """The chart of `design.loading_map` for the app, the report and the CLI; on the page
+    (`joined` False: container width) clicking a cell selects it (selection "cell")."""
+    spec = loading_map_chart(grid, viscosity_unit, width=EXPORT_WIDTH if joined else "container",
+                             height=_height(big, MAP_HEIGHT), selectable=not joined)
+    spec["config"] = config(big)
+    return spec
+
+
+def design_triangle(tri: pd.DataFrame, viscosity_unit: str, big: bool = False,
+                    joined: bool = False) -> dict:
+    """The chart of `design.loading_ternary` for the app, the report and the CLI."""
+    spec = loading_ternary_chart(tri, viscosity_unit,
+                                 width=EXPORT_WIDTH if joined else "container",
+                                 height=_height(big, MAP_HEIGHT))
+    spec["config"] = config(big)
+    return spec
+
+
+def points_and_lines(points: pd.DataFrame, lines_: pd.DataFrame, *, x: str, y: str,
+                     series: str, x_title: str, y_title: str, series_title: str,
+                     x_log: bool = True, y_log: bool = True, title: str = "",
+                     big: bool = False) -> dict:
+    """Measured points and fitted lines, one colour per series (flow curves, step tests,
+    slip at several gaps, a parameter against loading)."""
+    fig = Figure()
+    names = list(dict.fromkeys([*points[series], *(lines_[series] if len(lines_) else [])]))
+    colour = alt.Color(f"{series}:N", title=series_title, scale=_palette(names), sort=names)
+    xs = alt.X(f"{x}:Q", title=x_title, scale=alt.Scale(type="log" if x_log else "linear"))
+    ys = alt.Y(f"{y}:Q", title=y_title, scale=alt.Scale(type="log" if y_log else "linear"))
+    tips = [alt.Tooltip(f"{series}:N", title=series_title),
+            alt.Tooltip(f"{x}:Q", format=".4g", title=x_title),
+            alt.Tooltip(f"{y}:Q", format=".4g", title=y_title)]
+    keep = np.isfinite(points[x]) & np.isfinite(points[y])
+    if x_log:
+        keep &= points[x] > 0
+    if y_log:
+        keep &= points[y] > 0
+    dots = fig.chart(points[keep]).mark_point(filled=True, size=55 if not big else 90,
+                                              opacity=0.85).encode(
+        x=xs, y=ys, color=colour, tooltip=tips)
+    parts = [dots]
+    if len(lines_):
+        parts.append(fig.chart(lines_).mark_line(strokeWidth=2.2).encode(
+            x=xs, y=ys, color=colour, tooltip=tips))
+    chart = fig.layer(*parts, height=_height(big, 340), width="container",
+                      **({"title": title} if title else {}))
     return fig.spec(chart, big)
