@@ -30,8 +30,8 @@ import pandas as pd
 
 from . import composition, interactions, liquids, packing, shear, sizes
 from .errors import InputRangeError
+from .flowset import ZERO_SHEAR_RATIO, add_yield_stress, droplet_medium, network_yield_stress
 from .registry import get_model
-from .viscosity import relative_viscosity
 
 SOLID, DROPLET = "solid", "droplet"
 #: Most dispersed ingredients read from a file (scenario or candidate table). A real
@@ -331,24 +331,6 @@ def droplet_relation(formulation: Formulation, mix: Mixture) -> tuple[str, dict]
     return spec.name, params
 
 
-def droplet_medium(model: str, params: dict, phi_droplets, phi_solids):
-    """Relative viscosity of droplets in the liquid, vectorised over rows (1 without).
-
-    The droplets' fraction is counted in the liquid + droplets: phi_d / (1 - phi_solids).
-    Through the dispatcher, so that droplets past a relation's range are reported.
-    """
-    phi_d = np.asarray(phi_droplets, dtype=float)
-    has = phi_d > 0.0
-    if not np.any(has):
-        return np.ones(np.shape(phi_d)) if np.ndim(phi_d) else 1.0
-    share = np.minimum(phi_d / np.maximum(1.0 - np.asarray(phi_solids, float), 1e-12), 1.0)
-    value = relative_viscosity(np.where(has, share, 0.0), model=model, **params)
-    return np.where(has, value, 1.0)
-
-
-#: Zero-shear over high-shear packing limit of Brownian hard spheres, 0.63/0.71 (de Kruif et
-#: al., J. Chem. Phys. 83, 4717, 1985; from memory, not checked against the source).
-ZERO_SHEAR_RATIO = 0.63 / 0.71
 #: Frictional over frictionless jamming point, 0.58/0.64 (Wyart & Cates 2014 and Singh et al.
 #: 2018 for friction coefficients near 1; from memory, not checked against the source).
 FRICTIONAL_RATIO = 0.58 / 0.64
@@ -387,18 +369,52 @@ def _solid_radius_m(formulation: Formulation, mix: Mixture) -> float | None:
     return float(volume.sum() / np.sum(volume / radius))
 
 
+def row_inputs(formulation: Formulation, mix: Mixture | None = None) -> dict:
+    """The resolved inputs of one formulation, one row of a `FormulationSet`.
+
+    `mix` (default `formulation.mixture`) may be a mixture scaled in place. See
+    `predict` for the choices made. `engine.stack` and `engine.vary` stack these rows.
+    """
+    mix = mix or mixture(formulation)
+    law, params = liquid_law_of(formulation.liquid)
+    spec = get_model(formulation.model, kind="suspension")
+    rel = spec.check_params(_relation_params(spec, mix, formulation.model_params))
+    phi_max = float(rel.pop("phi_max", mix.phi_max))
+    droplet_model, droplet_params = droplet_relation(formulation, mix)
+    onset = formulation.thickening_onset_stress_Pa
+    frictional = formulation.phi_max_frictional
+    if onset is not None and frictional is None:
+        frictional = FRICTIONAL_RATIO * phi_max
+    radius = _solid_radius_m(formulation, mix)
+    if mix.phi_solids_effective > 0:
+        swelling = mix.phi_solids_effective / mix.phi_solids
+    else:
+        swelling = float(np.mean(mix.swelling[mix.is_solid])) if mix.is_solid.any() else 1.0
+    return {
+        "phi": mix.phi_solids_effective, "phi_solids": mix.phi_solids, "swelling": swelling,
+        "phi_droplets": mix.phi_droplets, "phi_max": phi_max,
+        "phi_max_frictional": np.nan if onset is None else float(frictional),
+        "onset_stress_Pa": np.nan if onset is None else float(onset),
+        "radius_m": np.nan if radius is None else radius,
+        "temperature_K": formulation.liquid.temperature_K, "yield_stress_Pa": 0.0,
+        "has_solids": bool(mix.is_solid.any()),
+        "liquid_law": law, "liquid_params": params, "relation": spec.name,
+        "relation_params": rel, "droplet_model": droplet_model,
+        "droplet_params": droplet_params,
+        "network": flocculation_network(formulation, mix),
+    }
+
+
 def flow_curve_of(formulation: Formulation, shear_rate_1_per_s=None,
                   mix: Mixture | None = None):
     """The `shear.FlowCurve` of a formulation: one row of the engine, with its markers.
 
-    The row's inputs are `engine.row_inputs` (see `predict` for the choices made) and the
+    The row's inputs are `row_inputs` (see `predict` for the choices made) and the
     solve is `shear.flow_curve`, the one-row case of `shear.flow_curves` that
     `engine.evaluate` runs over many rows.
     """
-    from . import engine
-
     rates = _rates(shear_rate_1_per_s)
-    row = engine.row_inputs(formulation, mix)
+    row = row_inputs(formulation, mix)
     phi = row["phi"]
     medium = float(droplet_medium(row["droplet_model"], row["droplet_params"],
                                   row["phi_droplets"], row["phi_solids"]))
@@ -561,11 +577,11 @@ def loading_sweep(formulation: Formulation, phi=None, n: int = 200,
         eta_r = relative_viscosity_at(formulation, grid, mix)
         eta = eta_r * mix.liquid_viscosity_Pa_s
     else:
-        from . import engine
+        from . import flowset
 
         rate = _rates(shear_rate_1_per_s)[:1]
-        row = engine.from_rows([engine.row_inputs(formulation, mix)])
-        res = engine.evaluate(row.take(np.zeros(grid.size, int)).at_loading(grid), rate)
+        row = flowset.from_rows([row_inputs(formulation, mix)])
+        res = flowset.evaluate(row.take(np.zeros(grid.size, int)).at_loading(grid), rate)
         eta, eta_r = res.viscosity_Pa_s[:, 0], res.relative_viscosity[:, 0]
     frame = pd.DataFrame({
         "phi": grid,
@@ -630,13 +646,13 @@ def max_loading(formulation: Formulation, viscosity_limit_Pa_s: float,
     float
         Total effective solid volume fraction. [-]
     """
-    from . import engine
+    from . import flowset
 
-    fs = engine.stack([formulation])
-    phi, reason = engine.max_loading(fs, viscosity_limit_Pa_s, shear_rate_1_per_s)
+    fs = flowset.from_rows([row_inputs(formulation)])
+    phi, reason = flowset.max_loading(fs, viscosity_limit_Pa_s, shear_rate_1_per_s)
     if reason[0] == "liquid":
         rate = float(shear_rate_1_per_s)
-        eta = float(engine.evaluate(fs.at_loading(0.0), [rate]).viscosity_Pa_s[0, 0])
+        eta = float(flowset.evaluate(fs.at_loading(0.0), [rate]).viscosity_Pa_s[0, 0])
         warnings.warn(f"even the liquid without solids (with its droplets, if any) is "
                       f"{eta:.4g} Pa*s at {rate:g} 1/s, above the limit "
                       f"{float(viscosity_limit_Pa_s):.4g} Pa*s: no solid loading meets it "
@@ -785,20 +801,6 @@ def flocculation_network(formulation: Formulation, mix: Mixture | None = None):
     return (float(phi0), float(mix.phi_max), tuple(terms))
 
 
-def network_yield_stress(network, phi_solids_effective):
-    """Yield stress [Pa] of a `flocculation_network` at effective solid fractions (0 if None)."""
-    phi = np.asarray(phi_solids_effective, dtype=float)
-    if network is None:
-        return 0.0 if phi.ndim == 0 else np.zeros_like(phi)
-    phi0, phi_max, terms = network
-    tau = 0.0
-    for share, diameter, hamaker, separation, size_factor in terms:
-        tau = tau + share * interactions.yodel_yield_stress(
-            np.minimum(phi, 1.0), phi0, phi_max, diameter, hamaker, separation,
-            size_factor=size_factor)
-    return float(tau) if np.ndim(tau) == 0 else tau
-
-
 def _with_added_yield_stress(curve: shear.FlowCurve, yield_stress_Pa: float) -> shear.FlowCurve:
     """The flow curve with a network yield stress added to its stress (Herschel-Bulkley-like:
     sigma = tau_y + sigma_suspension(rate)), on top of any yield stress of the liquid.
@@ -821,20 +823,6 @@ def _with_added_yield_stress(curve: shear.FlowCurve, yield_stress_Pa: float) -> 
                                relative_viscosity=viscosity / curve.liquid_viscosity_Pa_s,
                                regime=regime, markers=markers,
                                warnings=tuple(curve.warnings) + (note,))
-
-
-def add_yield_stress(shear_rate_1_per_s, shear_stress_Pa, regime, yield_stress_Pa):
-    """A network yield stress added to flow curves (Herschel-Bulkley-like), array-wise.
-
-    sigma = tau_y + sigma_suspension(rate); "yield" where tau_y carries more than half the
-    stress (jammed points stay jammed). Arrays broadcast: rates (M,), stresses and regimes
-    (M,) or (N, M), tau_y a float or (N, 1). Returns (stress, viscosity, regime).
-    """
-    tau = np.asarray(yield_stress_Pa, dtype=float)
-    sigma = np.asarray(shear_stress_Pa, dtype=float) + tau
-    regime = np.asarray(regime)
-    regime = np.where((tau > 0) & (sigma < 2.0 * tau) & (regime != "jammed"), "yield", regime)
-    return sigma, sigma / shear_rate_1_per_s, regime.astype(str)
 
 
 def interaction_rows(formulation: Formulation) -> list[dict]:
