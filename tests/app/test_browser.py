@@ -39,7 +39,7 @@ WAIT_MS = 60_000
 PAGES = {"Loading sweep": "loading-sweep", "Flow curve": "flow-curve",
          "Sizes & packing": "sizes-packing", "Droplets": "droplets",
          "Calibrate": "calibrate", "Design map": "design-map", "Batch screen": "batch-screen",
-         "Particle forces": "particle-forces"}
+         "Process checks": "process-checks", "Particle forces": "particle-forces"}
 
 
 def _need_browser() -> None:
@@ -214,6 +214,7 @@ def test_every_page_opens_and_is_saved_as_a_screenshot(page):
         assert not page.get_by_test_id("stException").count()
         assert not page.get_by_text("unexpected problem").count()
         _shot(page, name)
+    _go(page, "Batch screen")
     page.get_by_role("button", name="Use the demo candidates").click()
     _settled(page)
     page.get_by_role("button", name="Screen the candidates").click()
