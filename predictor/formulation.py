@@ -68,6 +68,13 @@ class Liquid:
         For a non-Newtonian law this is its apparent viscosity at 1 1/s (a reference value
         for viscosity ratios and the Newtonian sweep; flow curves use the whole law).
         """
+        cached = self.__dict__.get("_newtonian_viscosity")   # many rows share one liquid
+        if cached is None:
+            cached = self._newtonian_viscosity_Pa_s()
+            object.__setattr__(self, "_newtonian_viscosity", cached)
+        return cached
+
+    def _newtonian_viscosity_Pa_s(self) -> float:
         if self.preset == "water":
             return float(liquids.water_viscosity(self.temperature_K))
         if self.preset == "glycerol-water":
@@ -349,6 +356,14 @@ def liquid_law_of(liquid: Liquid) -> tuple[str, dict]:
     `Liquid.shift_factor()` (1 when no activation temperature is given); yield stresses
     and flow indices are kept.
     """
+    cached = liquid.__dict__.get("_law")     # many rows share one liquid
+    if cached is None:
+        cached = _liquid_law_of(liquid)
+        object.__setattr__(liquid, "_law", cached)
+    return cached[0], dict(cached[1])
+
+
+def _liquid_law_of(liquid: Liquid) -> tuple[str, dict]:
     if liquid.preset:
         return "newtonian", {"viscosity_Pa_s": liquid.newtonian_viscosity_Pa_s()}
     spec = get_model(liquid.law, kind="liquid")

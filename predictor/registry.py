@@ -7,6 +7,7 @@ read this registry, so adding a relation is one function plus its decorator.
 
 from __future__ import annotations
 
+import functools
 import inspect
 from collections.abc import Callable
 from dataclasses import dataclass
@@ -45,13 +46,8 @@ class ModelSpec:
     phi_range_relative: bool = False
 
     def defaults(self) -> dict[str, float]:
-        """Default parameter values, read from the function signature."""
-        sig = inspect.signature(self.func)
-        return {
-            p.name: p.default
-            for p in sig.parameters.values()
-            if p.default is not inspect.Parameter.empty and p.name in self.param_names()
-        }
+        """Default parameter values, read from the function signature (a fresh dict)."""
+        return dict(_signature_defaults(self.func, self.param_names()))
 
     def param_names(self) -> tuple[str, ...]:
         return tuple(p.name for p in self.params)
@@ -237,3 +233,12 @@ if __name__ == "__main__":
         (pathlib.Path(__file__).parent / SNAPSHOT).write_text(snapshot_text())
     else:
         raise SystemExit("usage: python -m predictor.registry --readme | --snapshot")
+
+
+@functools.lru_cache(maxsize=1024)
+def _signature_defaults(func, names: tuple[str, ...]) -> tuple[tuple[str, object], ...]:
+    """(name, default) of `func`'s parameters in `names` (read once per function: the engine
+    and the batch ask for them once per row)."""
+    sig = inspect.signature(func)
+    return tuple((p.name, p.default) for p in sig.parameters.values()
+                 if p.default is not inspect.Parameter.empty and p.name in names)
