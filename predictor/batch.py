@@ -631,21 +631,26 @@ class _Rows:
 
 
 def _read_cells(chunk: pd.DataFrame, layout: Layout, row_errors=None) -> _Rows:
+    """The chunk's cells as SI arrays (numbers) and stripped texts, bad cells flagged.
+
+    Vectorised per column: the cells are stripped and parsed in pyarrow's compute kernels
+    (`_strip`, `_parse_numbers`); a message is built only for the rows that need one.
+    """
     rows = _Rows(len(chunk), np.full(len(chunk), None, dtype=object))
     if row_errors is not None:   # from read_table: rows whose cells could not be aligned
         row_errors = np.asarray(row_errors, dtype=object)
         rows.flag(row_errors != "", row_errors)
     for col in layout.columns:
-        raw = chunk[col.header].astype(str).str.strip()
+        raw = _strip(chunk[col.header])
         key = (col.field, col.index)
         if col.dimension == "text":
-            rows.texts[key] = raw.to_numpy(dtype=object)
+            rows.texts[key] = raw.to_numpy(zero_copy_only=False).astype(object)
             continue
-        value = np.array(pd.to_numeric(raw, errors="coerce"), dtype=float)
-        bad = (raw.to_numpy(dtype=object) != "") & ~np.isfinite(value)
+        value, given = _parse_numbers(raw)
+        bad = given & ~np.isfinite(value)
         if bad.any():
-            rows.flag(bad, np.array([f"column '{col.header}' = {c!r} is not allowed; expected "
-                                     "a finite number." for c in raw], dtype=object))
+            rows.flag(bad, _messages(bad, raw, lambda c: (
+                f"column '{col.header}' = {c!r} is not allowed; expected a finite number.")))
             value[bad] = np.nan
         with np.errstate(over="ignore", invalid="ignore"):
             si = col.offset + col.scale * value
@@ -654,25 +659,69 @@ def _read_cells(chunk: pd.DataFrame, layout: Layout, row_errors=None) -> _Rows:
     return rows
 
 
+def _strip(cells: pd.Series):
+    """A column's cells as a pyarrow string array, surrounding whitespace removed."""
+    import pyarrow as pa
+    import pyarrow.compute as pc
+
+    try:
+        arr = pa.array(cells, type=pa.string(), from_pandas=True)
+    except (pa.ArrowInvalid, pa.ArrowTypeError):     # cells that are not all text
+        arr = pa.array(cells.astype(str).to_numpy(dtype=object), type=pa.string())
+    return pc.utf8_trim_whitespace(pc.fill_null(arr, ""))
+
+
+def _parse_numbers(raw) -> tuple[np.ndarray, np.ndarray]:
+    """Floats of stripped text cells (NaN where empty or not a number), and where given.
+
+    pyarrow's parser for a clean column (the same doubles as `pandas.to_numeric`, checked
+    in the tests); `pandas.to_numeric` with errors="coerce" when a cell is not a number.
+    """
+    import pyarrow as pa
+    import pyarrow.compute as pc
+
+    given = pc.not_equal(raw, "")
+    try:
+        value = pc.cast(pc.if_else(given, raw, None), pa.float64())
+        value = value.to_numpy(zero_copy_only=False).astype(float, copy=True)
+    except (pa.ArrowInvalid, pa.ArrowNotImplementedError):
+        value = np.array(pd.to_numeric(pd.Series(raw.to_numpy(zero_copy_only=False)
+                                                 .astype(object)), errors="coerce"),
+                         dtype=float)
+    return value, given.to_numpy(zero_copy_only=False).astype(bool)
+
+
+def _messages(mask: np.ndarray, cells, make: Callable[[object], str]) -> np.ndarray:
+    """`make(cell)` for the rows where `mask` (others empty): messages only where needed.
+
+    `cells` is a pyarrow array or a numpy array over the rows.
+    """
+    out = np.full(len(mask), "", dtype=object)
+    where = np.flatnonzero(mask)
+    picked = cells.take(where).to_pylist() if hasattr(cells, "to_pylist") else \
+        np.asarray(cells)[where].tolist()
+    out[where] = [make(cell) for cell in picked]
+    return out
+
+
 #: Highest shear rate a window may ask for. Process shear rates reach about 1e6 to 1e7 1/s
 #: (high-speed coating, spraying); 1e9 is generous and keeps stresses finite (common
 #: practice, no source). [1/s]
 MAX_SHEAR_RATE_1_PER_S = 1e9
 
 
-def _check_cell_range(rows: _Rows, raw: pd.Series, col: Column, si: np.ndarray) -> None:
+def _check_cell_range(rows: _Rows, raw, col: Column, si: np.ndarray) -> None:
     """Flag cells whose SI value overflowed, and shear rates beyond any process, by column."""
-    cells = raw.to_numpy(dtype=object)
     overflow = np.isinf(si)
     if overflow.any():
-        rows.flag(overflow, np.array([f"column '{col.header}' = {c!r} is too large once "
-                                      "converted to SI units." for c in cells], dtype=object))
+        rows.flag(overflow, _messages(overflow, raw, lambda c: (
+            f"column '{col.header}' = {c!r} is too large once converted to SI units.")))
     if col.dimension == "shear_rate":
         high = np.isfinite(si) & (si > MAX_SHEAR_RATE_1_PER_S)
         if high.any():
-            rows.flag(high, np.array([f"column '{col.header}' = {c!r} is not allowed; expected "
-                                      f"a shear rate up to {MAX_SHEAR_RATE_1_PER_S:g} 1/s."
-                                      for c in cells], dtype=object))
+            rows.flag(high, _messages(high, raw, lambda c: (
+                f"column '{col.header}' = {c!r} is not allowed; expected a shear rate up to "
+                f"{MAX_SHEAR_RATE_1_PER_S:g} 1/s.")))
         si[~np.isfinite(si) | (si > MAX_SHEAR_RATE_1_PER_S)] = np.nan
     else:
         si[overflow] = np.nan
@@ -704,9 +753,8 @@ def _check(rows: _Rows, bad, layout: Layout, field_name: str, index: int, value,
     scale = col.scale if col else 1.0
     offset = col.offset if col else 0.0
     shown = (np.asarray(value, dtype=float) - offset) / (scale or 1.0)
-    messages = np.array([f"column '{header}' = {v:.6g} is not allowed; expected {allowed}."
-                         for v in shown], dtype=object) if bad.any() else None
-    rows.flag(bad, messages)
+    rows.flag(bad, _messages(bad, shown, lambda v: (
+        f"column '{header}' = {v:.6g} is not allowed; expected {allowed}.")))
 
 
 @dataclass
@@ -949,9 +997,9 @@ def _resolve(chunk: pd.DataFrame, ctx: _Context, row_errors=None) -> _Chunk:
 
     laws = [s.name for s in models("liquid")]
     known = np.isin(liquid, ["water", "glycerol-water", "newtonian", *laws])
-    rows.flag(~known, np.array([f"column 'liquid' = {v!r} is not allowed; expected 'water', "
-                                f"'glycerol-water' or a liquid law: {', '.join(laws)}."
-                                for v in liquid], object))
+    rows.flag(~known, _messages(~known & rows.ok, liquid, lambda v: (
+        f"column 'liquid' = {v!r} is not allowed; expected 'water', "
+        f"'glycerol-water' or a liquid law: {', '.join(laws)}.")))
     law_params = {}
     for name in pd.unique(liquid[known & rows.ok]):
         if name in ("water", "glycerol-water", "newtonian"):
@@ -1000,17 +1048,19 @@ def _resolve(chunk: pd.DataFrame, ctx: _Context, row_errors=None) -> _Chunk:
         present[:, j] = (name != "") | ~np.isnan(loading)
         names[:, j] = np.where(name == "", f"ingredient {k}", name)
         kind = _text(rows, "ingredient kind", k, default="solid")
-        rows.flag(present[:, j] & ~np.isin(kind, ["solid", "droplet"]),
-                  np.array([f"column 'ingredient {k} kind' = {v!r} is not allowed; expected "
-                            "'solid' or 'droplet'." for v in kind], object))
+        odd = present[:, j] & ~np.isin(kind, ["solid", "droplet"]) & rows.ok
+        rows.flag(odd, _messages(odd, kind, lambda v, k=k: (
+            f"column 'ingredient {k} kind' = {v!r} is not allowed; expected 'solid' or "
+            "'droplet'.")))
         is_solid[:, j] = kind != "droplet"
         loading_col = layout.get("ingredient loading", k)
         header = loading_col.header if loading_col else f"ingredient {k} loading"
         basis = _text(rows, "ingredient basis", k,
                       default=loading_col.basis if loading_col else "mass")
-        rows.flag(present[:, j] & ~np.isin(basis, ["mass", "volume"]),
-                  np.array([f"column 'ingredient {k} basis' = {v!r} is not allowed; expected "
-                            "'mass' or 'volume'." for v in basis], object))
+        odd = present[:, j] & ~np.isin(basis, ["mass", "volume"]) & rows.ok
+        rows.flag(odd, _messages(odd, basis, lambda v, k=k: (
+            f"column 'ingredient {k} basis' = {v!r} is not allowed; expected 'mass' or "
+            "'volume'.")))
         is_mass[:, j] = basis == "mass"
         rows.flag(present[:, j] & np.isnan(loading),
                   f"column '{header}' is empty for an "
@@ -1782,17 +1832,31 @@ def _flow_answers(c: _Chunk, ctx: _Context, st: _State, sauter, packing_notes, r
     return eta, regime, max_phi, max_mass, notes
 
 
-def duration_text(seconds: float) -> str:
-    """A duration in the largest fitting unit, 3 significant digits ("2.5 h", "41 days")."""
-    if not np.isfinite(seconds):
-        return "never"
-    for unit, scale in (("years", 365.25 * 86400.0), ("days", 86400.0), ("h", 3600.0),
-                        ("min", 60.0)):
-        if seconds >= scale:
-            return f"{seconds / scale:.3g} {unit}"
-    return f"{seconds:.3g} s"
+_DURATION_UNITS = (("years", 365.25 * 86400.0), ("days", 86400.0), ("h", 3600.0),
+                   ("min", 60.0), ("s", 1.0))
 
 
+def duration_text(seconds) -> str | np.ndarray:
+    """A duration in the largest fitting unit, 3 significant digits ("2.5 h", "41 days");
+    an array of them (object) for an array of durations.
+
+    Examples
+    --------
+    >>> duration_text(9000.0)
+    '2.5 h'
+    >>> duration_text(np.array([41 * 86400.0, 0.5, np.inf])).tolist()
+    ['41 days', '0.5 s', 'never']
+    """
+    x = np.asarray(seconds, dtype=float)
+    flat = x.ravel()
+    scale = np.ones(flat.shape)
+    unit = np.full(flat.shape, "s", dtype=object)
+    for name, size in reversed(_DURATION_UNITS[:-1]):     # the largest fitting unit wins
+        fits = flat >= size
+        scale[fits], unit[fits] = size, name
+    numbers = np.array(list(map("{:.3g}".format, (flat / scale).tolist())), dtype=object)
+    out = np.where(np.isfinite(flat), numbers + " " + unit, "never").astype(object)
+    return str(out[0]) if x.ndim == 0 else out.reshape(x.shape)
 
 
 #: Shear rate of settling at which a liquid law's viscosity is taken (the default of
@@ -1866,8 +1930,9 @@ def _settling(c: _Chunk, st: _State, ctx: _Context) -> np.ndarray:
                 k = np.flatnonzero(~stable & (verdict[sel] == ""))
                 times = np.asarray(r["clear_layer_time_s"])[k]
                 direction = np.asarray(r["direction"])[k]
-                verdict[moving] = [f"{c.names[i, j]} {d}, 1 mm layer in {duration_text(t)}"
-                                   for i, d, t in zip(moving, direction, times, strict=True)]
+                verdict[moving] = (c.names[moving, j].astype(str).astype(object) + " "
+                                   + direction.astype(str).astype(object) + ", 1 mm layer in "
+                                   + duration_text(times))
     empty = verdict == ""
     verdict[empty & (stable_reason != "")] = "stable (" + stable_reason[
         empty & (stable_reason != "")] + ")"

@@ -122,19 +122,27 @@ class FormulationSet:
         ``fs.take(first)`` holds each distinct row once; ``inverse`` maps every row to its
         position there. Tables of designed experiments repeat formulations many times.
         """
+        n = len(self)
         columns = []
         for f in dataclasses.fields(self):
             value = getattr(self, f.name)
             for v in (value.values() if isinstance(value, dict) else (value,)):
                 v = np.asarray(v)
-                if v.dtype.kind in "OUS":
-                    v = np.unique(np.array([str(x) for x in v.ravel()]),
-                                  return_inverse=True)[1].ravel()
-                columns.append(np.asarray(v, dtype=float))
-        columns += [np.asarray(e, dtype=float).reshape(len(self), -1).T for e in extra]
-        table = np.column_stack([c.T if c.ndim == 2 else c for c in columns])
-        table = np.where(np.isnan(table), -np.inf, table)      # NaN rows compare equal
-        _, first, inverse = np.unique(table, axis=0, return_index=True, return_inverse=True)
+                columns.append(_codes(v.ravel()) if v.dtype.kind in "OUS" else v)
+        columns += [np.asarray(e, dtype=float).reshape(n, -1) for e in extra]
+        table = np.column_stack([np.asarray(c, dtype=float).reshape(n, -1) for c in columns])
+        table = np.where(np.isnan(table), np.nan, table + 0.0)   # one NaN, one zero
+        bits = np.ascontiguousarray(table).view(np.uint64)
+        # A 64-bit hash of each row: one sort of n integers, not a lexicographic sort of rows;
+        # checked exactly below (a collision falls back to comparing whole rows).
+        mix = np.random.default_rng(12345).integers(1, 2**63, bits.shape[1], dtype=np.uint64)
+        with np.errstate(over="ignore"):
+            hashed = ((bits ^ (bits >> np.uint64(29))) * (mix | np.uint64(1))).sum(axis=1)
+        _, first, inverse = np.unique(hashed, return_index=True, return_inverse=True)
+        inverse = inverse.ravel()
+        if not np.array_equal(bits[first][inverse], bits):
+            keys = bits.view(np.dtype((np.void, bits.shape[1] * 8))).ravel()
+            _, first, inverse = np.unique(keys, return_index=True, return_inverse=True)
         return first, inverse.ravel()
 
     def at_loading(self, phi) -> FormulationSet:
@@ -193,6 +201,22 @@ def from_rows(rows: Sequence[Mapping]) -> FormulationSet:
         else:
             out[f.name] = np.array(values, dtype=float)
     return FormulationSet(**out)
+
+
+def _codes(values: np.ndarray) -> np.ndarray:
+    """Integer codes of the distinct objects of a 1-D array (by their text if unhashable)."""
+    try:
+        uniques = list(dict.fromkeys(values.tolist()))
+    except TypeError:
+        values = np.array([str(x) for x in values], dtype=object)
+        uniques = list(dict.fromkeys(values.tolist()))
+    if len(uniques) > 16:
+        index = {u: i for i, u in enumerate(uniques)}
+        return np.fromiter((index[x] for x in values.tolist()), dtype=float, count=len(values))
+    codes = np.zeros(len(values))
+    for i, u in enumerate(uniques[1:], start=1):
+        codes[values == u] = i
+    return codes
 
 
 def _rates(shear_rate_1_per_s, n: int) -> np.ndarray:
