@@ -613,7 +613,13 @@ class _Rows:
     n: int
     errors: np.ndarray
     numbers: dict = field(default_factory=dict)
-    texts: dict = field(default_factory=dict)
+    cells: dict = field(default_factory=dict)     # text columns: stripped pyarrow arrays
+    lowered: dict = field(default_factory=dict)   # texts in lower case, made when asked
+
+    def text(self, key) -> np.ndarray | None:
+        """The stripped cells of a text column as an object array (None: no such column)."""
+        cells = self.cells.get(key)
+        return None if cells is None else cells.to_numpy(zero_copy_only=False).astype(object)
 
     def flag(self, mask, message) -> None:
         """Keep the first error of each row where `mask`; `message` is a str or per-row array."""
@@ -644,7 +650,7 @@ def _read_cells(chunk: pd.DataFrame, layout: Layout, row_errors=None) -> _Rows:
         raw = _strip(chunk[col.header])
         key = (col.field, col.index)
         if col.dimension == "text":
-            rows.texts[key] = raw.to_numpy(zero_copy_only=False).astype(object)
+            rows.cells[key] = raw
             continue
         value, given = _parse_numbers(raw)
         bad = given & ~np.isfinite(value)
@@ -668,6 +674,8 @@ def _strip(cells: pd.Series):
         arr = pa.array(cells, type=pa.string(), from_pandas=True)
     except (pa.ArrowInvalid, pa.ArrowTypeError):     # cells that are not all text
         arr = pa.array(cells.astype(str).to_numpy(dtype=object), type=pa.string())
+    if isinstance(arr, pa.ChunkedArray):
+        arr = arr.combine_chunks()
     return pc.utf8_trim_whitespace(pc.fill_null(arr, ""))
 
 
@@ -735,11 +743,27 @@ def _num(rows: _Rows, field_name: str, index: int = 0, default=np.nan) -> np.nda
 
 
 def _text(rows: _Rows, field_name: str, index: int = 0, default: str = "") -> np.ndarray:
-    value = rows.texts.get((field_name, index))
-    if value is None:
+    import pyarrow.compute as pc
+
+    cells = rows.cells.get((field_name, index))
+    if cells is None:
         return np.full(rows.n, default, dtype=object)
-    value = pd.Series(value, dtype=object).str.lower().fillna("").to_numpy(dtype=object)
-    return np.where(value == "", default, value)
+    lowered = rows.lowered.get((field_name, index))
+    if lowered is None:    # str.lower once per distinct cell
+        coded = pc.dictionary_encode(cells)
+        uniques = [u.lower() for u in coded.dictionary.to_pylist()] or [""]
+        lowered = np.array(uniques, dtype=object)[
+            coded.indices.to_numpy(zero_copy_only=False)]
+        rows.lowered[(field_name, index)] = lowered
+    return np.where(lowered == "", default, lowered)
+
+
+def _among(values: np.ndarray, options) -> np.ndarray:
+    """`np.isin` for an object array of texts and a few options, without sorting."""
+    out = np.zeros(np.shape(values), dtype=bool)
+    for option in options:
+        out |= values == option
+    return out
 
 
 def _check(rows: _Rows, bad, layout: Layout, field_name: str, index: int, value, allowed: str,
@@ -996,7 +1020,7 @@ def _resolve(chunk: pd.DataFrame, ctx: _Context, row_errors=None) -> _Chunk:
     from .registry import models
 
     laws = [s.name for s in models("liquid")]
-    known = np.isin(liquid, ["water", "glycerol-water", "newtonian", *laws])
+    known = _among(liquid, ["water", "glycerol-water", "newtonian", *laws])
     rows.flag(~known, _messages(~known & rows.ok, liquid, lambda v: (
         f"column 'liquid' = {v!r} is not allowed; expected 'water', "
         f"'glycerol-water' or a liquid law: {', '.join(laws)}.")))
@@ -1048,7 +1072,7 @@ def _resolve(chunk: pd.DataFrame, ctx: _Context, row_errors=None) -> _Chunk:
         present[:, j] = (name != "") | ~np.isnan(loading)
         names[:, j] = np.where(name == "", f"ingredient {k}", name)
         kind = _text(rows, "ingredient kind", k, default="solid")
-        odd = present[:, j] & ~np.isin(kind, ["solid", "droplet"]) & rows.ok
+        odd = present[:, j] & ~_among(kind, ["solid", "droplet"]) & rows.ok
         rows.flag(odd, _messages(odd, kind, lambda v, k=k: (
             f"column 'ingredient {k} kind' = {v!r} is not allowed; expected 'solid' or "
             "'droplet'.")))
@@ -1057,7 +1081,7 @@ def _resolve(chunk: pd.DataFrame, ctx: _Context, row_errors=None) -> _Chunk:
         header = loading_col.header if loading_col else f"ingredient {k} loading"
         basis = _text(rows, "ingredient basis", k,
                       default=loading_col.basis if loading_col else "mass")
-        odd = present[:, j] & ~np.isin(basis, ["mass", "volume"]) & rows.ok
+        odd = present[:, j] & ~_among(basis, ["mass", "volume"]) & rows.ok
         rows.flag(odd, _messages(odd, basis, lambda v, k=k: (
             f"column 'ingredient {k} basis' = {v!r} is not allowed; expected 'mass' or "
             "'volume'.")))
@@ -1077,7 +1101,7 @@ def _resolve(chunk: pd.DataFrame, ctx: _Context, row_errors=None) -> _Chunk:
                "ingredient density", k, density, "a density > 0", f"ingredient {k} density")
         d50 = _num(rows, "ingredient d50", k)
         tab = _text(rows, "ingredient size table", k)
-        raw_tab = rows.texts.get(("ingredient size table", k))
+        raw_tab = rows.text(("ingredient size table", k))
         if raw_tab is not None:   # keep the file name's case
             tab = np.where(tab == "", "", raw_tab)
         rows.flag(present[:, j] & is_solid[:, j] & np.isnan(d50) & (tab == ""),
@@ -1240,7 +1264,7 @@ def _shift(c: _Chunk) -> np.ndarray:
     from . import liquids
 
     out = np.ones(c.rows.n)
-    on = (~np.isnan(c.activation_K) & ~np.isin(c.liquid, ["water", "glycerol-water"])
+    on = (~np.isnan(c.activation_K) & ~_among(c.liquid, ["water", "glycerol-water"])
           & c.rows.ok)
 
     def call(part):
@@ -1565,7 +1589,7 @@ class _Flow:
         self.frictional = np.where(np.isnan(c.frictional),
                                    formulation.FRICTIONAL_RATIO * self.phi_max, c.frictional)
         # The liquid law of each row (presets are Newtonian at their viscosity).
-        self.law = np.where(np.isin(c.liquid, ["water", "glycerol-water"]), "newtonian",
+        self.law = np.where(_among(c.liquid, ["water", "glycerol-water"]), "newtonian",
                             c.liquid).astype(object)
         self.law_params = {"viscosity_Pa_s": np.where(self.law == "newtonian", self.eta_l,
                                                       np.nan)}
@@ -1701,10 +1725,16 @@ def _flow_notes(f: _Flow, k: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
 
 def _join(parts: list[np.ndarray]) -> np.ndarray:
     """Per-row texts joined with "; ", empty ones left out."""
-    out = parts[0].copy()
+    out = np.asarray(parts[0], dtype=object).copy()
     for part in parts[1:]:
-        both = (out != "") & (part != "")
-        out = np.where(both, out + "; " + part, np.where(out == "", part, out))
+        part = np.asarray(part, dtype=object)
+        given = part != ""
+        if not given.any():
+            continue
+        empty = out == ""
+        both = given & ~empty
+        out[both] = out[both] + "; " + part[both]
+        out[given & empty] = part[given & empty]
     return out
 
 
@@ -1780,7 +1810,7 @@ def _flow_answers(c: _Chunk, ctx: _Context, st: _State, sauter, packing_notes, r
     for name in pd.unique(c.droplet_relation[asked & f.has_droplets]):
         _check_params(rows, asked & f.has_droplets & (c.droplet_relation == name),
                       get_model(name, kind="emulsion"), {"viscosity_ratio": f.ratio})
-    _check_params(rows, asked & np.isin(c.liquid, ["water", "glycerol-water"]), newtonian,
+    _check_params(rows, asked & _among(c.liquid, ["water", "glycerol-water"]), newtonian,
                   {"viscosity_Pa_s": st.eta_l})
 
     def call(part):
@@ -2032,7 +2062,7 @@ def _predict_chunk(chunk: pd.DataFrame, ctx: _Context, viscosity_unit: str,
         out[f"{label} verdict"] = verdict
     out["settling"] = np.where(ok, _settling(c, st, ctx), "")
     out["warnings"] = warnings
-    result = chunk.copy()
+    result = chunk.copy(deep=False)     # copy on write: the chunk itself is never changed
     for name, values in out.items():
         if name in result.columns:
             name = f"{name} (result)"
@@ -2148,13 +2178,30 @@ def screen(table: pd.DataFrame, base_dir=".", viscosity_unit: str = "Pa*s",
     _check_unit(viscosity_unit)
     layout = parse_header([h for h in table.columns if h != ROW_ERROR])
     ctx = _Context(layout, pathlib.Path(base_dir))
-    text = table.astype(object).where(table.notna(), "").astype(str)
+    text = _as_text(table)
     parts = [_note_liquid_fails(_predict_chunk_safe(
         text.iloc[s:s + chunk_rows].reset_index(drop=True), ctx, viscosity_unit))
         for s in range(0, len(text), chunk_rows)]
     if not parts:
         return _predict_chunk(text, ctx, viscosity_unit)
     return pd.concat(parts, ignore_index=True)
+
+
+def _as_text(table: pd.DataFrame) -> pd.DataFrame:
+    """The table with every cell as text, missing ones empty; text columns kept as they are."""
+    text_dtype = pd.Series([""], dtype=object).astype(str).dtype
+    parts = []
+    for i in range(table.shape[1]):
+        col = table.iloc[:, i]
+        if col.dtype == text_dtype:
+            parts.append(col.fillna("") if col.hasnans else col)
+        else:
+            parts.append(col.astype(object).where(col.notna(), "").astype(str))
+    if not parts:
+        return table.astype(object).where(table.notna(), "").astype(str)
+    out = pd.concat(parts, axis=1, ignore_index=True)
+    out.columns = table.columns
+    return out
 
 
 def screen_file(path, out_path=None, viscosity_unit: str = "Pa*s",

@@ -235,8 +235,10 @@ def _groups(*labels: np.ndarray):
     """Row indices of each distinct combination of the label arrays."""
     codes = np.zeros(len(labels[0]), dtype=np.int64)
     for lab in labels:
-        uniq, inverse = np.unique(np.asarray(lab).astype(str), return_inverse=True)
-        codes = codes * max(len(uniq), 1) + inverse.ravel()
+        lab = np.asarray(lab).ravel()
+        inverse = _codes(lab if lab.dtype.kind == "O" else lab.astype(str).astype(object))
+        inverse = inverse.astype(np.int64)
+        codes = codes * (int(inverse.max(initial=0)) + 1) + inverse
     order = np.argsort(codes, kind="stable")
     cuts = np.flatnonzero(np.diff(codes[order])) + 1
     yield from (part for part in np.split(order, cuts) if part.size)
