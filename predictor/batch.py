@@ -84,7 +84,10 @@ Output columns, appended to the input columns: ``status`` (``ok`` / ``error``), 
 ``phi solids [-]`` (effective, with adsorbed layers), ``phi droplets [-]``, ``phi_max [-]``,
 ``headroom phi/phi_max [-]``, ``liquid viscosity [Pa*s]``, and per window
 ``window j viscosity [Pa*s]``, ``window j regime``, ``window j max solids [vol%]``
-(effective) and ``window j max solids [wt%]`` (when the window has a max viscosity),
+(effective), ``window j max solids [wt%]`` and ``window j limited by`` (when the window has
+a max viscosity; what sets the highest loading: ``viscosity`` where the max viscosity is
+reached, ``packing`` where it is not reached below phi_max, ``liquid`` where the liquid with
+its droplets is already above it; empty where not computed),
 ``window j verdict`` (``pass`` / ``fail`` / ``error``), then ``settling`` and ``warnings``.
 The viscosity unit of the output is selectable.
 
@@ -655,7 +658,7 @@ def _read_cells(chunk: pd.DataFrame, layout: Layout, row_errors=None) -> _Rows:
         value, given = _parse_numbers(raw)
         bad = given & ~np.isfinite(value)
         if bad.any():
-            rows.flag(bad, _messages(bad, raw, lambda c: (
+            rows.flag(bad, _messages(bad, raw, lambda c, col=col: (
                 f"column '{col.header}' = {c!r} is not allowed; expected a finite number.")))
             value[bad] = np.nan
         with np.errstate(over="ignore", invalid="ignore"):
@@ -1339,12 +1342,13 @@ def _groups(frame: pd.DataFrame) -> list[tuple[tuple, np.ndarray]]:
     cuts = np.flatnonzero(np.diff(combined[order])) + 1
     starts = np.concatenate([[0], cuts])
     ends = np.concatenate([cuts, [len(frame)]])
-    values = frame.to_numpy(dtype=object)
+    values = frame.iloc[order[starts]].to_numpy(dtype=object)   # the first row of each group
 
     def key(row):
         return tuple(None if isinstance(v, float) and math.isnan(v) else v for v in row)
 
-    return [(key(values[order[a]]), order[a:b]) for a, b in zip(starts, ends, strict=True)]
+    return [(key(values[g]), order[a:b]) for g, (a, b) in enumerate(zip(starts, ends,
+                                                                         strict=True))]
 
 
 def _sizes(c: _Chunk, ctx: _Context) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
@@ -1738,24 +1742,27 @@ def _join(parts: list[np.ndarray]) -> np.ndarray:
     return out
 
 
-def _max_loading(f: _Flow, k, rate, limit) -> tuple[np.ndarray, np.ndarray]:
+def _max_loading(f: _Flow, k, rate, limit) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """`engine.max_loading` (the solver of `formulation.max_loading`) for many (row, window)
-    pairs at once. Returns the fractions and, per pair, the error that stopped its solve
-    ("" if none; the fraction is then NaN), as `max_loading` would raise it.
+    pairs at once. Returns the fractions, their limiting reasons ("viscosity", "packing" or
+    "liquid") and, per pair, the error that stopped its solve ("" if none; the fraction is
+    then NaN and the reason ""), as `max_loading` would raise it.
     """
     errors = np.full(len(k), "", dtype=object)
     try:
-        phi, _ = engine.max_loading(f.rows(k), limit, rate)
-        return phi, errors
+        phi, reason = engine.max_loading(f.rows(k), limit, rate)
+        return phi, np.asarray(reason, dtype=object), errors
     except LoadlineError:
         pass
     phi = np.full(len(k), np.nan)
+    reason = np.full(len(k), "", dtype=object)
     for i in range(len(k)):          # isolate the pairs whose solve fails
         try:
-            phi[i] = engine.max_loading(f.rows(k[i:i + 1]), limit[i], rate[i])[0][0]
+            one, why = engine.max_loading(f.rows(k[i:i + 1]), limit[i], rate[i])
+            phi[i], reason[i] = one[0], str(why[0])
         except LoadlineError as err:
             errors[i] = str(err)
-    return phi, errors
+    return phi, reason, errors
 
 
 def _solid_mass_fraction(c: _Chunk, f: _Flow, k, phi_eff) -> np.ndarray:
@@ -1784,19 +1791,21 @@ def _flow_answers(c: _Chunk, ctx: _Context, st: _State, sauter, packing_notes, r
     and windows at once (`_max_loading`), its mass fraction
     `formulation.solid_mass_fraction`; a
     failed solve leaves NaN and a note. Returns arrays over rows and windows: viscosity
-    [Pa*s], regime, max effective solids phi [-], max solids mass fraction [-], and the
-    notes per row.
+    [Pa*s], regime, max effective solids phi [-], max solids mass fraction [-], the
+    limiting reason of each highest loading ("viscosity", "packing", "liquid"; "" where not
+    solved), and the notes per row.
     """
     n, width = rates.shape
     eta = np.full((n, width), np.nan)
     regime = np.full((n, width), "", dtype=object)
     max_phi = np.full((n, width), np.nan)
     max_mass = np.full((n, width), np.nan)
+    limited = np.full((n, width), "", dtype=object)
     notes = np.full(n, "", dtype=object)
     good = np.isfinite(rates) & (rates > 0)
     asked = c.rows.ok & good.any(axis=1)      # the rows `predict` is called for
     if not asked.any():
-        return eta, regime, max_phi, max_mass, notes
+        return eta, regime, max_phi, max_mass, limited, notes
     f = _Flow(c, st, sauter)
     rows = c.rows
     # The checks `predict` makes beyond `mixture`, in its order: a newtonian liquid's law,
@@ -1836,21 +1845,23 @@ def _flow_answers(c: _Chunk, ctx: _Context, st: _State, sauter, packing_notes, r
 
     def solve(sel):
         k = pair_row[sel]
-        phi, errors = _max_loading(f, k, rates[k, pair_window[sel]], limits[k, pair_window[sel]])
+        phi, reason, errors = _max_loading(f, k, rates[k, pair_window[sel]],
+                                           limits[k, pair_window[sel]])
         mass = np.full(len(k), np.nan)
         done = np.isfinite(phi)
         mass[done] = _solid_mass_fraction(c, f, k[done], phi[done])
-        return phi, mass, errors
+        return phi, mass, reason, errors
 
     pair_errors = np.full(len(pair_row), "", dtype=object)
 
     def failed(p, err):      # an error the solve did not foresee: isolated to its pair
         pair_errors[p] = str(err)
 
-    for sel, (phi, mass, errors) in _guarded(solve, np.arange(len(pair_row)), rows,
-                                             on_error=failed):
+    for sel, (phi, mass, reason, errors) in _guarded(solve, np.arange(len(pair_row)), rows,
+                                                     on_error=failed):
         max_phi[pair_row[sel], pair_window[sel]] = phi
         max_mass[pair_row[sel], pair_window[sel]] = mass
+        limited[pair_row[sel], pair_window[sel]] = reason
         pair_errors[sel] = np.where(errors == "", pair_errors[sel], errors)
     window_notes = np.full(n, "", dtype=object)
     for p in np.flatnonzero(pair_errors != ""):   # as formulation.max_loading raising
@@ -1859,7 +1870,7 @@ def _flow_answers(c: _Chunk, ctx: _Context, st: _State, sauter, packing_notes, r
         window_notes[i] = f"{window_notes[i]}; {text}" if window_notes[i] else text
     notes[asked] = _join([flow_notes, window_notes, np.where(asked, packing_notes, ""),
                           drop_notes])[asked]
-    return eta, regime, max_phi, max_mass, notes
+    return eta, regime, max_phi, max_mass, limited, notes
 
 
 _DURATION_UNITS = (("years", 365.25 * 86400.0), ("days", 86400.0), ("h", 3600.0),
@@ -1999,7 +2010,7 @@ def _predict_chunk(chunk: pd.DataFrame, ctx: _Context, viscosity_unit: str,
         if windows else np.zeros((n, 0))
     limits = np.column_stack([_num(rows, "window max viscosity", j) for j in windows]) \
         if windows else np.zeros((n, 0))
-    curve_eta, curve_regime, max_phi, max_mass, curve_notes = _flow_answers(
+    curve_eta, curve_regime, max_phi, max_mass, limited_by, curve_notes = _flow_answers(
         c, ctx, st, sauter, packing_notes, rates, limits)
 
     ok = rows.ok
@@ -2052,6 +2063,7 @@ def _predict_chunk(chunk: pd.DataFrame, ctx: _Context, viscosity_unit: str,
         if np.isfinite(hi).any():
             out[f"{label} max solids [vol%]"] = 100 * max_phi[:, w] * mask
             out[f"{label} max solids [wt%]"] = 100 * max_mass[:, w] * mask
+            out[f"{label} limited by"] = np.where(ok, limited_by[:, w], "")
         passed = np.where(np.isnan(lo), True, eta >= lo) & np.where(np.isnan(hi), True, eta <= hi)
         verdict = np.where(ok & passed, "pass", np.where(ok, "fail", "error")).astype(object)
         verdict = np.where(ok & bad_rate, "error: shear rate missing or <= 0", verdict)

@@ -130,18 +130,20 @@ class FormulationSet:
                 v = np.asarray(v)
                 columns.append(_codes(v.ravel()) if v.dtype.kind in "OUS" else v)
         columns += [np.asarray(e, dtype=float).reshape(n, -1) for e in extra]
-        table = np.column_stack([np.asarray(c, dtype=float).reshape(n, -1) for c in columns])
-        table = np.where(np.isnan(table), np.nan, table + 0.0)   # one NaN, one zero
-        bits = np.ascontiguousarray(table).view(np.uint64)
-        # A 64-bit hash of each row: one sort of n integers, not a lexicographic sort of rows;
-        # checked exactly below (a collision falls back to comparing whole rows).
-        mix = np.random.default_rng(12345).integers(1, 2**63, bits.shape[1], dtype=np.uint64)
+        columns = [c for v in columns for c in np.asarray(v, dtype=float).reshape(n, -1).T]
+        # Each value as its bits (one NaN, one zero), and a 64-bit hash of each row: one sort
+        # of n integers, not a lexicographic sort of rows; checked exactly below.
+        bits = [np.where(np.isnan(c), np.nan, c + 0.0).view(np.uint64) for c in columns]
+        hashed = np.zeros(n, dtype=np.uint64)
+        mix = np.uint64(0x9E3779B97F4A7C15)
         with np.errstate(over="ignore"):
-            hashed = ((bits ^ (bits >> np.uint64(29))) * (mix | np.uint64(1))).sum(axis=1)
+            for b in bits:
+                hashed = (hashed ^ (b + (hashed << np.uint64(6)) + (hashed >> np.uint64(2)))) * mix
         _, first, inverse = np.unique(hashed, return_index=True, return_inverse=True)
         inverse = inverse.ravel()
-        if not np.array_equal(bits[first][inverse], bits):
-            keys = bits.view(np.dtype((np.void, bits.shape[1] * 8))).ravel()
+        if not all(np.array_equal(b[first][inverse], b) for b in bits):   # a collision
+            table = np.ascontiguousarray(np.column_stack(bits))
+            keys = table.view(np.dtype((np.void, table.shape[1] * 8))).ravel()
             _, first, inverse = np.unique(keys, return_index=True, return_inverse=True)
         return first, inverse.ravel()
 
