@@ -762,11 +762,11 @@ def _text(rows: _Rows, field_name: str, index: int = 0, default: str = "") -> np
 
 
 def _among(values: np.ndarray, options) -> np.ndarray:
-    """`np.isin` for an object array of texts and a few options, without sorting."""
-    out = np.zeros(np.shape(values), dtype=bool)
-    for option in options:
-        out |= values == option
-    return out
+    """`np.isin` for an object array of texts: one hash pass, each distinct text looked up once."""
+    codes, uniques = pd.factorize(np.asarray(values, dtype=object).ravel(), use_na_sentinel=False)
+    wanted = set(options)
+    inside = np.array([u in wanted for u in uniques] or [False], dtype=bool)
+    return inside[codes].reshape(np.shape(values))
 
 
 def _check(rows: _Rows, bad, layout: Layout, field_name: str, index: int, value, allowed: str,
@@ -1327,28 +1327,30 @@ def _nan(value) -> float:
     return math.nan if value is None else float(value)
 
 
-def _groups(frame: pd.DataFrame) -> list[tuple[tuple, np.ndarray]]:
-    """The distinct rows of `frame`: [(key tuple, positions), ...], in O(n log n).
+def _groups(columns: dict) -> list[tuple[tuple, np.ndarray]]:
+    """The distinct rows of equal-length `columns` (name -> 1-D array): [(key tuple,
+    positions), ...], by one hash pass per column and one sort.
 
     NaN in a key becomes None, so keys compare equal and can index a cache.
     """
-    if frame.empty:
+    arrays = [np.asarray(v) for v in columns.values()]
+    if not arrays or len(arrays[0]) == 0:
         return []
-    combined = np.zeros(len(frame), dtype=np.int64)
-    for col in frame.columns:
-        codes, _ = pd.factorize(frame[col].to_numpy(), use_na_sentinel=False)
+    combined = np.zeros(len(arrays[0]), dtype=np.int64)
+    for values in arrays:
+        codes, _ = pd.factorize(values, use_na_sentinel=False)
         combined, _ = pd.factorize(combined * (int(codes.max()) + 1) + codes)
     order = np.argsort(combined, kind="stable")
     cuts = np.flatnonzero(np.diff(combined[order])) + 1
     starts = np.concatenate([[0], cuts])
-    ends = np.concatenate([cuts, [len(frame)]])
-    values = frame.iloc[order[starts]].to_numpy(dtype=object)   # the first row of each group
+    ends = np.concatenate([cuts, [len(order)]])
+    firsts = [values[order[starts]].tolist() for values in arrays]   # each group's first row
 
     def key(row):
         return tuple(None if isinstance(v, float) and math.isnan(v) else v for v in row)
 
-    return [(key(values[g]), order[a:b]) for g, (a, b) in enumerate(zip(starts, ends,
-                                                                         strict=True))]
+    rows = zip(*firsts, strict=True)
+    return [(key(row), order[a:b]) for row, a, b in zip(rows, starts, ends, strict=True)]
 
 
 def _sizes(c: _Chunk, ctx: _Context) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
@@ -1361,8 +1363,8 @@ def _sizes(c: _Chunk, ctx: _Context) -> tuple[np.ndarray, np.ndarray, np.ndarray
         has_size = c.present[:, j] & c.rows.ok & ((c.table[:, j] != "") | ~np.isnan(c.d50[:, j]))
         if not has_size.any():
             continue
-        keys = pd.DataFrame({"t": c.table[has_size, j], "d": c.d50[has_size, j],
-                             "s": c.spread[has_size, j]})
+        keys = {"t": c.table[has_size, j], "d": c.d50[has_size, j],
+                "s": c.spread[has_size, j]}
         where = np.flatnonzero(has_size)
         for (tab, d50, spread), pos in _groups(keys):
             dist = _distribution(ctx, str(tab), _nan(d50), _nan(spread))
@@ -1382,8 +1384,7 @@ def _texts(mask, make: Callable[..., str], *columns) -> np.ndarray:
     out = np.full(np.shape(mask), "", dtype=object)
     where = np.flatnonzero(mask)
     if where.size:
-        frame = pd.DataFrame({i: np.asarray(col)[where] for i, col in enumerate(columns)})
-        for key, pos in _groups(frame):
+        for key, pos in _groups({i: np.asarray(col)[where] for i, col in enumerate(columns)}):
             out[where[pos]] = make(*key)
     return out
 
@@ -1474,9 +1475,9 @@ def _packing(c: _Chunk, ctx: _Context, phi_eff: np.ndarray) -> tuple:
         for name, arr in (("d", c.d50), ("s", c.spread), ("a", c.aspect), ("m", c.phi_max_given),
                           ("i", c.intrinsic_given)):
             keys[f"{name}{j}"] = np.where(on, arr[:, j], -1.0)
-    frame = pd.DataFrame(keys)[use]
-    if frame.empty:
+    if not use.any():
         return phi_max, intrinsic, notes
+    frame = {name: values[use] for name, values in keys.items()}
     where = np.flatnonzero(use)
     solid_eff = np.where(solid, np.nan_to_num(phi_eff), 0.0)
     for key, pos in _groups(frame):
@@ -1937,8 +1938,7 @@ def _settling(c: _Chunk, st: _State, ctx: _Context) -> np.ndarray:
         if not sized.any():
             continue
         d90 = np.full(n, np.nan)
-        keys = pd.DataFrame({"t": c.table[sized, j], "d": c.d50[sized, j],
-                             "s": c.spread[sized, j]})
+        keys = {"t": c.table[sized, j], "d": c.d50[sized, j], "s": c.spread[sized, j]}
         where = np.flatnonzero(sized)
         for (tab, d50, spread), pos in _groups(keys):
             dist = _distribution(ctx, str(tab), _nan(d50), _nan(spread))
