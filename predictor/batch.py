@@ -624,19 +624,29 @@ class _Rows:
         cells = self.cells.get(key)
         return None if cells is None else cells.to_numpy(zero_copy_only=False).astype(object)
 
+    def __post_init__(self):
+        self._ok = pd.isna(self.errors)   # kept in step by `flag` and `flag_row`
+
     def flag(self, mask, message) -> None:
         """Keep the first error of each row where `mask`; `message` is a str or per-row array."""
-        mask = np.asarray(mask, dtype=bool) & pd.isna(self.errors)
+        mask = np.asarray(mask, dtype=bool) & self._ok
         if not mask.any():
             return
         if isinstance(message, str):
             self.errors[mask] = message
         else:
             self.errors[mask] = np.asarray(message, dtype=object)[mask]
+        self._ok[mask] = False
+
+    def flag_row(self, i: int, message: str) -> None:
+        """Keep the first error of row `i`."""
+        if self._ok[i]:
+            self.errors[i], self._ok[i] = message, False
 
     @property
     def ok(self) -> np.ndarray:
-        return pd.isna(self.errors)
+        """Rows without an error (a copy)."""
+        return self._ok.copy()
 
 
 def _read_cells(chunk: pd.DataFrame, layout: Layout, row_errors=None) -> _Rows:
@@ -1228,8 +1238,7 @@ def _guarded(func: Callable[[np.ndarray], object], index: np.ndarray, rows: _Row
 
 
 def _flag_row(rows: _Rows, i: int, message: str) -> None:
-    if pd.isna(rows.errors[i]):
-        rows.errors[i] = message
+    rows.flag_row(i, message)
 
 
 def _liquid_viscosity(c: _Chunk) -> np.ndarray:
