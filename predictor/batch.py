@@ -2140,7 +2140,7 @@ def _note_liquid_fails(frame: pd.DataFrame) -> pd.DataFrame:
                     "droplets) is above the max viscosity; no solids loading meets it")
             joined = (notes + "; " + text).where(notes != "", text)
             notes = notes.where(~fails, joined)
-    frame = frame.copy()
+    frame = frame.copy(deep=False)     # copy on write: the input frame is kept
     frame["warnings"] = notes.to_numpy(dtype=object)
     return frame
 
@@ -2389,7 +2389,7 @@ def spreadsheet_safe(value):
 def safe_frame(frame: pd.DataFrame, digits: int = 6) -> pd.DataFrame:
     """A copy of `frame` fit for a spreadsheet: text cells and headers escaped with
     `spreadsheet_safe` (vectorised), floats rounded to `digits` significant digits."""
-    out = frame.copy()
+    out = frame.copy(deep=False)     # copy on write: `frame` itself is never changed
     out.columns = [spreadsheet_safe(str(c)) for c in out.columns]
     for col in out.columns:
         values = out[col]
