@@ -247,14 +247,20 @@ def candidates_box(scenario: str, names: list[str], windows: tuple) -> None:
             return
         table = made["value"]
         count = table[next(iter(table))].count(b"\n") - 1
-        st.caption(f"{count} candidates, every other field as in the scenario; the map's "
-                   "windows become the table's windows.")
+        st.caption(f"{count} candidates, every other field as in the scenario (written beside "
+                   "the table as its base scenario); the map's windows become the table's "
+                   "windows.")
         row = st.container(horizontal=True, gap="small")
         row.button("Send to the Batch screen", key="cand_send", on_click=_send, args=(table,),
                    icon=":material/send:", type="primary")
         row.download_button("Candidate table (CSV)", data=table[next(iter(table))],
                             file_name=next(iter(table)), mime="text/csv", key="cand_csv",
                             on_click="ignore", icon=":material/download:")
+        base = [name for name in table if name.endswith(".loadline.json")]
+        if base:
+            row.download_button("Its base scenario (JSON)", data=table[base[0]],
+                                file_name=base[0], mime="application/json", key="cand_base",
+                                on_click="ignore", icon=":material/download:")
 
 
 def _table(grid: pd.DataFrame, unit: str) -> pd.DataFrame:
