@@ -33,6 +33,15 @@ def test_opens_with_the_map_of_the_first_two_ingredients():
     assert [p["name"] for p in spec["params"]] == ["cell"]      # click selects a cell
 
 
+def test_opens_at_a_41_by_41_grid_equal_to_the_core_map():
+    # The engine solves all cells in one call (engine.vary), so the page opens at 41 x 41.
+    at = page("design_map").run()
+    assert not at.exception
+    grid = _reference(41)
+    assert metric(at, "Cells") == str(41 * 41) == str(len(grid))
+    assert metric(at, "Jammed") == str(int((grid["regime"] == "jammed").sum()))
+
+
 def test_a_clicked_cell_loads_that_recipe():
     # The click callback hands the cell's loadings to state.set_loadings; the scenario the
     # app then builds predicts exactly the cell's viscosity.
