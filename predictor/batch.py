@@ -895,7 +895,7 @@ def _with_base(chunk: pd.DataFrame, ctx: _Context, row_errors):
     errors = (np.full(n, "", dtype=object) if row_errors is None
               else np.asarray(row_errors, dtype=object).copy())
     names = chunk[col.header].astype(str).str.strip().to_numpy(dtype=object)
-    work = chunk.copy()
+    work = chunk.copy(deep=False)     # copy on write: `chunk` keeps its cells
     columns = list(ctx.layout.columns)
     known = {(c.field, c.index): c for c in columns}
     for name in pd.unique(names[names != ""]):
