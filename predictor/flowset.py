@@ -24,10 +24,11 @@ from .viscosity import relative_viscosity
 #: Final bracket width of `max_loading` on the effective solid volume fraction. [-]
 LOADING_TOLERANCE = 1e-9
 
-#: Trial loadings `max_loading` spends per engine call on rows whose curve jumps (shared
-#: among those rows, at most `_GRID_POINTS_MAX` each, at least one: then bisection).
-_GRID_POINTS_PER_CALL = 256
-_GRID_POINTS_MAX = 15
+#: Evenly spaced trial loadings per engine call that `max_loading` adds on a row whose
+#: curve jumps: its bracket shrinks 8 times per call (bisection: 2), in about the same
+#: number of evaluations. The same on every row, so a row's answer does not depend on the
+#: other rows of the set.
+GRID_POINTS = 7
 
 #: Zero-shear over high-shear packing limit of Brownian hard spheres, 0.63/0.71 (de Kruif et
 #: al., J. Chem. Phys. 83, 4717, 1985; from memory, not checked against the source).
@@ -324,9 +325,11 @@ def max_loading(fs: FormulationSet, viscosity_limit_Pa_s, shear_rate_1_per_s=1.0
     The one solver of the question "how much can I load": each row's solids are scaled
     along their shares (droplets stay, `FormulationSet.at_loading`), and the viscosity at
     the shear rate comes from `evaluate`, so thinning, thickening and non-Newtonian
-    liquids count. A bracketing search vectorised over rows (regula falsi with bisection
-    steps, see the comments) narrows [0, phi_max] to `tolerance`; packing-limited rows
-    answer phi_max (1 - 1e-9).
+    liquids count. A bracketing search vectorised over rows (regula falsi, with several
+    evenly spaced trial loadings per call where the curve jumps, see the comments) narrows
+    [0, phi_max] to `tolerance`; packing-limited rows answer phi_max (1 - 1e-9). The
+    viscosity is taken to rise with loading; where it jumps up and falls back, the answer
+    is a crossing of the limit, not necessarily the lowest.
 
     Parameters
     ----------
@@ -399,11 +402,12 @@ def max_loading(fs: FormulationSet, viscosity_limit_Pa_s, shear_rate_1_per_s=1.0
     # u = -ln(1 - phi/phi_top), where ln(eta) of a relation diverging at phi_top is nearly
     # straight; each step evaluates the two points half a tolerance either side of the
     # estimate, so an accurate estimate closes the bracket at once. A row whose step did not
-    # halve the bracket (a jump in the curve) or whose excess is not finite also gets `k`
-    # evenly spaced points across its bracket in the same engine call (a multi-point
-    # search: the bracket shrinks k + 1 times per call, where bisection halved it). The
-    # curve rises with phi: the new bracket is [last point below the limit, first above].
-    # The answer is the lower end.
+    # halve the bracket (a jump in the curve; from then on, every step) or whose excess is
+    # not finite also gets `GRID_POINTS` evenly spaced points across its bracket in the same
+    # engine call (a multi-point search: the bracket shrinks GRID_POINTS + 1 times per call
+    # where bisection halved it, whose points include). The new bracket is [the last point
+    # under the limit, the first over it]. The answer is the lower end: a crossing of the
+    # limit; where the curve jumps up and falls back, not necessarily the first one.
     rows = np.flatnonzero(~thick0 & ~roomy)
     low, high = np.zeros(n), top.copy()
     side = np.zeros(n, int)
@@ -427,7 +431,7 @@ def max_loading(fs: FormulationSet, viscosity_limit_Pa_s, shear_rate_1_per_s=1.0
         pair = np.stack([np.clip(x - step, lo + step, hi - 3 * step),
                          np.clip(x + step, lo + 3 * step, hi - step)])       # (2, r)
         grid_rows = np.flatnonzero(~ok)
-        k = int(np.clip(_GRID_POINTS_PER_CALL // max(grid_rows.size, 1), 1, _GRID_POINTS_MAX))
+        k = GRID_POINTS
         fractions = np.arange(1, k + 1) / (k + 1.0)
         grid = lo[grid_rows] + width[grid_rows] * fractions[:, None]          # (k, g)
         f_all = excess(np.concatenate([pair.ravel(), grid.ravel()]),
