@@ -634,7 +634,7 @@ def candidates(scenario: str, factors: tuple[tuple[str, float, float], ...], des
                                             windows=list(windows) or None)
         out = {"candidates_from_design_map.csv": table.to_csv(index=False,
                                                               float_format="%.12g").encode()}
-        out.update({name: frame.to_csv(index=False).encode() for name, frame in files.items()})
+        out.update(cand.file_bytes(files))
         return out
     return dict(zip(("value", "warnings"), _captured(run), strict=True))
 

@@ -160,7 +160,7 @@ DEFAULTS: dict[str, object] = {
     # Design map page (loadings in % on the chosen basis, windows in SI)
     "map_mode": "plane", "map_x": 0, "map_y": 1, "map_parts": [0, 1, -1],
     "map_x_low": 20.0, "map_x_high": 60.0, "map_y_low": 0.0, "map_y_high": 40.0,
-    "map_rate": 100.0, "map_n": 11, "map_basis": "mass", "map_message": "",
+    "map_rate": 100.0, "map_n": 41, "map_basis": "mass", "map_message": "",
     "map_windows": [{"name": "pumping", "shear_rate_1_per_s": 100.0,
                      "max_viscosity_Pa_s": 2.0, "min_viscosity_Pa_s": None},
                     {"name": "sag resistance", "shear_rate_1_per_s": 0.1,

@@ -2218,9 +2218,11 @@ def screen_on_dask(chunks, base_dir, viscosity_unit: str, cluster="") -> Iterato
 
 
 def _size_table_paths(ctx: _Context) -> list[pathlib.Path]:
-    """The size-table files a run has read (the first item of each size-cache key)."""
+    """The size-table files a run has read (the first item of each size-cache key; a base
+    scenario's own distributions are no files), and the base scenarios it read."""
     return [ctx.base_dir / key[0] for key in ctx.size_cache
-            if isinstance(key, tuple) and key and isinstance(key[0], str) and key[0]]
+            if isinstance(key, tuple) and key and isinstance(key[0], str) and key[0]
+            and not key[0].startswith(_BASE)] + [ctx.base_dir / name for name in ctx.base_cache]
 
 
 def _check_unit(viscosity_unit: str) -> None:

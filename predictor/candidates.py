@@ -10,10 +10,12 @@ basis), ``ingredient k d50`` [m] (the whole size distribution is scaled so that 
 the value), ``temperature`` [K], ``liquid viscosity`` [Pa*s] (a Newtonian liquid) and
 ``glycerol`` (mass fraction of a glycerol-water liquid).
 
-The batch screen reads Newtonian liquids (water, glycerol-water, a given viscosity) without
-frictional thickening, calibrated parameters or a given intrinsic viscosity; a scenario
-using any of these is refused with the field named, rather than written as a different
-recipe.
+The scenario itself is written beside the table (a ``*.loadline.json`` named in the table's
+``base scenario`` column; see `predictor.batch`): every row starts from it, so any liquid law,
+Arrhenius shift, thickening, intrinsic viscosity or size distribution the scenario holds
+reaches the screen, and the table holds only the columns that vary. What the batch cannot
+read from a base scenario (calibrated relation parameters, particle interactions) is
+refused with the field named, rather than written as a different recipe.
 """
 
 from __future__ import annotations
@@ -32,6 +34,8 @@ MAX_ROWS = 100_000
 _FACTOR = re.compile(r"^\s*(?:ingredient\s+(?P<k>\d+)\s+(?P<what>loading|d50)|"
                      r"(?P<liquid>temperature|liquid viscosity|glycerol))\s*$", re.IGNORECASE)
 # SI ranges a factor may take (the screening limits of formulation.py; common practice).
+#: Default file name of the scenario written beside a candidate table.
+BASE_NAME = "candidates_base.loadline.json"
 _BOUNDS = {"loading": (0.0, 1.0), "d50": (1e-9, 1e-2), "temperature": (150.0, 700.0),
            "liquid viscosity": (1e-7, 1e7), "glycerol": (0.0, 1.0)}
 
@@ -113,25 +117,19 @@ def _factor(name: str, formulation: fm.Formulation) -> tuple[str, int | None]:
 
 
 def _check_batch_can_read(formulation: fm.Formulation) -> None:
-    liquid = formulation.liquid
-    if not liquid.preset and liquid.law != "newtonian":
-        raise InputRangeError("liquid law", liquid.law, "water, glycerol-water or a Newtonian "
-                              "liquid (the batch screen reads Newtonian liquids)")
-    if liquid.activation_temperature_K is not None and not liquid.preset:
-        raise InputRangeError("liquid activation temperature", liquid.activation_temperature_K,
-                              "none (the candidate table has no Arrhenius column)")
-    if formulation.thickening_onset_stress_Pa is not None:
-        raise InputRangeError("thickening_onset_stress_Pa",
-                              formulation.thickening_onset_stress_Pa,
-                              "none (the batch screen has no frictional thickening)")
-    if formulation.model_params:
-        raise InputRangeError("model_params", ", ".join(formulation.model_params),
-                              "none (the candidate table has no calibrated parameters)")
+    """Refuse what the batch does not read from a base scenario (names the field)."""
+    if formulation.model_params or formulation.droplet_model_params:
+        names = {**formulation.model_params, **formulation.droplet_model_params}
+        raise InputRangeError("model_params", ", ".join(sorted(names)),
+                              "none (the batch screen has no calibrated parameters)")
     for k, ing in enumerate(formulation.ingredients):
-        if ing.intrinsic_viscosity is not None:
-            raise InputRangeError(f"ingredients[{k}].intrinsic_viscosity",
-                                  ing.intrinsic_viscosity,
-                                  "none (the candidate table estimates it from the shape)")
+        for name in ("surface_potential_V", "hamaker_J"):
+            if getattr(ing, name) is not None:
+                raise InputRangeError(f"ingredients[{k}].{name}", getattr(ing, name),
+                                      "none (the batch screen has no particle interactions)")
+        if ing.flocculated:
+            raise InputRangeError(f"ingredients[{k}].flocculated", True,
+                                  "false (the batch screen has no particle interactions)")
 
 
 def _size_table(dist) -> pd.DataFrame:
@@ -140,8 +138,8 @@ def _size_table(dist) -> pd.DataFrame:
 
 
 def candidate_table(formulation: fm.Formulation, factors: dict, design: str = "full-factorial",
-                    n: int = 16, levels: int = 3, seed: int = 0,
-                    windows=None) -> tuple[pd.DataFrame, dict[str, pd.DataFrame]]:
+                    n: int = 16, levels: int = 3, seed: int = 0, windows=None,
+                    base_name: str = BASE_NAME) -> tuple[pd.DataFrame, dict]:
     """Rows of a candidate table varying chosen factors of a scenario, for the batch screen.
 
     Parameters
@@ -154,14 +152,18 @@ def candidate_table(formulation: fm.Formulation, factors: dict, design: str = "f
         As in `design_points`.
     windows : iterable, optional
         Process windows (as in `design.loading_map`) written as the table's window columns.
+    base_name : str
+        File name of the scenario written beside the table (``*.loadline.json``).
 
     Returns
     -------
     table : pandas.DataFrame
-        One candidate per row, in the batch screen's column format.
-    size_tables : dict
-        File name -> size table (``size [um]``, ``amount [vol%]``) for the ingredients with a
-        size distribution; write them next to the table (the table names them).
+        One candidate per row, in the batch screen's column format: ``base scenario`` and
+        the varied columns.
+    files : dict
+        File name -> content to write next to the table (`file_bytes`): the base scenario
+        (JSON text) and a size table (``size [um]``, ``amount [vol%]``) per scaled size
+        distribution.
 
     Examples
     --------
@@ -170,11 +172,15 @@ def candidate_table(formulation: fm.Formulation, factors: dict, design: str = "f
     >>> from predictor.formulation import Formulation, Ingredient
     >>> form = Formulation(ingredients=(Ingredient("filler", 2700.0, 0.3, diameter_m=5e-6),))
     >>> table, files = candidate_table(form, {"ingredient 1 loading": (0.2, 0.4)})
-    >>> table["ingredient 1 loading [wt fraction]"].round(3).tolist()
-    [0.2, 0.3, 0.4]
+    >>> table["ingredient 1 loading [wt fraction]"].round(3).tolist(), sorted(files)
+    ([0.2, 0.3, 0.4], ['candidates_base.loadline.json'])
     """
+    from . import scenario
     from .design import _windows
 
+    if not str(base_name).endswith(".loadline.json") or "/" in str(base_name) \
+            or "\\" in str(base_name):
+        raise InputRangeError("base_name", base_name, "a file name ending in .loadline.json")
     _check_batch_can_read(formulation)
     if not isinstance(factors, dict) or not factors:
         raise InputRangeError("factors", factors, "a dict of factor name -> (low, high)")
@@ -193,51 +199,32 @@ def candidate_table(formulation: fm.Formulation, factors: dict, design: str = "f
         bounds.append((low, high))
     points = design_points(bounds, design, n, levels, seed)
     rows = len(points)
-    liquid = formulation.liquid
     columns: dict[str, object] = {
         "candidate": [f"{formulation.name or 'candidate'} #{i + 1}" for i in range(rows)],
-        "liquid": liquid.preset or "newtonian",
-        "temperature [K]": liquid.temperature_K,
-        "liquid density [kg/m3]": liquid.density_kg_per_m3,
-        "relation": formulation.model, "droplet relation": formulation.droplet_model}
-    if not liquid.preset:
-        columns["liquid viscosity [Pa*s]"] = float(liquid.params.get("viscosity_Pa_s", 1e-3))
-    if liquid.preset == "glycerol-water":
-        columns["glycerol [wt fraction]"] = liquid.glycerol_mass_fraction
-    values = {parsed[j]: points[:, j] for j in range(len(parsed))}
-    for what, column in (("temperature", "temperature [K]"),
-                         ("liquid viscosity", "liquid viscosity [Pa*s]"),
-                         ("glycerol", "glycerol [wt fraction]")):
-        if (what, None) in values:
-            columns[column] = values[(what, None)]
-    files: dict[str, pd.DataFrame] = {}
-    for k, ing in enumerate(formulation.ingredients):
-        head = f"ingredient {k + 1}"
-        sign = "wt fraction" if ing.basis == "mass" else "vol fraction"
-        columns[head] = ing.name
-        columns[f"{head} kind"] = ing.kind
-        columns[f"{head} loading [{sign}]"] = values.get(("loading", k), ing.loading)
-        columns[f"{head} density [kg/m3]"] = ing.density_kg_per_m3
-        dist = ing.distribution()
-        d50 = values.get(("d50", k))
-        if ing.size is None:
-            columns[f"{head} d50 [m]"] = ing.diameter_m if d50 is None else d50
+        "base scenario": base_name}
+    files: dict[str, object] = {base_name: scenario.dumps(formulation)}
+    for (what, k), values in zip(parsed, points.T, strict=True):
+        if k is None:
+            column = {"temperature": "temperature [K]",
+                      "liquid viscosity": "liquid viscosity [Pa*s]",
+                      "glycerol": "glycerol [wt fraction]"}[what]
+            columns[column] = values
+            continue
+        ing, head = formulation.ingredients[k], f"ingredient {k + 1}"
+        if what == "loading":
+            sign = "wt fraction" if ing.basis == "mass" else "vol fraction"
+            columns[f"{head} loading [{sign}]"] = values
+        elif ing.size is None:
+            columns[f"{head} d50 [m]"] = values
         else:
-            names = []
-            scales = np.ones(rows) if d50 is None else d50 / dist.d50_m
-            for scale in scales:
+            dist, names = ing.size, []
+            for scale in values / dist.d50_m:
                 name = f"sizes_{k + 1}_{scale:.12g}.csv".replace("+", "")
                 if name not in files:
                     files[name] = _size_table(type(dist)(dist.diameters_m * scale,
                                                          dist.fractions))
                 names.append(name)
             columns[f"{head} size table"] = names
-        columns[f"{head} aspect ratio [-]"] = ing.aspect_ratio
-        columns[f"{head} layer [m]"] = ing.layer_thickness_m
-        if ing.phi_max is not None:
-            columns[f"{head} phi_max [-]"] = ing.phi_max
-        if ing.kind == fm.DROPLET and ing.droplet_viscosity_Pa_s is not None:
-            columns[f"{head} droplet viscosity [Pa*s]"] = ing.droplet_viscosity_Pa_s
     for j, w in enumerate(_windows(windows) if windows is not None else [], start=1):
         columns[f"window {j}"] = w.name
         columns[f"window {j} shear rate [1/s]"] = w.shear_rate_1_per_s
@@ -246,3 +233,9 @@ def candidate_table(formulation: fm.Formulation, factors: dict, design: str = "f
         if w.min_viscosity_Pa_s is not None:
             columns[f"window {j} min viscosity [Pa*s]"] = w.min_viscosity_Pa_s
     return pd.DataFrame(columns), files      # scalars repeat down the rows
+
+
+def file_bytes(files: dict) -> dict[str, bytes]:
+    """`candidate_table`'s files as bytes to write beside the table (size tables as CSV)."""
+    return {name: (content.to_csv(index=False).encode() if isinstance(content, pd.DataFrame)
+                   else str(content).encode("utf-8")) for name, content in files.items()}

@@ -814,23 +814,24 @@ def _factor_arg(form, text: str) -> tuple[str, tuple[float, float]]:
 
 def cmd_candidates(args) -> int:
     from . import candidates
-    from .batch import write_csv
     from .files import atomic_write
 
     form = _scenario(args.scenario)
     factors = dict(_factor_arg(form, t) for t in args.factor)
     windows = [_window_arg(t) for t in args.window or []] or None
-    table, size_tables = candidates.candidate_table(
-        form, factors, design=args.design, n=args.n, levels=args.levels, seed=args.seed,
-        windows=windows)
     out = pathlib.Path(args.output)
     if out.suffix.lower() != ".csv":
         raise UnitError(f"-o {args.output!r}: the candidate table is written as .csv")
+    base = f"{out.stem}.base.loadline.json"
+    table, files = candidates.candidate_table(
+        form, factors, design=args.design, n=args.n, levels=args.levels, seed=args.seed,
+        windows=windows, base_name=base)
     atomic_write(out, table.to_csv(index=False, float_format="%.12g"), inputs=[args.scenario])
-    for name, frame in size_tables.items():
-        write_csv(frame, out.parent / name)
-    print(f"wrote {len(table)} candidates ({args.design}) to {out}"
-          + (f" and {len(size_tables)} size tables beside it" if size_tables else "")
+    for name, data in candidates.file_bytes(files).items():
+        atomic_write(out.parent / name, data, inputs=[args.scenario])
+    sizes = len(files) - 1
+    print(f"wrote {len(table)} candidates ({args.design}) to {out}, the scenario beside it "
+          f"as {base}" + (f" and {sizes} size tables" if sizes else "")
           + f"; screen them with: loadline screen {out}")
     return EXIT_OK
 

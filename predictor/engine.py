@@ -7,9 +7,10 @@ as arrays (struct of arrays, one element per row), and `evaluate` solves the flo
 every row at M shear rates at once with `shear.flow_curves`, the same model and solve as
 `shear.flow_curve`. `predict` is N = 1.
 
-How a formulation becomes a row is `formulation.mixture` (volume fractions, packing limit,
-intrinsic viscosity) and the choices documented in `formulation.predict`; nothing is
-computed twice in two ways.
+How formulations become rows is `formulation.mixtures` (volume fractions, packing limit,
+intrinsic viscosity, vectorised over rows) and `formulation.set_columns` (the choices
+documented in `formulation.predict`); `formulation.mixture` and `row_inputs` are their
+one-row case, so nothing is computed twice in two ways.
 
 >>> from predictor import engine
 >>> from predictor.formulation import Formulation, Ingredient
@@ -22,7 +23,6 @@ computed twice in two ways.
 
 from __future__ import annotations
 
-import dataclasses
 from collections.abc import Iterable, Mapping
 
 import numpy as np
@@ -96,15 +96,24 @@ def vary(formulation: fm.Formulation, loadings: Mapping[int, object],
     except ValueError:
         raise InputRangeError("loadings", {k: v.shape for k, v in arrays.items()},
                               "arrays of one length") from None
-    table = dict(zip(arrays, columns, strict=True))
     n = columns[0].size
-    rows = []
-    for i in range(n):
-        new = list(ings)
-        for k, col in table.items():
-            new[k] = dataclasses.replace(ings[k], loading=float(col[i]), basis=basis)
-        try:
-            rows.append(fm.row_inputs(dataclasses.replace(formulation, ingredients=tuple(new))))
-        except InputRangeError as err:
-            raise InputRangeError(f"row {i}: {err.field}", err.value, err.allowed) from None
-    return from_rows(rows)
+    table = np.tile(np.array([i.loading for i in ings], dtype=float), (n, 1))
+    is_mass = np.array([i.basis == "mass" for i in ings])
+    for k, col in zip(arrays, columns, strict=True):
+        bad = ~(np.isfinite(col) & (col >= 0.0) & (col <= 1.0))
+        if bad.any():
+            i = int(np.flatnonzero(bad)[0])
+            raise InputRangeError(f"row {i}: ingredients[{k}].loading", float(col[i]),
+                                  "a number from 0 to 1")
+        table[:, k] = col
+        is_mass[k] = basis == "mass"
+    try:
+        mix = fm.mixtures(formulation, table, is_mass)
+    except InputRangeError:
+        for i in range(n):          # name the first row that fails
+            try:
+                fm.mixtures(formulation, table[i:i + 1], is_mass)
+            except InputRangeError as err:
+                raise InputRangeError(f"row {i}: {err.field}", err.value, err.allowed) from None
+        raise
+    return FormulationSet(**fm.set_columns(formulation, mix))

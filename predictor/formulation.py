@@ -219,6 +219,9 @@ class Mixture:
 
     Arrays run over the ingredients in their order. `solid_shares` are the solids' shares of
     the total effective solid volume; the loading sweep scales the solids along them.
+    `mixtures` gives N variants at once: then the per-row fields carry a leading row axis
+    (phi and mass_fraction (N, K), the fractions, phi_max, intrinsic viscosity and density
+    (N,)) and `row` picks one.
     """
 
     phi: np.ndarray                 # volume fraction of each ingredient [-]
@@ -238,43 +241,102 @@ class Mixture:
         """Jamming headroom phi_eff / phi_max of the solids (1 = jammed)."""
         return self.phi_solids_effective / self.phi_max if self.phi_max else 0.0
 
+    def row(self, i: int) -> Mixture:
+        """Row `i` of a `mixtures` result, as the `mixture` of that one variant."""
+        return dataclasses.replace(self, **{
+            name: (getattr(self, name)[i] if name in _PER_ROW_ARRAYS
+                   else float(getattr(self, name)[i])) for name in _PER_ROW})
+
+    def rows(self) -> Mixture:
+        """A one-row `mixtures` result of this `mixture` (per-row fields get a row axis)."""
+        if np.ndim(self.phi_solids):
+            return self
+        return dataclasses.replace(self, **{
+            name: np.asarray(getattr(self, name), dtype=float)[None] for name in _PER_ROW})
+
+
+_PER_ROW_ARRAYS = ("phi", "mass_fraction")
+_PER_ROW = _PER_ROW_ARRAYS + ("phi_solids", "phi_solids_effective", "phi_droplets", "phi_max",
+                              "intrinsic_viscosity", "density_kg_per_m3")
+
 
 def mixture(formulation: Formulation) -> Mixture:
-    """Resolve loadings, packing limit and shape parameters of `formulation`."""
+    """Resolve loadings, packing limit and shape parameters of `formulation`.
+
+    The one-row case of `mixtures`.
+    """
+    return mixtures(formulation).row(0)
+
+
+def mixtures(formulation: Formulation, loadings=None, is_mass=None) -> Mixture:
+    """`mixture` of N variants of one formulation at once, vectorised over the rows.
+
+    Parameters
+    ----------
+    formulation : Formulation
+        Every field but the loadings is taken from it.
+    loadings : array_like, optional
+        (N, K) loading of each ingredient in each row, fractions (0-1); default the
+        formulation's own (one row).
+    is_mass : array_like of bool, optional
+        (K,) or (N, K): True where a loading is a mass fraction; default each ingredient's
+        basis.
+
+    Returns
+    -------
+    Mixture
+        With a leading row axis on the per-row fields (see `Mixture`).
+    """
     ings = formulation.ingredients
     liq = formulation.liquid
     eta_l = liq.newtonian_viscosity_Pa_s()
+    if loadings is None:
+        loadings = [[i.loading for i in ings]]
+    if is_mass is None:
+        is_mass = [i.basis == "mass" for i in ings]
+    w_in = np.atleast_2d(np.asarray(loadings, dtype=float))
+    n = w_in.shape[0]
     if not ings:
-        return Mixture(np.zeros(0), np.zeros(0), np.zeros(0, bool), np.zeros(0), 0.0, 0.0, 0.0,
-                       RANDOM_CLOSE_SPHERES, 2.5, eta_l, liq.density_kg_per_m3)
+        zero = np.zeros(n)
+        return Mixture(np.zeros((n, 0)), np.zeros((n, 0)), np.zeros(0, bool), np.zeros(0), zero,
+                       zero, zero, np.full(n, RANDOM_CLOSE_SPHERES), np.full(n, 2.5), eta_l,
+                       np.full(n, liq.density_kg_per_m3))
     rho = np.array([i.density_kg_per_m3 for i in ings], dtype=float)
-    phi = composition.volume_fractions([i.loading for i in ings],
-                                       [i.basis == "mass" for i in ings], rho,
-                                       liq.density_kg_per_m3)
+    phi = composition.volume_fractions(w_in, is_mass, rho, liq.density_kg_per_m3)
     w = composition.mass_fractions(phi, rho, liq.density_kg_per_m3)
     is_solid = np.array([i.kind == SOLID for i in ings])
     dists = [i.distribution() for i in ings]
     swelling = np.array([
         (1.0 + i.layer_thickness_m / (0.5 * d.sauter_diameter_m)) ** 3 if i.kind == SOLID else 1.0
         for i, d in zip(ings, dists, strict=True)])
-    phi_s = float(phi[is_solid].sum())
-    phi_eff = float((phi * swelling)[is_solid].sum())
+    phi_s = phi[:, is_solid].sum(axis=1)
+    phi_eff = (phi * swelling)[:, is_solid].sum(axis=1)
     phi_max, eta_i = _solid_packing(ings, dists, phi * swelling, is_solid)
     # A calibration (model_params) overrides the estimates everywhere, not only in the relation.
-    phi_max = float(formulation.model_params.get("phi_max", phi_max))
-    eta_i = float(formulation.model_params.get("intrinsic_viscosity", eta_i))
-    return Mixture(phi, w, is_solid, swelling, phi_s, phi_eff, float(phi[~is_solid].sum()),
+    phi_max = np.broadcast_to(np.asarray(formulation.model_params.get("phi_max", phi_max),
+                                         dtype=float), (n,)).copy()
+    eta_i = np.broadcast_to(np.asarray(
+        formulation.model_params.get("intrinsic_viscosity", eta_i), dtype=float), (n,)).copy()
+    return Mixture(phi, w, is_solid, swelling, phi_s, phi_eff, phi[:, ~is_solid].sum(axis=1),
                    phi_max, eta_i, eta_l,
-                   float(composition.mixture_density(phi, rho, liq.density_kg_per_m3)))
+                   np.atleast_1d(composition.mixture_density(phi, rho, liq.density_kg_per_m3)))
 
 
 def _solid_packing(ings, dists, phi_eff, is_solid):
-    """phi_max and intrinsic viscosity of the solids (see the module docstring)."""
+    """phi_max and intrinsic viscosity (N,) of the solids in each row of `phi_eff` (N, K).
+
+    See the module docstring. The solids' blend weights differ per row; each powder's shape
+    factor, intrinsic viscosity and size classes are resolved once, and the packing limits
+    of all the rows' blends come from one call of `packing.max_packing_blends` (the estimate
+    `packing.max_packing` gives each blend), whose validity notes are warned once each.
+    """
+    n = phi_eff.shape[0]
     solid = [k for k in range(len(ings)) if is_solid[k]]
     if not solid:
-        return RANDOM_CLOSE_SPHERES, 2.5
-    weights = phi_eff[solid]
-    weights = weights / weights.sum() if weights.sum() > 0 else np.full(len(solid), 1 / len(solid))
+        return np.full(n, RANDOM_CLOSE_SPHERES), np.full(n, 2.5)
+    weights = phi_eff[:, solid]
+    total = weights.sum(axis=1, keepdims=True)
+    weights = np.where(total > 0, weights / np.where(total > 0, total, 1.0), 1.0 / len(solid))
     shape = np.array([packing.phi_max_for_aspect_ratio(ings[k].aspect_ratio)
                       / packing.phi_max_for_aspect_ratio(1.0) for k in solid])
     eta_i = np.array([ings[k].intrinsic_viscosity if ings[k].intrinsic_viscosity is not None
@@ -284,14 +346,19 @@ def _solid_packing(ings, dists, phi_eff, is_solid):
         own = np.array([ings[k].phi_max if ings[k].phi_max is not None else
                         shape[j] * packing.max_packing(dists[k].diameters_m, dists[k].fractions)
                         for j, k in enumerate(solid)])
-        phi_max = float(weights @ own)
+        phi_max = weights @ own
     else:
-        combined = sizes.SizeDistribution.blend([dists[k] for k in solid], weights,
-                                                basis="volume")
-        phi_max = float(weights @ shape) * float(
-            packing.max_packing(combined.diameters_m, combined.fractions))
+        grid = np.unique(np.concatenate([dists[k].diameters_m for k in solid]))
+        classes = np.zeros((len(solid), grid.size))
+        for j, k in enumerate(solid):
+            classes[j, np.searchsorted(grid, dists[k].diameters_m)] = dists[k].fractions
+        classes /= classes.sum(axis=1, keepdims=True)
+        blended, notes = packing.max_packing_blends(grid, classes, weights)
+        for note in dict.fromkeys(str(x) for x in notes if x):
+            warnings.warn(note, packing.ValidityWarning, stacklevel=4)
+        phi_max = (weights @ shape) * blended
     # clip: a weighted mean of equal values must not round outside their range
-    return phi_max, float(np.clip(weights @ eta_i, eta_i.min(), eta_i.max()))
+    return phi_max, np.clip(weights @ eta_i, eta_i.min(), eta_i.max())
 
 
 def _relation_params(spec, mix: Mixture, overrides: dict) -> dict:
@@ -323,16 +390,24 @@ def droplet_factor(formulation: Formulation, mix: Mixture) -> float:
 
 
 def droplet_relation(formulation: Formulation, mix: Mixture) -> tuple[str, dict]:
-    """Emulsion relation of the droplets and its parameters (viscosity ratio, overrides)."""
+    """Emulsion relation of the droplets and its parameters (viscosity ratio, overrides).
+
+    For a `mixtures` result the viscosity ratio is an array over the rows (nan in rows
+    without droplets); for one `mixture` a float, left out without droplets.
+    """
     spec = get_model(formulation.droplet_model, kind="emulsion")
-    drops = [(k, i) for k, i in enumerate(formulation.ingredients) if i.kind == DROPLET]
+    drops = [k for k, i in enumerate(formulation.ingredients) if i.kind == DROPLET]
+    rows = mix.rows()
     params = {}
-    if drops and mix.phi_droplets > 0.0 and "viscosity_ratio" in spec.param_names():
-        volume = np.array([mix.phi[k] for k, _ in drops])
-        eta_d = np.array([i.droplet_viscosity_Pa_s if i.droplet_viscosity_Pa_s is not None
-                          else mix.liquid_viscosity_Pa_s for _, i in drops])
-        params["viscosity_ratio"] = float(volume @ eta_d / volume.sum()) / \
-            mix.liquid_viscosity_Pa_s
+    on = rows.phi_droplets > 0.0
+    if drops and on.any() and "viscosity_ratio" in spec.param_names():
+        volume = rows.phi[:, drops]
+        eta_d = np.array([formulation.ingredients[k].droplet_viscosity_Pa_s
+                          if formulation.ingredients[k].droplet_viscosity_Pa_s is not None
+                          else mix.liquid_viscosity_Pa_s for k in drops])
+        total = np.where(on, volume.sum(axis=1), 1.0)
+        ratio = np.where(on, volume @ eta_d / total, np.nan) / mix.liquid_viscosity_Pa_s
+        params["viscosity_ratio"] = ratio if rows is mix else float(ratio[0])
     params.update({k: v for k, v in formulation.droplet_model_params.items()
                    if k in spec.param_names()})
     return spec.name, params
@@ -374,50 +449,82 @@ def _liquid_law_of(liquid: Liquid) -> tuple[str, dict]:
                        for k, v in params.items()}
 
 
-def _solid_radius_m(formulation: Formulation, mix: Mixture) -> float | None:
-    """Sauter radius of all solids together (total volume over total surface)."""
-    solids = [(k, i) for k, i in enumerate(formulation.ingredients) if i.kind == SOLID]
-    volume = np.array([mix.phi[k] for k, _ in solids])
-    if not solids or volume.sum() <= 0:
-        return None
-    radius = np.array([0.5 * i.distribution().sauter_diameter_m for _, i in solids])
-    return float(volume.sum() / np.sum(volume / radius))
+def _solid_radius_m(formulation: Formulation, mix: Mixture) -> np.ndarray:
+    """Sauter radius (N,) of all solids together in each row of a `mixtures` result (total
+    volume over total surface); nan where there is no solid."""
+    solids = [k for k, i in enumerate(formulation.ingredients) if i.kind == SOLID]
+    if not solids:
+        return np.full(mix.phi.shape[0], np.nan)
+    volume = mix.phi[:, solids]
+    radius = np.array([0.5 * formulation.ingredients[k].distribution().sauter_diameter_m
+                       for k in solids])
+    total = volume.sum(axis=1)
+    return np.where(total > 0, total / np.sum(volume / radius, axis=1), np.nan)
+
+
+def set_columns(formulation: Formulation, mix: Mixture) -> dict:
+    """The resolved inputs of N variants (a `mixtures` result): the fields of a
+    `FormulationSet`, arrays over the rows. See `predict` for the choices made.
+
+    `engine.vary` builds its set from these; `row_inputs` is their one-row case.
+    """
+    mix = mix.rows()
+    n = mix.phi.shape[0]
+
+    def full(value, dtype=float):
+        return np.broadcast_to(np.asarray(value, dtype=dtype), (n,)).copy()
+
+    law, params = liquid_law_of(formulation.liquid)
+    spec = get_model(formulation.model, kind="suspension")
+    rel = spec.check_params(_relation_params(spec, mix, formulation.model_params))
+    phi_max = full(rel.pop("phi_max", mix.phi_max))
+    droplet_model, droplet_params = droplet_relation(formulation, mix)
+    onset = formulation.thickening_onset_stress_Pa
+    frictional = formulation.phi_max_frictional
+    if onset is None:
+        frictional = np.nan
+    elif frictional is None:
+        frictional = FRICTIONAL_RATIO * phi_max
+    eff, bare = mix.phi_solids_effective, mix.phi_solids
+    held = float(np.mean(mix.swelling[mix.is_solid])) if mix.is_solid.any() else 1.0
+    swelling = np.where(eff > 0, eff / np.where(eff > 0, bare, 1.0), held)
+    return {
+        "phi": full(eff), "phi_solids": full(bare), "swelling": swelling,
+        "phi_droplets": full(mix.phi_droplets), "phi_max": phi_max,
+        "phi_max_frictional": full(frictional),
+        "onset_stress_Pa": full(np.nan if onset is None else onset),
+        "radius_m": _solid_radius_m(formulation, mix),
+        "temperature_K": full(formulation.liquid.temperature_K), "yield_stress_Pa": full(0.0),
+        "has_solids": full(mix.is_solid.any(), bool),
+        "liquid_law": full(law, object),
+        "liquid_params": {k: full(v) for k, v in params.items()},
+        "relation": full(spec.name, object),
+        "relation_params": {k: full(v) for k, v in rel.items()},
+        "droplet_model": full(droplet_model, object),
+        "droplet_params": {k: full(v) for k, v in droplet_params.items()},
+        "network": _networks(formulation, mix),
+    }
 
 
 def row_inputs(formulation: Formulation, mix: Mixture | None = None) -> dict:
     """The resolved inputs of one formulation, one row of a `FormulationSet`.
 
-    `mix` (default `formulation.mixture`) may be a mixture scaled in place. See
-    `predict` for the choices made. `engine.stack` and `engine.vary` stack these rows.
+    `mix` (default `formulation.mixture`) may be a mixture scaled in place. The one-row
+    case of `set_columns` (see `predict` for the choices made); `engine.stack` stacks these
+    rows, `engine.vary` uses `set_columns` directly.
     """
-    mix = mix or mixture(formulation)
-    law, params = liquid_law_of(formulation.liquid)
-    spec = get_model(formulation.model, kind="suspension")
-    rel = spec.check_params(_relation_params(spec, mix, formulation.model_params))
-    phi_max = float(rel.pop("phi_max", mix.phi_max))
-    droplet_model, droplet_params = droplet_relation(formulation, mix)
-    onset = formulation.thickening_onset_stress_Pa
-    frictional = formulation.phi_max_frictional
-    if onset is not None and frictional is None:
-        frictional = FRICTIONAL_RATIO * phi_max
-    radius = _solid_radius_m(formulation, mix)
-    if mix.phi_solids_effective > 0:
-        swelling = mix.phi_solids_effective / mix.phi_solids
-    else:
-        swelling = float(np.mean(mix.swelling[mix.is_solid])) if mix.is_solid.any() else 1.0
-    return {
-        "phi": mix.phi_solids_effective, "phi_solids": mix.phi_solids, "swelling": swelling,
-        "phi_droplets": mix.phi_droplets, "phi_max": phi_max,
-        "phi_max_frictional": np.nan if onset is None else float(frictional),
-        "onset_stress_Pa": np.nan if onset is None else float(onset),
-        "radius_m": np.nan if radius is None else radius,
-        "temperature_K": formulation.liquid.temperature_K, "yield_stress_Pa": 0.0,
-        "has_solids": bool(mix.is_solid.any()),
-        "liquid_law": law, "liquid_params": params, "relation": spec.name,
-        "relation_params": rel, "droplet_model": droplet_model,
-        "droplet_params": droplet_params,
-        "network": flocculation_network(formulation, mix),
-    }
+    columns = set_columns(formulation, mix or mixture(formulation))
+    row = {}
+    for name, value in columns.items():
+        if isinstance(value, dict):
+            row[name] = {k: float(v[0]) for k, v in value.items() if not np.isnan(v[0])}
+        elif name in ("liquid_law", "relation", "droplet_model", "network"):
+            row[name] = value[0]
+        elif name == "has_solids":
+            row[name] = bool(value[0])
+        else:
+            row[name] = float(value[0])
+    return row
 
 
 def flow_curve_of(formulation: Formulation, shear_rate_1_per_s=None,
@@ -797,23 +904,31 @@ def flocculation_network(formulation: Formulation, mix: Mixture | None = None):
     (percolation threshold, phi_max, ((share, diameter_m, hamaker_J, separation_m,
     size_factor), ...)): constant while the solids are scaled along their shares, so the
     engine carries it per row and `network_yield_stress` gives the yield stress at any
-    loading.
+    loading. The one-row case of `_networks`.
     """
+    return _networks(formulation, (mix or mixture(formulation)).rows())[0]
+
+
+def _networks(formulation: Formulation, mix: Mixture) -> np.ndarray:
+    """`flocculation_network` of each row (N,) of a `mixtures` result (object array)."""
+    n = mix.phi.shape[0]
+    out = np.full(n, None, dtype=object)
     states = [s for s in particle_interactions(formulation) if s.verdict != "stable"]
     if not states:
-        return None
-    mix = mix or mixture(formulation)
+        return out
     names = [i.name for i in formulation.ingredients]
     volume = np.where(mix.is_solid, mix.phi * mix.swelling, 0.0)
-    total = volume.sum()
-    phi0 = min(interactions.YODEL_PERCOLATION, 0.5 * mix.phi_max)
-    terms = []
-    for state in states:
-        k = names.index(state.ingredient)
-        share = volume[k] / total if total > 0 else 1.0 / len(states)
-        terms.append((float(share), float(state.diameter_m), float(state.hamaker_J),
-                      float(min(state.separation_m, 1e-6)), float(state.size_factor)))
-    return (float(phi0), float(mix.phi_max), tuple(terms))
+    total = volume.sum(axis=1)
+    phi0 = np.minimum(interactions.YODEL_PERCOLATION, 0.5 * mix.phi_max)
+    picked = [names.index(state.ingredient) for state in states]
+    for i in range(n):
+        terms = tuple(
+            (float(volume[i, k] / total[i]) if total[i] > 0 else 1.0 / len(states),
+             float(state.diameter_m), float(state.hamaker_J),
+             float(min(state.separation_m, 1e-6)), float(state.size_factor))
+            for k, state in zip(picked, states, strict=True))
+        out[i] = (float(phi0[i]), float(mix.phi_max[i]), terms)
+    return out
 
 
 def _with_added_yield_stress(curve: shear.FlowCurve, yield_stress_Pa: float) -> shear.FlowCurve:

@@ -141,7 +141,24 @@ def test_candidates_bad_input_exit_1(capsys, tmp_path, slurry, argv, needle):
     assert not (tmp_path / "c.csv").exists()
 
 
-def test_candidates_refuse_the_thickened_paint(capsys, tmp_path):
-    code, _, err = run(capsys, "candidates", SCENARIO, "--factor",
-                       "ingredient 1 loading: 20 40 wt%", "-o", str(tmp_path / "c.csv"))
-    assert code == 1 and "liquid law" in err
+def test_candidates_of_the_thickened_paint_screen_to_predict(capsys, tmp_path):
+    # The demo paint's Carreau-Yasuda liquid reaches the screen through the base scenario
+    # written beside the table; each screened row equals `predict` of the same recipe.
+    import dataclasses
+
+    out = tmp_path / "paint.csv"
+    code, text, _ = run(capsys, "candidates", SCENARIO, "--factor",
+                        "ingredient 1 loading: 20 40 wt%", "--levels", "3", "--window",
+                        "stirring, 100 1/s, max 3 Pa*s", "-o", str(out))
+    assert code == 0 and "paint.base.loadline.json" in text
+    assert (tmp_path / "paint.base.loadline.json").exists()
+    code, _, _ = run(capsys, "screen", str(out), "-o", str(tmp_path / "screened.csv"))
+    screened = pd.read_csv(tmp_path / "screened.csv")
+    assert code == 0 and (screened["status"] == "ok").all()
+    form = read_scenario(SCENARIO)
+    for x, eta in zip([0.2, 0.3, 0.4], screened["window 1 viscosity [Pa*s]"], strict=True):
+        recipe = dataclasses.replace(form, ingredients=(
+            dataclasses.replace(form.ingredients[0], loading=x), *form.ingredients[1:]))
+        # the screen writes 6 significant digits (batch.write_csv)
+        assert eta == pytest.approx(predictor.predict(recipe, 100.0)["viscosity_Pa_s"][0],
+                                    rel=1e-5)

@@ -199,8 +199,8 @@ def test_candidate_rows_screen_to_predict_of_the_same_recipe(tmp_path, design_na
     table, files = candidates.candidate_table(form, factors, design=design_name, n=rows,
                                               levels=2, windows=[("pumping", 100.0, 0.01)])
     assert len(table) == rows
-    for name, frame in files.items():
-        frame.to_csv(tmp_path / name, index=False)
+    for name, data in candidates.file_bytes(files).items():
+        (tmp_path / name).write_bytes(data)
     result = batch.screen(table, base_dir=tmp_path)
     assert (result["status"] == "ok").all(), result["error"].tolist()
     points = candidates.design_points(list(factors.values()), design_name, rows, 2)
@@ -245,13 +245,47 @@ def test_bad_candidate_requests_name_the_field(kwargs, field):
     assert err.value.field == field
 
 
-def test_scenarios_the_batch_cannot_read_are_refused():
+def test_demo_paint_candidates_screen_to_predict_of_the_same_recipe(tmp_path):
+    # The demo paint (Carreau-Yasuda liquid, a sized pigment) is written beside the table
+    # as its base scenario; each screened row must equal `predict` of the same recipe.
+    from predictor import batch, candidates
+
+    form = scenario.read_scenario(DEMO)
+    factors = {"ingredient 1 loading": (0.2, 0.4), "ingredient 2 loading": (0.05, 0.2),
+               "ingredient 2 d50": (0.2e-6, 0.5e-6), "temperature": (288.15, 308.15)}
+    table, files = candidates.candidate_table(form, factors, design="halton", n=6,
+                                              windows=[("stirring", 100.0, 3.0)])
+    assert set(table["base scenario"]) == {candidates.BASE_NAME}
+    for name, data in candidates.file_bytes(files).items():
+        (tmp_path / name).write_bytes(data)
+    result = batch.screen(table, base_dir=tmp_path)
+    assert (result["status"] == "ok").all(), result["error"].tolist()
+    points = candidates.design_points(list(factors.values()), "halton", 6)
+    pigment = form.ingredients[1]
+    for i, (x, y, d50, temp) in enumerate(points):
+        size = type(pigment.size)(pigment.size.diameters_m * d50 / pigment.size.d50_m,
+                                  pigment.size.fractions)
+        recipe = dataclasses.replace(
+            form, liquid=dataclasses.replace(form.liquid, temperature_K=temp),
+            ingredients=(dataclasses.replace(form.ingredients[0], loading=x),
+                         dataclasses.replace(pigment, loading=y, size=size),
+                         *form.ingredients[2:]))
+        eta = float(fm.predict(recipe, 100.0)["viscosity_Pa_s"][0])
+        assert float(result["window 1 viscosity [Pa*s]"][i]) == pytest.approx(eta, rel=1e-6)
+
+
+@pytest.mark.parametrize(("change", "field"), [
+    ({"model_params": {"phi_max": 0.6}}, "model_params"),
+    ({"ingredients": (fm.Ingredient("clay", 2600.0, 0.2, hamaker_J=1e-20, flocculated=True),)},
+     "ingredients[0].hamaker_J"),
+])
+def test_scenarios_the_batch_cannot_read_are_refused(change, field):
     from predictor import candidates
 
+    form = dataclasses.replace(two_powders_in_water(), **change)
     with pytest.raises(InputRangeError) as err:
-        candidates.candidate_table(scenario.read_scenario(DEMO),
-                                   {"ingredient 1 loading": (0.2, 0.4)})
-    assert err.value.field == "liquid law"          # the demo paint's Carreau-Yasuda liquid
+        candidates.candidate_table(form, {"ingredient 1 loading": (0.1, 0.3)})
+    assert err.value.field == field
 
 
 # --- hostile arguments: a frame or an InputRangeError, never a crash -------------------------

@@ -109,6 +109,76 @@ def test_vary_names_bad_input(bad):
         engine.vary(f, loadings=bad)
 
 
+def _two_powder_paint():
+    """Two powders of different sizes (the blend's packing limit moves with their shares), an
+    adsorbed layer, a flocculated solid, droplets on a volume basis and thickening."""
+    return fm.Formulation(
+        liquid=LIQUIDS[4], thickening_onset_stress_Pa=80.0,
+        ingredients=(
+            fm.Ingredient("coarse", 2700.0, 0.30, size=fm.sizes.SizeDistribution.lognormal(
+                8e-6, 1.6), layer_thickness_m=20e-9),
+            fm.Ingredient("fine", 4200.0, 0.10, diameter_m=0.4e-6, hamaker_J=1e-20,
+                          flocculated=True),
+            fm.Ingredient("oil", 900.0, 0.05, basis="volume", kind="droplet",
+                          diameter_m=2e-6, droplet_viscosity_Pa_s=0.05,
+                          interfacial_tension_N_per_m=0.005)))
+
+
+def test_vary_rows_equal_the_one_row_resolution_of_each_variant():
+    # engine.vary resolves all rows at once (formulation.mixtures); every row must equal
+    # row_inputs of that variant built on its own: the same physics, one model.
+    f = _two_powder_paint()
+    x, y = np.meshgrid([0.05, 0.2, 0.35], [0.0, 0.08, 0.2])
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", ValidityWarning)
+        fs = engine.vary(f, loadings={0: x.ravel(), 1: y.ravel()}, basis="mass")
+        ref = engine.stack(dataclasses.replace(f, ingredients=(
+            dataclasses.replace(f.ingredients[0], loading=float(a)),
+            dataclasses.replace(f.ingredients[1], loading=float(b)), f.ingredients[2]))
+            for a, b in zip(x.ravel(), y.ravel(), strict=True))
+    assert len(np.unique(fs.phi_max.round(6))) > 3        # the blend's limit moves per row
+    for field in dataclasses.fields(fs):
+        ours, theirs = getattr(fs, field.name), getattr(ref, field.name)
+        if isinstance(ours, dict):
+            assert sorted(ours) == sorted(theirs)
+            for k in ours:
+                assert np.allclose(ours[k], theirs[k], rtol=1e-12, equal_nan=True), (field, k)
+        elif field.name == "network":
+            for a, b in zip(ours, theirs, strict=True):
+                assert (a is None) == (b is None)
+                if a is not None:
+                    assert a[:2] == pytest.approx(b[:2], rel=1e-12)
+                    assert np.allclose(a[2], b[2], rtol=1e-12)
+        elif ours.dtype.kind in "fb":
+            assert np.allclose(ours, theirs, rtol=1e-12, equal_nan=True), field.name
+        else:
+            assert list(ours) == list(theirs), field.name
+    # Mass to volume by hand (ideal mixing, common practice, no source): row 3 holds
+    # 5 wt% coarse (2700), 8 wt% fine (4200), 5 vol% oil (900) in the liquid (997 kg/m3):
+    # with rho_m the mixture density, phi_i = w_i rho_m / rho_i and
+    # rho_m = 0.05*900 + rho_l*(1 - 0.05 - phi_c - phi_f) + w_c rho_m + w_f rho_m.
+    rho_l = f.liquid.density_kg_per_m3
+    assert rho_l == 997.0
+    rho_m = (0.05 * 900.0 + rho_l * 0.95) / (1 - 0.05 - 0.08 + rho_l * (0.05 / 2700.0
+                                                                      + 0.08 / 4200.0))
+    assert fs.phi_solids[3] == pytest.approx(rho_m * (0.05 / 2700.0 + 0.08 / 4200.0), rel=1e-9)
+
+
+def test_mixture_is_the_one_row_case_of_mixtures():
+    f = _two_powder_paint()
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", ValidityWarning)
+        rows = fm.mixtures(f, [[0.1, 0.2, 0.05], [0.3, 0.0, 0.05]], [True, True, False])
+        one = fm.mixture(dataclasses.replace(f, ingredients=(
+            dataclasses.replace(f.ingredients[0], loading=0.3),
+            dataclasses.replace(f.ingredients[1], loading=0.0), f.ingredients[2])))
+    second = rows.row(1)
+    assert second.phi_max == pytest.approx(one.phi_max, rel=1e-12)
+    assert second.phi_solids_effective == pytest.approx(one.phi_solids_effective, rel=1e-12)
+    assert np.allclose(second.phi, one.phi, rtol=1e-12)
+    assert rows.phi_max[0] != pytest.approx(rows.phi_max[1], rel=1e-3)
+
+
 def test_additive_yield_stress_acts_like_herschel_bulkley():
     # A Newtonian liquid with an added yield stress tau_y is a Bingham liquid: the same
     # engine row with law "bingham" must give the same flow curve (Bingham 1922 form).

@@ -40,7 +40,7 @@ def test_user_phi_max_and_intrinsic_viscosity_are_used():
 
 
 def test_packing_called_with_si_diameters(mocker):
-    spy = mocker.spy(packing, "max_packing")
+    spy = mocker.spy(packing, "max_packing_blends")     # all rows' blends in one call
     fm.mixture(one_powder())
     diameters = np.asarray(spy.call_args.args[0])
     assert diameters.max() == pytest.approx(10e-6)

@@ -105,8 +105,9 @@ def controls(names: list[str]) -> None:
     st.radio("Loadings as", list(state.BASIS_LABELS), key="map_basis", horizontal=True,
              format_func=state.BASIS_LABELS.get)
     st.number_input("Shear rate of the map [1/s]", key="map_rate", format="%.4g", step=10.0)
-    st.slider("Grid points per side", 3, 41, key="map_n",
-              help="Each point is one full prediction; 41 is the finest grid.")
+    st.slider("Grid points per side", 3, 81, key="map_n",
+              help="Each point is one full prediction; all points are solved together in "
+                   "one vectorised call, so even 81 x 81 takes well under a second.")
 
 
 @widgets.page_body
@@ -247,14 +248,20 @@ def candidates_box(scenario: str, names: list[str], windows: tuple) -> None:
             return
         table = made["value"]
         count = table[next(iter(table))].count(b"\n") - 1
-        st.caption(f"{count} candidates, every other field as in the scenario; the map's "
-                   "windows become the table's windows.")
+        st.caption(f"{count} candidates, every other field as in the scenario (written beside "
+                   "the table as its base scenario); the map's windows become the table's "
+                   "windows.")
         row = st.container(horizontal=True, gap="small")
         row.button("Send to the Batch screen", key="cand_send", on_click=_send, args=(table,),
                    icon=":material/send:", type="primary")
         row.download_button("Candidate table (CSV)", data=table[next(iter(table))],
                             file_name=next(iter(table)), mime="text/csv", key="cand_csv",
                             on_click="ignore", icon=":material/download:")
+        base = [name for name in table if name.endswith(".loadline.json")]
+        if base:
+            row.download_button("Its base scenario (JSON)", data=table[base[0]],
+                                file_name=base[0], mime="application/json", key="cand_base",
+                                on_click="ignore", icon=":material/download:")
 
 
 def _table(grid: pd.DataFrame, unit: str) -> pd.DataFrame:

@@ -33,6 +33,15 @@ def test_opens_with_the_map_of_the_first_two_ingredients():
     assert [p["name"] for p in spec["params"]] == ["cell"]      # click selects a cell
 
 
+def test_opens_at_a_41_by_41_grid_equal_to_the_core_map():
+    # The engine solves all cells in one call (engine.vary), so the page opens at 41 x 41.
+    at = page("design_map").run()
+    assert not at.exception
+    grid = _reference(41)
+    assert metric(at, "Cells") == str(41 * 41) == str(len(grid))
+    assert metric(at, "Jammed") == str(int((grid["regime"] == "jammed").sum()))
+
+
 def test_a_clicked_cell_loads_that_recipe():
     # The click callback hands the cell's loadings to state.set_loadings; the scenario the
     # app then builds predicts exactly the cell's viscosity.
@@ -82,11 +91,11 @@ def test_candidates_go_to_the_batch_screen(tmp_path):
     table = files[name].decode().splitlines()
     assert len(table) == 1 + 9                         # 3 x 3 levels of the two loadings
     header = table[0].split(",")
-    assert "ingredient 1 loading [wt fraction]" in header and "ingredient 1 d50 [m]" in header
+    assert "ingredient 1 loading [wt fraction]" in header and "base scenario" in header
     column = header.index("ingredient 2 loading [wt fraction]")   # the map's y ingredient
     levels = sorted({float(line.split(",")[column]) for line in table[1:]})
     assert levels == pytest.approx([0.05, 0.10, 0.15])            # over the map's y range
-    assert any(n.startswith("sizes_2_") for n in files)  # the pigment's size table
+    assert any(n.endswith(".loadline.json") for n in files)  # the scenario beside it
     for file_name, data in files.items():                # what the Batch screen page reads
         (tmp_path / file_name).write_bytes(data)
     from predictor import batch
@@ -95,10 +104,19 @@ def test_candidates_go_to_the_batch_screen(tmp_path):
     assert summary.rows == 9 and summary.ok == 9, summary.first_errors
 
 
-def test_candidates_refuse_a_liquid_the_batch_cannot_read():
+def test_candidates_of_the_demo_paint_screen(tmp_path):
     at = page("design_map", map_n=3).run()                 # the demo paint: Carreau-Yasuda
     assert not at.exception
-    assert "liquid law" in messages(at)
+    assert "liquid law" not in messages(at)
+    at.button(key="cand_send").click().run()
+    assert not at.exception
+    files = at.session_state["batch_files"]
+    for file_name, data in files.items():                  # what the Batch screen page reads
+        (tmp_path / file_name).write_bytes(data)
+    from predictor import batch
+
+    summary, _ = batch.screen_file(tmp_path / at.session_state["batch_table_name"], keep=-1)
+    assert summary.rows == 9 and summary.ok == 9, summary.first_errors
 
 
 @pytest.mark.parametrize("big", [False, True])

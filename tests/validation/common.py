@@ -219,7 +219,20 @@ def water_result(key: str) -> dict:
 
 
 def check_emulsion(key: str, series: int, rms_max: float) -> dict:
-    """The checks every emulsion module makes; returns the result for its own extra checks."""
+    """The checks every emulsion module makes; returns the result for its own extra checks.
+
+    Run as a user would: the digitised file as it is, a Herschel-Bulkley fit of every series,
+    then Mason et al.'s yield stress against phi with phi_c free. Tolerances (our choice,
+    stated): rms error of the fits at most `rms_max` in ln(stress) (digitising error of a few
+    % plus the misfit of the law); fitted phi_c within `PHI_C_TOLERANCE` of the value the
+    paper reports (`EMULSIONS`); shear thinning (n < 1) in every series more than 0.02 above
+    the fitted phi_c (common practice, no source). Herschel-Bulkley beats a power law (no
+    yield stress) by more than 2 in AIC in every series above phi_c (Burnham & Anderson's
+    rule of thumb, from memory). Predicted (not fitted) with Loadline's jammed-emulsion flow
+    curve from the fitted Laplace pressure and phi_c (continuous phase 1 mPa*s assumed): the
+    median of measured / predicted stress above phi_c within a factor `PREDICTION_FACTOR`
+    (screening estimate; our choice).
+    """
     r = emulsion_result(key)
     assert r["series"] == series and not r["fits"].failed, r["fits"].failed
     assert r["rms_ln"] <= rms_max, r["rms_ln"]

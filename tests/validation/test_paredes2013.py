@@ -1,18 +1,9 @@
 """Paredes, Michels & Bonn, Phys. Rev. Lett. 111, 015701 (2013), Fig. 1: emulsions across
 jamming, phi 0.65-0.80.
 
-Run as a user would: the digitised file as it is
-(`data/emulsion_flowcurves_Paredes2013_fig1.csv`), a Herschel-Bulkley fit of every series,
-then Mason et al.'s yield stress against phi with phi_c free. Tolerances (our choice,
-stated): rms error of the fits at most 0.10 in ln(stress) (digitising error of a few % plus
-the misfit of the law); fitted phi_c within 0.05 of the value the paper reports (see
-`common.EMULSIONS`); shear thinning (n < 1) in every series more than 0.02 above the fitted
-phi_c (common practice, no source).
-Herschel-Bulkley beats a power law (no yield stress) by more than 2 in AIC in every
-series above phi_c (Burnham & Anderson's rule of thumb, from memory).
-Predicted (not fitted) with Loadline's jammed-emulsion flow curve from the fitted Laplace
-pressure and phi_c (continuous phase 1 mPa*s assumed): the median of measured / predicted
-stress above phi_c within a factor 3 (screening estimate; our choice).
+The digitised file as it is (`data/emulsion_flowcurves_Paredes2013_fig1.csv`)
+runs through the protocol and
+tolerances of `common.check_emulsion`.
 """
 
 from tests.validation import common
