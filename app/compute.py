@@ -12,6 +12,7 @@ from __future__ import annotations
 import contextlib
 import csv
 import dataclasses
+import functools
 import json
 import re
 import warnings
@@ -79,7 +80,23 @@ def scenario_json(document_text: str) -> str:
 
 
 def formulation(scenario: str) -> fm.Formulation:
-    return sc.loads(scenario)
+    """The Formulation of a scenario text, parsed once per text (a run asks several times).
+
+    The parser's warnings are raised again on every call, so each cached wrapper that
+    captures them still shows them; a parse error is not cached.
+    """
+    form, caught = _parsed(scenario)
+    for category, text in caught:
+        warnings.warn(text, category, stacklevel=2)
+    return form
+
+
+@functools.lru_cache(maxsize=64)
+def _parsed(scenario: str) -> tuple[fm.Formulation, tuple[tuple[type, str], ...]]:
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
+        form = sc.loads(scenario)
+    return form, tuple((w.category, str(w.message)) for w in caught)
 
 
 @st.cache_data(**CACHE)

@@ -7,8 +7,15 @@ LOADLINE_SCENARIO environment variable (default: the mineral coating demo).
 import logging
 
 import streamlit as st
+from streamlit import delta_generator
 
 from app import state, widgets
+
+# Streamlit checks once per process, at the first element drawn, whether it runs outside
+# `streamlit run` (to log a hint); the check walks the call stack with `inspect.stack`,
+# which reads the source of every frame (~0.1 s, paid by the first visitor). This script
+# runs under `streamlit run` (or AppTest), where the hint never applies: mark it done.
+delta_generator._use_warning_has_been_displayed = True
 
 st.set_page_config(page_title="Loadline", page_icon=":material/opacity:", layout="wide",
                    initial_sidebar_state="expanded")

@@ -764,6 +764,8 @@ def design_map_chart(cells: pd.DataFrame, *, x_title: str, y_title: str, colour_
                         zero=False)
     y_scale = alt.Scale(domain=[float(ys[0] - dy / 2), float(ys[-1] + dy / 2)], nice=False,
                         zero=False)
+    # Channel objects, not "field:type" strings: Altair resolves a string by searching its
+    # schema, a few ms each.
     x_enc = alt.X("x0:Q", scale=x_scale, title=x_title)
     y_enc = alt.Y("y0:Q", scale=y_scale, title=y_title)
     tips = [alt.Tooltip("x:Q", format=".4g", title=x_title),
@@ -774,9 +776,10 @@ def design_map_chart(cells: pd.DataFrame, *, x_title: str, y_title: str, colour_
     if "feasible" in data:
         tips.append(alt.Tooltip("feasible:N", title="inside every window"))
     flowing = data[data["value"].notna() & (data["value"] > 0)]
+    fig = Figure()
     layers = []
-    heat = alt.Chart(flowing).mark_rect().encode(
-        x=x_enc, x2="x1:Q", y=y_enc, y2="y1:Q", tooltip=tips,
+    heat = fig.chart(flowing).mark_rect().encode(
+        x=x_enc, x2=alt.X2("x1"), y=y_enc, y2=alt.Y2("y1"), tooltip=tips,
         color=alt.Color("value:Q", title=colour_title,
                         scale=alt.Scale(type="log", scheme="viridis"),
                         legend=alt.Legend(orient="right", direction="vertical",
@@ -787,11 +790,11 @@ def design_map_chart(cells: pd.DataFrame, *, x_title: str, y_title: str, colour_
     layers.append(heat)
     stopped = data[~(data["value"].notna() & (data["value"] > 0))]
     if len(stopped):
-        layers.append(alt.Chart(stopped).mark_rect(color=NO_FLOW, opacity=0.85).encode(
-            x=x_enc, x2="x1:Q", y=y_enc, y2="y1:Q", tooltip=tips))
+        layers.append(fig.chart(stopped).mark_rect(color=NO_FLOW, opacity=0.85).encode(
+            x=x_enc, x2=alt.X2("x1"), y=y_enc, y2=alt.Y2("y1"), tooltip=tips))
     if "feasible" in data and data["feasible"].any():
         # Stippled, so the colours keep their meaning under the shading.
-        layers.append(alt.Chart(data[data["feasible"].astype(bool)]).mark_point(
+        layers.append(fig.chart(data[data["feasible"].astype(bool)]).mark_point(
             shape="circle", filled=True, color="#FFFFFF", stroke=GREEN, strokeWidth=1,
             opacity=0.9, size=40).encode(x=alt.X("x:Q", scale=x_scale, title=x_title),
                                          y=alt.Y("y:Q", scale=y_scale, title=y_title),
@@ -809,29 +812,46 @@ def design_map_chart(cells: pd.DataFrame, *, x_title: str, y_title: str, colour_
              for label, mask, colour, width, dash in lines]
     drawn = [item for item in drawn if len(item[4])]   # only limits that cross the map
     scale = alt.Scale(domain=[d[0] for d in drawn], range=[d[1] for d in drawn])
-    limits = [alt.Chart(segments).mark_rule(strokeWidth=width, strokeDash=dash).encode(
-        x=alt.X("x:Q", scale=x_scale, title=x_title), x2="x2:Q",
-        y=alt.Y("y:Q", scale=y_scale, title=y_title), y2="y2:Q",
+    limits = [fig.chart(segments).mark_rule(strokeWidth=width, strokeDash=dash).encode(
+        x=alt.X("x:Q", scale=x_scale, title=x_title), x2=alt.X2("x2"),
+        y=alt.Y("y:Q", scale=y_scale, title=y_title), y2=alt.Y2("y2"),
         color=alt.Color("line:N", title="Limits", scale=scale,
                         legend=alt.Legend(orient="bottom", direction="horizontal",
                                           symbolStrokeWidth=3)))
         for _label, _colour, width, dash, segments in drawn]
     if limits:                  # one legend for all limits, apart from the colour bar
-        layers.append(alt.layer(*limits))
+        layers.append(fig.layer(*limits))
     if current is not None:
         dot = pd.DataFrame([{"x": float(current["x"]), "y": float(current["y"]),
                              "label": "current recipe"}])
-        base = alt.Chart(dot).encode(x=alt.X("x:Q", scale=x_scale, title=x_title),
+        base = fig.chart(dot).encode(x=alt.X("x:Q", scale=x_scale, title=x_title),
                                      y=alt.Y("y:Q", scale=y_scale, title=y_title))
         layers.append(base.mark_point(shape="diamond", filled=True, color="#FFFFFF",
                                       stroke="#000000", strokeWidth=1.5, size=180))
         layers.append(base.mark_text(align="left", dx=10, dy=-10, color="#000000",
-                                     fontWeight="bold").encode(text="label:N"))
-    chart = alt.layer(*layers).resolve_scale(color="independent").properties(
-        width=width, height=height)
-    if title:
-        chart = chart.properties(title=title)
-    return chart.to_dict(validate=False)
+                                     fontWeight="bold").encode(text=alt.Text("label:N")))
+    chart = fig.layer(*layers, resolve={"scale": {"color": "independent"}}, width=width,
+                      height=height, **({"title": title} if title else {}))
+    return _plain_spec(fig, chart)
+
+
+def _plain_spec(fig: Figure, chart: dict) -> dict:
+    """A `Figure` spec as plain JSON (records, not frames), selections declared on top.
+
+    As Altair writes a layered chart: each layer's selection parameter moves to the top
+    level, naming the layer it belongs to, so Streamlit and the exported files see it.
+    """
+    spec = fig.spec(chart)
+    del spec["config"]
+    params = []
+    for k, part in enumerate(spec.get("layer", [])):
+        for param in part.pop("params", []):
+            part["name"] = f"view_{k}"
+            params.append({**param, "views": [part["name"]]})
+    if params:
+        spec["params"] = params
+    spec["datasets"] = {name: _records(frame) for name, frame in spec["datasets"].items()}
+    return spec
 
 
 def ternary_chart(cells: pd.DataFrame, *, parts: list[str], colour_title: str,
@@ -860,7 +880,8 @@ def ternary_chart(cells: pd.DataFrame, *, parts: list[str], colour_title: str,
     if "feasible" in data:
         tips.append(alt.Tooltip("feasible:N", title="inside every window"))
     flowing = data["value"].notna() & (data["value"] > 0)
-    layers = [alt.Chart(data[flowing]).mark_point(shape="triangle-up", filled=True, opacity=1,
+    fig = Figure()
+    layers = [fig.chart(data[flowing]).mark_point(shape="triangle-up", filled=True, opacity=1,
                                                   size=size).encode(
         x=x_enc, y=y_enc, tooltip=tips,
         color=alt.Color("value:Q", title=colour_title,
@@ -868,40 +889,41 @@ def ternary_chart(cells: pd.DataFrame, *, parts: list[str], colour_title: str,
                         legend=alt.Legend(orient="right", direction="vertical",
                                           format=",~g")))]
     if (~flowing).any():
-        layers.append(alt.Chart(data[~flowing]).mark_point(
+        layers.append(fig.chart(data[~flowing]).mark_point(
             shape="triangle-up", filled=True, opacity=0.85, color=NO_FLOW, size=size).encode(
             x=x_enc, y=y_enc, tooltip=tips))
     if "feasible" in data and data["feasible"].any():     # stippled, as on the map
-        layers.append(alt.Chart(data[data["feasible"].astype(bool)]).mark_point(
+        layers.append(fig.chart(data[data["feasible"].astype(bool)]).mark_point(
             shape="circle", filled=True, color="#FFFFFF", stroke=GREEN, strokeWidth=1,
             opacity=0.9, size=40).encode(x=x_enc, y=y_enc, tooltip=tips))
     h = np.sqrt(3) / 2
     frame = pd.DataFrame({"tx": [0.0, 1.0, 0.5, 0.0], "ty": [0.0, 0.0, h, 0.0],
                           "order": [0, 1, 2, 3]})
-    layers.append(alt.Chart(frame).mark_line(color="#000000", strokeWidth=1.2).encode(
-        x=x_enc, y=y_enc, order="order:Q"))
+    layers.append(fig.chart(frame).mark_line(color="#000000", strokeWidth=1.2).encode(
+        x=x_enc, y=y_enc, order=alt.Order("order:Q")))
     corners = pd.DataFrame({"tx": [0.0, 1.0, 0.5], "ty": [-0.05, -0.05, h + 0.04],
                             "label": parts})
-    layers.append(alt.Chart(corners).mark_text(fontWeight="bold").encode(
-        x=x_enc, y=y_enc, text="label:N"))
+    layers.append(fig.chart(corners).mark_text(fontWeight="bold").encode(
+        x=x_enc, y=y_enc, text=alt.Text("label:N")))
     if current is not None and all(np.isfinite(current.get(f"share_{k}", np.nan))
                                    for k in (1, 2, 3)):
         dot = pd.DataFrame([{"tx": current["share_2"] + current["share_3"] / 2,
                              "ty": current["share_3"] * h, "label": "current recipe"}])
-        layers.append(alt.Chart(dot).mark_point(shape="diamond", filled=True, color="#FFFFFF",
+        layers.append(fig.chart(dot).mark_point(shape="diamond", filled=True, color="#FFFFFF",
                                                 stroke="#000000", strokeWidth=1.5,
                                                 size=180).encode(x=x_enc, y=y_enc))
-        layers.append(alt.Chart(dot).mark_text(align="left", dx=10, dy=-10,
-                                                fontWeight="bold").encode(
-            x=x_enc, y=y_enc, text="label:N"))
-    chart = alt.layer(*layers).resolve_scale(color="independent").properties(
-        width=width, height=height)
+        layers.append(fig.chart(dot).mark_text(align="left", dx=10, dy=-10,
+                                               fontWeight="bold").encode(
+            x=x_enc, y=y_enc, text=alt.Text("label:N")))
+    heading = {}
     if title:
         note = "grey: no flow (packing limit) or no liquid"
         if "feasible" in data:
             note += "; white dots: inside every window"
-        chart = chart.properties(title=alt.TitleParams(title, subtitle=note))
-    return chart.to_dict(validate=False)
+        heading["title"] = {"text": title, "subtitle": note}
+    chart = fig.layer(*layers, resolve={"scale": {"color": "independent"}}, width=width,
+                      height=height, **heading)
+    return _plain_spec(fig, chart)
 
 
 def _shown_cells(grid: pd.DataFrame, viscosity_unit: str) -> pd.DataFrame:

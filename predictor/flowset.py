@@ -24,6 +24,12 @@ from .viscosity import relative_viscosity
 #: Final bracket width of `max_loading` on the effective solid volume fraction. [-]
 LOADING_TOLERANCE = 1e-9
 
+#: Evenly spaced trial loadings per engine call that `max_loading` adds on a row whose
+#: curve jumps: its bracket shrinks 8 times per call (bisection: 2), in about the same
+#: number of evaluations. The same on every row, so a row's answer does not depend on the
+#: other rows of the set.
+GRID_POINTS = 7
+
 #: Zero-shear over high-shear packing limit of Brownian hard spheres, 0.63/0.71 (de Kruif et
 #: al., J. Chem. Phys. 83, 4717, 1985; from memory, not checked against the source).
 ZERO_SHEAR_RATIO = 0.63 / 0.71
@@ -347,9 +353,11 @@ def max_loading(fs: FormulationSet, viscosity_limit_Pa_s, shear_rate_1_per_s=1.0
     The one solver of the question "how much can I load": each row's solids are scaled
     along their shares (droplets stay, `FormulationSet.at_loading`), and the viscosity at
     the shear rate comes from `evaluate`, so thinning, thickening and non-Newtonian
-    liquids count. A bracketing search vectorised over rows (regula falsi with bisection
-    steps, see the comments) narrows [0, phi_max] to `tolerance`; packing-limited rows
-    answer phi_max (1 - 1e-9).
+    liquids count. A bracketing search vectorised over rows (regula falsi, with several
+    evenly spaced trial loadings per call where the curve jumps, see the comments) narrows
+    [0, phi_max] to `tolerance`; packing-limited rows answer phi_max (1 - 1e-9). The
+    viscosity is taken to rise with loading; where it jumps up and falls back, the answer
+    is a crossing of the limit, not necessarily the lowest.
 
     Parameters
     ----------
@@ -421,9 +429,13 @@ def max_loading(fs: FormulationSet, viscosity_limit_Pa_s, shear_rate_1_per_s=1.0
     # Regula falsi (Illinois) on the bracket [ok, too thick], interpolating in
     # u = -ln(1 - phi/phi_top), where ln(eta) of a relation diverging at phi_top is nearly
     # straight; each step evaluates the two points half a tolerance either side of the
-    # estimate, so an accurate estimate closes the bracket at once; a bisection step after
-    # a step that did not halve the bracket (a jump in the curve) and where the excess is
-    # not finite. The answer is the lower end.
+    # estimate, so an accurate estimate closes the bracket at once. A row whose step did not
+    # halve the bracket (a jump in the curve; from then on, every step) or whose excess is
+    # not finite also gets `GRID_POINTS` evenly spaced points across its bracket in the same
+    # engine call (a multi-point search: the bracket shrinks GRID_POINTS + 1 times per call
+    # where bisection halved it, whose points include). The new bracket is [the last point
+    # under the limit, the first over it]. The answer is the lower end: a crossing of the
+    # limit; where the curve jumps up and falls back, not necessarily the first one.
     rows = np.flatnonzero(~thick0 & ~roomy)
     low, high = np.zeros(n), top.copy()
     side = np.zeros(n, int)
@@ -434,28 +446,47 @@ def max_loading(fs: FormulationSet, viscosity_limit_Pa_s, shear_rate_1_per_s=1.0
         if rows.size == 0:
             break
         lo, hi, f_lo, f_hi = low[rows], high[rows], r_low[rows], r_high[rows]
-        ok = np.isfinite(f_lo) & np.isfinite(f_hi) & (f_hi > f_lo) & ~slow[rows]
+        finite = np.isfinite(f_lo) & np.isfinite(f_hi) & (f_hi > f_lo)
+        ok = finite & ~slow[rows]
         end = end_all[rows]
         u_lo, u_hi = -np.log1p(-lo / end), -np.log1p(-hi / end)
         with np.errstate(invalid="ignore", divide="ignore", over="ignore"):
-            u = u_lo - f_lo * (u_hi - u_lo) / np.where(ok, f_hi - f_lo, 1.0)
-            x = np.where(ok, -end * np.expm1(-u), 0.5 * (lo + hi))
+            u = u_lo - f_lo * (u_hi - u_lo) / np.where(finite, f_hi - f_lo, 1.0)
+            x = np.where(finite, -end * np.expm1(-u), 0.5 * (lo + hi))
         width = hi - lo
         step = np.minimum(0.49 * tolerance, 0.25 * width)
+        x = np.where(np.isfinite(x), x, 0.5 * (lo + hi))
         pair = np.stack([np.clip(x - step, lo + step, hi - 3 * step),
                          np.clip(x + step, lo + 3 * step, hi - step)])       # (2, r)
-        f_pair = excess(pair.ravel(), np.concatenate([rows, rows])).reshape(2, -1)
-        thick = f_pair >= 0
-        new_hi = np.where(thick[0], pair[0], np.where(thick[1], pair[1], hi))
-        new_lo = np.where(thick[0], lo, np.where(thick[1], pair[0], pair[1]))
-        f_new_hi = np.where(thick[0], f_pair[0], np.where(thick[1], f_pair[1], f_hi))
-        f_new_lo = np.where(thick[0], f_lo, np.where(thick[1], f_pair[0], f_pair[1]))
-        moved = np.where(thick[0], 1, np.where(thick[1], 0, -1))   # 1: high only, -1: low
+        grid_rows = np.flatnonzero(~ok)
+        k = GRID_POINTS
+        fractions = np.arange(1, k + 1) / (k + 1.0)
+        grid = lo[grid_rows] + width[grid_rows] * fractions[:, None]          # (k, g)
+        f_all = excess(np.concatenate([pair.ravel(), grid.ravel()]),
+                       np.concatenate([rows, rows, np.tile(rows[grid_rows], k)]))
+        points = np.vstack([pair, np.broadcast_to(hi, (k, rows.size))])       # (2 + k, r)
+        values = np.vstack([f_all[:2 * rows.size].reshape(2, -1),
+                            np.broadcast_to(f_hi, (k, rows.size))])
+        points[2:, grid_rows] = grid
+        values[2:, grid_rows] = f_all[2 * rows.size:].reshape(k, -1)
+        order = np.argsort(points, axis=0, kind="stable")
+        points = np.take_along_axis(points, order, axis=0)
+        values = np.take_along_axis(values, order, axis=0)
+        thick = values >= 0
+        first = np.where(thick.any(axis=0), thick.argmax(axis=0), points.shape[0])
+        cols = np.arange(rows.size)
+        above = np.minimum(first, points.shape[0] - 1)
+        new_hi = np.where(first < points.shape[0], points[above, cols], hi)
+        f_new_hi = np.where(first < points.shape[0], values[above, cols], f_hi)
+        below = np.maximum(first - 1, 0)
+        new_lo = np.where(first > 0, points[below, cols], lo)
+        f_new_lo = np.where(first > 0, values[below, cols], f_lo)
+        moved = np.where(first == 0, 1, np.where(first == points.shape[0], -1, 0))
         s = side[rows]
         # Illinois: halve the stale end's excess when the same end alone moves twice.
         r_low[rows] = np.where((moved == 1) & (s == 1), 0.5 * f_new_lo, f_new_lo)
         r_high[rows] = np.where((moved == -1) & (s == -1), 0.5 * f_new_hi, f_new_hi)
-        slow[rows] = ok & (new_hi - new_lo > 0.5 * width)
+        slow[rows] |= ok & (new_hi - new_lo > 0.5 * width)
         low[rows], high[rows], side[rows] = new_lo, new_hi, moved
     phi = np.where(reason == "viscosity", low, phi)
     return phi, reason

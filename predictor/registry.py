@@ -143,9 +143,9 @@ def get_model(name: str, kind: str | tuple[str, ...] | None = None) -> ModelSpec
     """The spec registered under `name`; `UnknownModelError` lists the valid names."""
     _load_relations()
     kinds = (kind,) if isinstance(kind, str) else kind
-    valid = [s.name for s in models() if kinds is None or s.kind in kinds]
     spec = _MODELS.get(str(name).strip().lower().replace("_", "-").replace(" ", "-"))
-    if spec is None or spec.name not in valid:
+    if spec is None or (kinds is not None and spec.kind not in kinds):
+        valid = [s.name for s in models() if kinds is None or s.kind in kinds]
         raise UnknownModelError("model", name, valid)
     return spec
 

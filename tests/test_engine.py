@@ -228,3 +228,30 @@ def test_repeated_rows_are_solved_once_with_the_same_answers():
     assert np.array_equal(rep.regime, one.regime[np.arange(300) % 6])
     assert np.allclose(phi2, phi1[np.arange(300) % 6], rtol=0, atol=1e-12)
     assert list(why2) == list(why1[np.arange(300) % 6])
+
+
+def test_max_loading_where_the_curve_jumps_answers_a_crossing_of_the_limit():
+    # The invented ceramic slip demo thickens at 100 1/s, and near its zero-shear packing
+    # limit its viscosity jumps up and falls back (the Brownian term is left out past it).
+    # The search (several trial loadings per engine call on such rows) must answer a true
+    # crossing: under the limit at the answer and over it one tolerance higher, the same
+    # answer for the row alone and among other rows. A property of the solver itself.
+    import pathlib
+
+    from predictor import scenario
+
+    slip = scenario.read_scenario(pathlib.Path(__file__).parents[1] / "data_demo"
+                                  / "ceramic_slip.loadline.json")
+    fs = engine.stack([slip])
+    limits = np.array([0.1, 0.2, 0.274, 3.0])
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", ValidityWarning)
+        together, _ = engine.max_loading(fs.take(np.zeros(limits.size, int)), limits, 100.0,
+                                         tolerance=1e-10)
+        for limit, phi_all in zip(limits, together, strict=True):
+            phi, why = engine.max_loading(fs, limit, 100.0, tolerance=1e-10)
+            assert why[0] == "viscosity" and phi[0] == pytest.approx(phi_all, abs=1e-10)
+            trial = np.array([phi[0], phi[0] + 2e-10])
+            eta = engine.evaluate(fs.take(np.zeros(2, int)).at_loading(trial),
+                                  np.full((2, 1), 100.0)).viscosity_Pa_s[:, 0]
+            assert eta[0] < limit and not eta[1] < limit

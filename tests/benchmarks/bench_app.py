@@ -125,6 +125,15 @@ CASES = [  # (name, scope, view, scenario, change, values factory, seed)
     ("Particle forces: change the surface potential", "page", "particle_forces",
      "ceramic_slip", lambda at, v: at.number_input(key="pf_potential").set_value(v),
      lambda: _numbers(5.0, 3.1), {"pf_salt": 10.0}),
+    ("Particle forces: change the salt", "page", "particle_forces", "ceramic_slip",
+     _set_state("pf_salt"), lambda: (10.0 ** (-3.0 + 0.25 * k) for k in itertools.count()),
+     {"pf_salt": 1e-4}),     # the page snaps it to its quarter-decade steps
+    ("Design map: change the range", "page", "design_map", "mineral_coating",
+     lambda at, v: at.number_input(key="map_x_high").set_value(v), lambda: _numbers(61.0, 1.3),
+     {}),
+    ("Process checks: change the flow rate", "page", "process_checks", "mineral_coating",
+     lambda at, v: at.number_input(key="pc_flow").set_value(v), lambda: _numbers(11.0, 1.7),
+     {}),
 ]
 
 
