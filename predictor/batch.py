@@ -114,7 +114,7 @@ from dataclasses import dataclass, field
 import numpy as np
 import pandas as pd
 
-from . import composition, engine, formulation, packing, shear, sizes, suspension
+from . import composition, engine, formulation, packing, sizes, suspension
 from .errors import InputRangeError, LoadlineError, ScenarioError, UnitError, ValidityWarning
 from .files import atomic_write, check_output, open_atomic
 from .labdata import decimal_point, decode_text, looks_like_data, read_bytes
@@ -1553,23 +1553,14 @@ def _powders(c: _Chunk, ctx: _Context, i: int, cols: list[int]):
         return err
 
 
-def _by_relation(names: np.ndarray, kind: str, call: Callable) -> np.ndarray:
-    """`call(spec, selection)` for each relation named in `names`, assembled over the rows."""
-    out = np.empty(len(names))
-    for name in pd.unique(names):
-        sel = names == name
-        out[sel] = call(get_model(name, kind=kind), sel)
-    return out
-
-
 class _Flow:
-    """Row arrays of one chunk for the flow answers, as engine rows (`rows`) and notes.
+    """Row arrays of one chunk for the flow answers, as engine rows (`rows`).
 
     The inputs `engine.row_inputs` gives for a formulation, resolved for every row of the
     chunk at once: the droplets' viscosity ratio, the Sauter radius of all solids (the
-    Brownian radius), the swelling of adsorbed layers. `plateaus` and `medium` serve the
-    row notes only (the same wording as `shear.flow_curve`). Methods take row indices `k`
-    (repeats allowed) and arrays over them.
+    Brownian radius), the swelling of adsorbed layers. The row notes are the engine's
+    (`engine.row_notes`), worded once for `predict` and the batch. Methods take row
+    indices `k` (repeats allowed) and arrays over them.
     """
 
     def __init__(self, c: _Chunk, st: _State, sauter):
@@ -1589,8 +1580,6 @@ class _Flow:
             total = volume.sum(axis=1)
             radius = total / np.where(solid, volume / half, 0.0).sum(axis=1)
             self.radius = np.where(total > 0, radius, np.nan)      # formulation._solid_radius_m
-            self.stress_scale = (shear.CRITICAL_REDUCED_STRESS * shear.BOLTZMANN_J_PER_K
-                                 * c.temperature_K / self.radius**3)
             eta_d = np.where(np.isnan(c.droplet_viscosity), self.eta_l[:, None],
                              c.droplet_viscosity)
             dropped = np.where(drop, phi, 0.0)
@@ -1616,49 +1605,6 @@ class _Flow:
             spec = get_model(name, kind="suspension")
             has_phi_max[c.relation == name] = "phi_max" in spec.param_names()
         self.brownian = has_phi_max & np.isfinite(self.radius)
-
-    def relation_at(self, k, phi, phi_max):
-        """Relative viscosity of the solids' relation at phi and a packing limit."""
-        def call(spec, sel):
-            params = spec.defaults()
-            known = {"phi_max": phi_max[sel], "intrinsic_viscosity": self.intrinsic[k][sel]}
-            params.update({n: v for n, v in known.items() if n in params})
-            return spec.func(phi[sel], **params)
-
-        return _by_relation(self.relation[k], "suspension", call)
-
-    def droplet_share(self, k, bare):
-        """Droplets' volume fraction in liquid + droplets, as `formulation.droplet_factor`."""
-        return np.minimum(self.phi_droplets[k] / np.maximum(1.0 - bare, 1e-12), 1.0)
-
-    def emulsion_params(self, spec, sel, k):
-        params = spec.defaults()
-        if "viscosity_ratio" in params:
-            params["viscosity_ratio"] = self.ratio[k][sel]
-        return params
-
-    def medium(self, k, bare):
-        """Relative viscosity of the droplets in the liquid (1 without droplets)."""
-        out = np.ones(len(k))
-        on = self.has_droplets[k]
-        if on.any():
-            kk, share = k[on], self.droplet_share(k[on], bare[on])
-            out[on] = _by_relation(self.droplet_relation[kk], "emulsion", lambda spec, sel: (
-                spec.func(share[sel], **self.emulsion_params(spec, sel, kk))))
-        return out
-
-    def plateaus(self, k, phi):
-        """High-shear and zero-shear relative viscosity of the solids (inf: no flow, and no
-        Brownian term, respectively), and where the radius leaves the Brownian term out."""
-        g_hs = np.full(len(k), np.inf)
-        live = phi < 1.0
-        g_hs[live] = self.relation_at(k[live], phi[live], self.phi_max[k][live])
-        coarse = self.brownian[k] & (self.radius[k] > shear.BROWNIAN_RADIUS_LIMIT_m)
-        brown = live & self.brownian[k] & ~coarse
-        g0 = np.full(len(k), np.inf)
-        g0[brown] = self.relation_at(k[brown], phi[brown],
-                                     formulation.ZERO_SHEAR_RATIO * self.phi_max[k][brown])
-        return g_hs, g0, coarse
 
     def rows(self, k) -> engine.FormulationSet:
         """Rows `k` as an engine `FormulationSet` (`engine.row_inputs` of each row)."""
@@ -1687,54 +1633,6 @@ class _Flow:
         eff = self.phi_eff[k]
         return np.where(eff > 0, self.phi_solids[k] * phi / np.where(eff > 0, eff, 1.0),
                         phi / self.mean_swelling[k])
-
-
-def _flow_notes(f: _Flow, k: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
-    """The notes `shear.flow_curve` and `formulation.droplet_factor` give for rows `k` at
-    their own loading (same wording), as (flow notes, droplet notes)."""
-    phi, bare = f.phi_eff[k], f.phi_solids[k]
-    medium = f.medium(k, bare)
-    dispersed = (phi >= 1.0) | ~np.isfinite(medium)
-    g_hs, g0, coarse = f.plateaus(k, phi)
-    live = ~dispersed
-    pm, scale = f.phi_max[k], f.stress_scale[k] / shear.CRITICAL_REDUCED_STRESS
-    parts = []
-    for name in pd.unique(f.relation[k]):
-        spec = get_model(name, kind="suspension")
-        on = live & (f.relation[k] == name)
-        check = ("phi_max" in spec.param_names())
-        x = phi / pm if spec.phi_range_relative else phi
-        low, high = spec.phi_range
-        parts.append(_texts(on & ((x < low) | (x > high)), lambda p, m, spec=spec, check=check: (
-            spec.validity_message(p, {"phi_max": m} if check else {}) or ""), phi, pm))
-    parts.append(_texts(live & coarse, lambda a, s: (
-        f"Brownian shear thinning is negligible for particles of radius {a * 1e6:.3g} um "
-        f"(stress scale k_B T/a^3 = {s:.2g} Pa) and is left out."), f.radius[k], scale))
-    zero = live & f.brownian[k] & ~coarse & ~np.isfinite(g0)
-    parts.append(_texts(zero, lambda p, m, s: (
-        f"phi = {p:.3g} is at or above the zero-shear packing limit {m:.3g}: Krieger's "
-        "interpolation has no zero-shear plateau there (a Brownian glass with a yield "
-        f"stress of order k_B T/a^3 = {s:.3g} Pa); the Brownian term is left out."),
-        phi, formulation.ZERO_SHEAR_RATIO * pm, scale))
-    parts.append(_texts(live & ~np.isfinite(g_hs), lambda p, m: (
-        f"phi = {p:.3g} is at or above the packing limit {m:.3g}: no flow is predicted at "
-        "any shear rate."), phi, pm))
-    parts.append(_texts(dispersed, lambda p, d: (
-        f"phi = {p:.3g} of solids with droplets at {d:.3g}: the dispersed phases are "
-        "jammed; no flow is predicted."), phi, f.phi_droplets[k]))
-    drops = np.full(len(k), "", dtype=object)
-    on = f.has_droplets[k]
-    share = f.droplet_share(k, bare)
-    for name in pd.unique(f.droplet_relation[k[on]]):
-        spec = get_model(name, kind="emulsion")
-        sel = on & (f.droplet_relation[k] == name)
-        params = spec.defaults()
-        x = share / params.get("phi_max", 1.0) if spec.phi_range_relative else share
-        low, high = spec.phi_range
-        drops = _join([drops, _texts(sel & ((x < low) | (x > high)), lambda s, r, spec=spec: (
-            spec.validity_message(s, {**spec.defaults(), "viscosity_ratio": r}) or ""),
-            share, f.ratio[k])])
-    return _join(parts), drops
 
 
 def _join(parts: list[np.ndarray]) -> np.ndarray:
@@ -1840,7 +1738,7 @@ def _flow_answers(c: _Chunk, ctx: _Context, st: _State, sauter, packing_notes, r
             warnings_module.simplefilter("ignore", ValidityWarning)
             res = engine.evaluate(f.rows(part), np.where(on, rates[part], 1.0))
         values[on], kinds[on] = res.viscosity_Pa_s[on], res.regime[on]
-        return (values, kinds, *_flow_notes(f, part))
+        return (values, kinds, *engine.row_notes(f.rows(part)))
 
     flow_notes = np.full(n, "", dtype=object)
     drop_notes = np.full(n, "", dtype=object)

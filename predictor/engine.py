@@ -37,6 +37,7 @@ from .flowset import (  # noqa: F401  (the engine's public names, one place to i
     from_rows,
     max_loading,
     medium_factor,
+    row_notes,
 )
 
 #: How one formulation becomes a row of a `FormulationSet` (see `formulation.predict`).

@@ -50,6 +50,12 @@ def droplet_medium(model: str, params: dict, phi_droplets, phi_solids):
     return np.where(has, value, 1.0)
 
 
+def jammed_note(phi, phi_droplets) -> str:
+    """The note of a row whose solids and droplets together leave no liquid to flow in."""
+    return (f"phi = {phi:.3g} of solids with droplets at {phi_droplets:.3g}: the dispersed "
+            "phases are jammed; no flow is predicted.")
+
+
 def add_yield_stress(shear_rate_1_per_s, shear_stress_Pa, regime, yield_stress_Pa):
     """A network yield stress added to flow curves (Herschel-Bulkley-like), array-wise.
 
@@ -267,6 +273,50 @@ def medium_factor(fs: FormulationSet) -> np.ndarray:
         out[sel] = droplet_medium(spec.name, _params(fs.droplet_params, sel, spec),
                                      fs.phi_droplets[sel], fs.phi_solids[sel])
     return out
+
+
+def row_notes(fs: FormulationSet) -> tuple[np.ndarray, np.ndarray]:
+    """The notes of each row at its own loading, as (flow notes, droplet notes), (N,) str.
+
+    Flow notes: those `formulation.flow_curve_of` gives the row (`jammed_note` for
+    dispersed phases that are jammed, else `shear.flow_notes`, the wording of
+    `shear.flow_curve`); droplet notes: the droplets' relation used outside its validity
+    range, the message `droplet_medium` warns. Each joined with "; ", "" where none.
+    """
+    n = len(fs)
+    flow = np.full(n, "", dtype=object)
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", ValidityWarning)
+        medium = medium_factor(fs)
+    jammed = (fs.phi >= 1.0) | ~np.isfinite(medium)
+    flow[jammed] = shear._worded(np.ones(int(jammed.sum()), bool), jammed_note,
+                                 fs.phi[jammed], fs.phi_droplets[jammed])
+    live = np.flatnonzero(~jammed)
+    for rows in _groups(fs.relation[live]):
+        sel = live[rows]
+        rel = get_model(fs.relation[sel[0]], kind="suspension")
+        flow[sel] = shear.flow_notes(
+            fs.phi[sel], relation=rel.name, relation_params=_params(fs.relation_params, sel, rel),
+            phi_max_zero_shear=ZERO_SHEAR_RATIO * fs.phi_max[sel],
+            phi_max_high_shear=fs.phi_max[sel], phi_max_frictional=fs.phi_max_frictional[sel],
+            onset_stress_Pa=fs.onset_stress_Pa[sel], radius_m=fs.radius_m[sel],
+            temperature_K=fs.temperature_K[sel])
+    drops = np.full(n, "", dtype=object)
+    has = np.flatnonzero(fs.phi_droplets > 0)
+    for rows in _groups(fs.droplet_model[has]):
+        sel = has[rows]
+        spec = get_model(fs.droplet_model[sel[0]], kind="emulsion")
+        names = list(spec.defaults())
+        given = _params(fs.droplet_params, sel, spec)
+        params = {k: given.get(k, np.full(sel.size, v)) for k, v in spec.defaults().items()}
+        share = np.minimum(fs.phi_droplets[sel] / np.maximum(1.0 - fs.phi_solids[sel], 1e-12),
+                           1.0)
+        x = share / params.get("phi_max", 1.0) if spec.phi_range_relative else share
+        low, high = spec.phi_range
+        drops[sel] = shear._worded((x < low) | (x > high), lambda s, *v, spec=spec, names=names: (
+            spec.validity_message(s, dict(zip(names, v, strict=True))) or ""),
+            share, *(params[k] for k in names))
+    return flow, drops
 
 
 def evaluate(fs: FormulationSet, shear_rate_1_per_s) -> Result:

@@ -30,7 +30,13 @@ import pandas as pd
 
 from . import composition, interactions, liquids, packing, shear, sizes
 from .errors import InputRangeError
-from .flowset import ZERO_SHEAR_RATIO, add_yield_stress, droplet_medium, network_yield_stress
+from .flowset import (
+    ZERO_SHEAR_RATIO,
+    add_yield_stress,
+    droplet_medium,
+    jammed_note,
+    network_yield_stress,
+)
 from .registry import get_model
 
 SOLID, DROPLET = "solid", "droplet"
@@ -546,9 +552,7 @@ def flow_curve_of(formulation: Formulation, shear_rate_1_per_s=None,
         eta_l = np.asarray(liquids.liquid_viscosity(rates, law, **params)) * np.ones_like(rates)
         return shear.FlowCurve(rates, inf, inf, inf, eta_l, np.full(rates.shape, "jammed"),
                                {"shear_jamming_1_per_s": 0.0},
-                               (f"phi = {phi:.3g} of solids with droplets at "
-                                f"{row['phi_droplets']:.3g}: the dispersed phases are jammed; "
-                                "no flow is predicted.",))
+                               (jammed_note(phi, row["phi_droplets"]),))
 
     def given(name):
         return None if np.isnan(row[name]) else float(row[name])

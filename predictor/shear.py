@@ -470,7 +470,7 @@ class _Model:
         self.star = np.where(self.thickening, star, np.nan)
         self.phi_mu = np.where(self.thickening, _arr(phi_max_frictional), self.phi_hs)
         self.radius = _arr(radius_m)
-        phi0 = _arr(phi_max_zero_shear)
+        self.phi0 = phi0 = _arr(phi_max_zero_shear)
         self.brownian = np.isfinite(self.radius) & np.isfinite(phi0) & self.has_phi_max
         safe_radius = np.where(np.isfinite(self.radius), self.radius, 1.0)
         self.stress_scale = np.where(np.isfinite(self.radius), critical_reduced_stress
@@ -481,7 +481,7 @@ class _Model:
                            self.relation(np.where(self.brownian, phi0, self.phi_hs)), np.nan)
         self.g_mu = self.relation(self.phi_mu)
 
-    _ARRAYS = ("phi", "medium", "phi_hs", "thickening", "star", "phi_mu", "radius",
+    _ARRAYS = ("phi", "medium", "phi_hs", "phi0", "thickening", "star", "phi_mu", "radius",
                "brownian", "stress_scale", "g_hs", "g0", "g_mu")
 
     def _mapped(self, func):
@@ -953,30 +953,21 @@ def flow_curve(shear_rate_1_per_s, phi, *, liquid_law_name="newtonian", liquid_p
     model = _Model(phi, law, medium_factor, relation, relation_params, phi_max_zero_shear,
                    phi_hs, phi_max_frictional, onset_stress_Pa, radius_m, temperature_K,
                    critical_reduced_stress)
-    check = dict(model.params, **({"phi_max": phi_hs} if model.has_phi_max else {}))
-    text = model.spec.validity_message(phi, check)
-    if text:
-        warn(text)
-    if model.brownian and radius_m > BROWNIAN_RADIUS_LIMIT_m:
-        messages.append(f"Brownian shear thinning is negligible for particles of radius "
-                        f"{radius_m * 1e6:.3g} um (stress scale k_B T/a^3 = "
-                        f"{float(model.stress_scale) / critical_reduced_stress:.2g} Pa) and "
-                        "is left out.")
-        model.brownian = np.asarray(False)
-    if model.brownian and not np.isfinite(model.g0):
-        warn(f"phi = {phi:.3g} is at or above the zero-shear packing limit "
-             f"{phi_max_zero_shear:.3g}: Krieger's interpolation has no zero-shear plateau "
-             "there (a Brownian glass with a yield stress of order k_B T/a^3 = "
-             f"{float(model.stress_scale) / critical_reduced_stress:.3g} Pa); the Brownian "
-             "term is left out.")
+    notes = _notes(model, critical_reduced_stress)
+    for name in ("validity", "coarse", "glass"):
+        text = notes[name][0]
+        if text and name == "coarse":
+            messages.append(text)
+        elif text:
+            warn(text)
+    if notes["coarse"][0] or notes["glass"][0]:
         model.brownian = np.asarray(False)
 
     eta_l = np.asarray(law.viscosity(rates), dtype=float) * np.ones_like(rates)
     markers = _plateau_markers(model, law, critical_reduced_stress)
     sig_jam = float(model.jamming_stress())
-    if not np.isfinite(model.g_hs) and not model.thickening or sig_jam == 0.0:
-        warn(f"phi = {phi:.3g} is at or above the packing limit {phi_hs:.3g}: no flow "
-             "is predicted at any shear rate.")
+    if notes["no_flow"][0]:
+        warn(notes["no_flow"][0])
         inf = np.full_like(rates, np.inf)
         markers["shear_jamming_1_per_s"] = 0.0
         return FlowCurve(rates, inf, inf, inf, eta_l, np.full(rates.shape, "jammed"),
@@ -1004,6 +995,105 @@ def flow_curve(shear_rate_1_per_s, phi, *, liquid_law_name="newtonian", liquid_p
     relative = viscosity / eta_l
     return FlowCurve(rates, sigma, viscosity, relative, eta_l, solved.regime[0].astype(str),
                      markers, tuple(messages))
+
+
+def _worded(mask, make, *columns) -> np.ndarray:
+    """`make(*values)` for each row where `mask` (flat), once per distinct tuple of values;
+    "" elsewhere."""
+    mask = np.ravel(mask)
+    out = np.full(mask.shape, "", dtype=object)
+    cols = [np.ravel(c) for c in columns]
+    seen: dict[tuple, str] = {}
+    for i in np.flatnonzero(mask):
+        key = tuple(float(c[i]) for c in cols)
+        if key not in seen:
+            seen[key] = make(*key)
+        out[i] = seen[key]
+    return out
+
+
+def _notes(model, critical_reduced_stress) -> dict:
+    """The notes `flow_curve` gives suspensions at their own phi, per row (flat arrays of
+    str, "" where none), in its order: "validity" (the relation outside its range),
+    "coarse" (Brownian term left out for a large radius), "glass" (no zero-shear plateau),
+    "no_flow" (at or above the packing limit). The one wording of these notes: `flow_curve`
+    uses it for its one row, `flow_notes` for many.
+    """
+    shape = np.shape(model.phi)
+
+    def flat(value):
+        return np.broadcast_to(np.asarray(value), shape).ravel()
+
+    phi, phi_hs, radius = flat(model.phi), flat(model.phi_hs), flat(model.radius)
+    scale = flat(model.stress_scale) / critical_reduced_stress
+    spec = model.spec
+    x = phi / phi_hs if spec.phi_range_relative and model.has_phi_max else phi
+    low, high = spec.phi_range
+    with np.errstate(invalid="ignore"):
+        outside = (x < low) | (x > high)
+    validity = _worded(outside, lambda p, m: spec.validity_message(
+        p, {"phi_max": m} if model.has_phi_max else {}) or "", phi, phi_hs)
+    brownian = flat(model.brownian)
+    coarse = brownian & (radius > BROWNIAN_RADIUS_LIMIT_m)
+    glass = brownian & ~coarse & ~np.isfinite(flat(model.g0))
+    no_flow = ((~np.isfinite(flat(model.g_hs)) & ~flat(model.thickening))
+               | (flat(model.jamming_stress()) == 0.0))
+    return {
+        "validity": validity,
+        "coarse": _worded(coarse, lambda a, s: (
+            f"Brownian shear thinning is negligible for particles of radius {a * 1e6:.3g} um "
+            f"(stress scale k_B T/a^3 = {s:.2g} Pa) and is left out."), radius, scale),
+        "glass": _worded(glass, lambda p, m, s: (
+            f"phi = {p:.3g} is at or above the zero-shear packing limit {m:.3g}: Krieger's "
+            "interpolation has no zero-shear plateau there (a Brownian glass with a yield "
+            f"stress of order k_B T/a^3 = {s:.3g} Pa); the Brownian term is left out."),
+            phi, flat(model.phi0), scale),
+        "no_flow": _worded(no_flow, lambda p, m: (
+            f"phi = {p:.3g} is at or above the packing limit {m:.3g}: no flow is predicted "
+            "at any shear rate."), phi, phi_hs),
+    }
+
+
+@guarded
+def flow_notes(phi, *, relation="krieger-dougherty", relation_params=None,
+               phi_max_zero_shear=np.nan, phi_max_high_shear=0.64, phi_max_frictional=np.nan,
+               onset_stress_Pa=np.nan, radius_m=np.nan, temperature_K=298.15,
+               critical_reduced_stress=CRITICAL_REDUCED_STRESS):
+    """The notes `flow_curve` gives each of n suspensions, joined with "; " per row.
+
+    Arguments as in `flow_curves` (floats or arrays (n,); ``nan``: not given). The same
+    checks and wording as `flow_curve` (validity range of the relation, Brownian term left
+    out, no zero-shear plateau, no flow), for many rows at once.
+
+    Returns
+    -------
+    numpy.ndarray
+        (n,) object array of str, "" where `flow_curve` gives no note.
+
+    Examples
+    --------
+    >>> flow_notes([0.3, 0.7], phi_max_high_shear=0.64).tolist()[1]
+    'phi = 0.7 is at or above the packing limit 0.64: no flow is predicted at any shear rate.'
+    """
+    phi = np.atleast_1d(in_range(phi, "phi", 0.0, 1.0, high_open=True)).astype(float)
+    n = phi.size
+
+    def column(value):
+        return np.broadcast_to(np.asarray(value, dtype=float), (n,)).reshape(n, 1)
+
+    model = _Model(column(phi), _Liquid(liquid_law("newtonian", viscosity_Pa_s=1.0), 0.0),
+                   1.0, relation, {k: column(v) for k, v in (relation_params or {}).items()},
+                   column(phi_max_zero_shear), column(phi_max_high_shear),
+                   column(phi_max_frictional), column(onset_stress_Pa), column(radius_m),
+                   column(positive(temperature_K, "temperature_K")),
+                   float(positive(critical_reduced_stress, "critical_reduced_stress")))
+    notes = _notes(model, float(critical_reduced_stress))
+    out = notes["validity"]
+    for name in ("coarse", "glass", "no_flow"):
+        part = notes[name]
+        both = (out != "") & (part != "")
+        out = np.where(both, out + "; " + part, np.where(part != "", part, out))
+    return out.astype(object)
 
 
 #: Smallest stress the flow-curve grid holds: the smallest normal float, times 1e4 so the
