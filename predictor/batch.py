@@ -114,7 +114,7 @@ from dataclasses import dataclass, field
 import numpy as np
 import pandas as pd
 
-from . import composition, engine, formulation, packing, sizes, suspension
+from . import composition, engine, formulation, sizes, suspension
 from .errors import InputRangeError, LoadlineError, ScenarioError, UnitError, ValidityWarning
 from .files import atomic_write, check_output, open_atomic
 from .labdata import decimal_point, decode_text, looks_like_data, read_bytes
@@ -1499,28 +1499,15 @@ def _packing(c: _Chunk, ctx: _Context, phi_eff: np.ndarray) -> tuple:
             for i in rows_u:
                 _flag_row(c.rows, int(i), str(group))
             continue
-        eff = solid_eff[np.ix_(rows_u, cols)]
-        total = eff.sum(axis=1, keepdims=True)
-        weights = np.where(total > 0, eff / np.where(total > 0, total, 1.0), 1.0 / len(cols))
-        row_notes = np.full(len(rows_u), "", dtype=object)
-        if group["own"] is not None:
-            phi_max[rows_u] = weights @ group["own"]
-        else:
-            with warnings_module.catch_warnings():
-                warnings_module.simplefilter("ignore", ValidityWarning)
-                value, row_notes = packing.max_packing_blends(group["diameters"],
-                                                              group["fractions"], weights)
-            phi_max[rows_u] = (weights @ group["shape"]) * value
-        eta = group["intrinsic"]
-        intrinsic[rows_u] = np.clip(weights @ eta, eta.min(), eta.max())
+        phi_max[rows_u], intrinsic[rows_u], row_notes = formulation.blend_packing(
+            group["terms"], solid_eff[np.ix_(rows_u, cols)])
         notes[rows_u] = _join([np.full(len(rows_u), group["notes"], dtype=object), row_notes])
     return phi_max, intrinsic, notes
 
 
 def _powders(c: _Chunk, ctx: _Context, i: int, cols: list[int]):
-    """What `formulation.mixture` resolves once per powder, for the solids `cols` of row i:
-    shape factors, intrinsic viscosities, own packing limits (when any is given), the size
-    distributions on one class grid, and the warnings given on the way; or the error."""
+    """`formulation.powder_terms` of the solids `cols` of row i and the warnings given on
+    the way (resolving the size distributions too), or the error."""
     try:
         with warnings_module.catch_warnings(record=True) as caught:
             warnings_module.simplefilter("always")
@@ -1531,24 +1518,9 @@ def _powders(c: _Chunk, ctx: _Context, i: int, cols: list[int]):
                 if isinstance(dist, LoadlineError):
                     raise dist
                 dists.append(dist)
-            sphere = packing.phi_max_for_aspect_ratio(1.0)
-            shape = np.array([packing.phi_max_for_aspect_ratio(float(c.aspect[i, j])) / sphere
-                              for j in cols])
-            eta = np.array([float(c.intrinsic_given[i, j]) if not math.isnan(
-                c.intrinsic_given[i, j]) else packing.intrinsic_viscosity_for_aspect_ratio(
-                float(c.aspect[i, j])) for j in cols])
-            own = None
-            if any(not math.isnan(c.phi_max_given[i, j]) for j in cols):
-                own = np.array([float(c.phi_max_given[i, j]) if not math.isnan(
-                    c.phi_max_given[i, j]) else shape[m] * packing.max_packing(
-                    dists[m].diameters_m, dists[m].fractions) for m, j in enumerate(cols)])
-            grid = np.unique(np.concatenate([x.diameters_m for x in dists]))
-            fractions = np.zeros((len(dists), grid.size))
-            for m, x in enumerate(dists):
-                fractions[m, np.searchsorted(grid, x.diameters_m)] = x.fractions
-        text = "; ".join(dict.fromkeys(str(w.message) for w in caught))
-        return {"shape": shape, "intrinsic": eta, "own": own, "diameters": grid,
-                "fractions": fractions, "notes": text}
+            terms = formulation.powder_terms(dists, c.aspect[i, cols], c.intrinsic_given[i, cols],
+                                             c.phi_max_given[i, cols])
+        return {"terms": terms, "notes": "; ".join(dict.fromkeys(str(w.message) for w in caught))}
     except LoadlineError as err:
         return err
 

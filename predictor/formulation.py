@@ -331,40 +331,90 @@ def mixtures(formulation: Formulation, loadings=None, is_mass=None) -> Mixture:
 def _solid_packing(ings, dists, phi_eff, is_solid):
     """phi_max and intrinsic viscosity (N,) of the solids in each row of `phi_eff` (N, K).
 
-    See the module docstring. The solids' blend weights differ per row; each powder's shape
-    factor, intrinsic viscosity and size classes are resolved once, and the packing limits
-    of all the rows' blends come from one call of `packing.max_packing_blends` (the estimate
-    `packing.max_packing` gives each blend), whose validity notes are warned once each.
+    See the module docstring: `powder_terms` of the solids, then `blend_packing` of the
+    rows, whose validity notes are warned once each.
     """
     n = phi_eff.shape[0]
     solid = [k for k in range(len(ings)) if is_solid[k]]
     if not solid:
         return np.full(n, RANDOM_CLOSE_SPHERES), np.full(n, 2.5)
-    weights = phi_eff[:, solid]
+    terms = powder_terms([dists[k] for k in solid], [ings[k].aspect_ratio for k in solid],
+                         [ings[k].intrinsic_viscosity for k in solid],
+                         [ings[k].phi_max for k in solid])
+    phi_max, eta_i, notes = blend_packing(terms, phi_eff[:, solid])
+    for note in dict.fromkeys(str(x) for x in notes if x):
+        warnings.warn(note, packing.ValidityWarning, stacklevel=4)
+    return phi_max, eta_i
+
+
+def _given(value) -> bool:
+    return value is not None and not (isinstance(value, float) and np.isnan(value))
+
+
+def powder_terms(dists, aspect_ratios, intrinsic_viscosities, phi_maxes) -> dict:
+    """What the packing of blends of some powders needs of each powder, resolved once.
+
+    Parameters
+    ----------
+    dists : sequence of sizes.SizeDistribution
+    aspect_ratios : sequence of float
+    intrinsic_viscosities, phi_maxes : sequence of float or None
+        Given values (None or nan: estimated from the aspect ratio and the sizes).
+
+    Returns
+    -------
+    dict
+        ``shape`` (packing factor of each powder's shape over spheres), ``intrinsic``
+        (intrinsic viscosities), ``own`` (each powder's own packing limit when any is
+        given, else None), ``diameters`` (one class grid) and ``fractions`` (each
+        powder's volume fractions on it); the input of `blend_packing`.
+    """
+    sphere = packing.phi_max_for_aspect_ratio(1.0)
+    shape = np.array([packing.phi_max_for_aspect_ratio(float(a)) / sphere
+                      for a in aspect_ratios])
+    eta_i = np.array([float(x) if _given(x) else
+                      packing.intrinsic_viscosity_for_aspect_ratio(float(a))
+                      for x, a in zip(intrinsic_viscosities, aspect_ratios, strict=True)])
+    own = None
+    if any(_given(m) for m in phi_maxes):
+        own = np.array([float(m) if _given(m) else
+                        shape[j] * packing.max_packing(d.diameters_m, d.fractions)
+                        for j, (m, d) in enumerate(zip(phi_maxes, dists, strict=True))])
+    grid = np.unique(np.concatenate([d.diameters_m for d in dists]))
+    classes = np.zeros((len(dists), grid.size))
+    for j, d in enumerate(dists):
+        classes[j, np.searchsorted(grid, d.diameters_m)] = d.fractions
+    classes /= classes.sum(axis=1, keepdims=True)
+    return {"shape": shape, "intrinsic": eta_i, "own": own, "diameters": grid,
+            "fractions": classes}
+
+
+def blend_packing(terms: dict, phi_eff) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """phi_max, intrinsic viscosity and validity notes (N,) of N blends of the powders of
+    `terms` (`powder_terms`), the blends given by each powder's effective volume `phi_eff`
+    (N, P) (equal shares where a row has none).
+
+    The packing limit is the blend of the powders' own limits when any is given, else the
+    shape factor times `packing.max_packing_blends` of the blended size classes (the
+    estimate `packing.max_packing` gives each blend), whose notes are returned, not warned.
+    """
+    weights = np.asarray(phi_eff, dtype=float)
     total = weights.sum(axis=1, keepdims=True)
-    weights = np.where(total > 0, weights / np.where(total > 0, total, 1.0), 1.0 / len(solid))
-    shape = np.array([packing.phi_max_for_aspect_ratio(ings[k].aspect_ratio)
-                      / packing.phi_max_for_aspect_ratio(1.0) for k in solid])
-    eta_i = np.array([ings[k].intrinsic_viscosity if ings[k].intrinsic_viscosity is not None
-                      else packing.intrinsic_viscosity_for_aspect_ratio(ings[k].aspect_ratio)
-                      for k in solid])
-    if any(ings[k].phi_max is not None for k in solid):
-        own = np.array([ings[k].phi_max if ings[k].phi_max is not None else
-                        shape[j] * packing.max_packing(dists[k].diameters_m, dists[k].fractions)
-                        for j, k in enumerate(solid)])
-        phi_max = weights @ own
+    weights = np.where(total > 0, weights / np.where(total > 0, total, 1.0),
+                       1.0 / weights.shape[1])
+    eta_i = terms["intrinsic"]
+    if terms["own"] is not None:
+        phi_max = weights @ terms["own"]
+        notes = np.full(weights.shape[0], "", dtype=object)
     else:
-        grid = np.unique(np.concatenate([dists[k].diameters_m for k in solid]))
-        classes = np.zeros((len(solid), grid.size))
-        for j, k in enumerate(solid):
-            classes[j, np.searchsorted(grid, dists[k].diameters_m)] = dists[k].fractions
-        classes /= classes.sum(axis=1, keepdims=True)
-        blended, notes = packing.max_packing_blends(grid, classes, weights)
-        for note in dict.fromkeys(str(x) for x in notes if x):
-            warnings.warn(note, packing.ValidityWarning, stacklevel=4)
-        phi_max = (weights @ shape) * blended
+        with warnings.catch_warnings():
+            warnings.simplefilter("ignore", packing.ValidityWarning)
+            blended, notes = packing.max_packing_blends(terms["diameters"], terms["fractions"],
+                                                        weights)
+        phi_max = (weights @ terms["shape"]) * blended
     # clip: a weighted mean of equal values must not round outside their range
-    return phi_max, np.clip(weights @ eta_i, eta_i.min(), eta_i.max())
+    return phi_max, np.clip(weights @ eta_i, eta_i.min(), eta_i.max()), np.asarray(notes,
+                                                                                  dtype=object)
 
 
 def _relation_params(spec, mix: Mixture, overrides: dict) -> dict:
