@@ -1528,83 +1528,40 @@ def _powders(c: _Chunk, ctx: _Context, i: int, cols: list[int]):
 class _Flow:
     """Row arrays of one chunk for the flow answers, as engine rows (`rows`).
 
-    The inputs `engine.row_inputs` gives for a formulation, resolved for every row of the
-    chunk at once: the droplets' viscosity ratio, the Sauter radius of all solids (the
-    Brownian radius), the swelling of adsorbed layers. The row notes are the engine's
-    (`engine.row_notes`), worded once for `predict` and the batch. Methods take row
-    indices `k` (repeats allowed) and arrays over them.
+    The cells of every row of the chunk, resolved at once by `formulation.resolve_columns`
+    (the resolution `predict` uses for one formulation); the row notes are the engine's
+    (`engine.row_notes`). `rows` takes row indices `k` (repeats allowed).
     """
 
     def __init__(self, c: _Chunk, st: _State, sauter):
-        self.relation, self.droplet_relation = c.relation, c.droplet_relation
-        self.eta_l, self.phi_max, self.intrinsic = st.eta_l, st.phi_max, st.intrinsic
-        self.phi_solids, self.phi_eff = st.phi_solids, st.phi_solids_eff
-        self.phi_droplets = st.phi_droplets
         solid = c.present & c.is_solid
-        drop = c.present & ~c.is_solid
-        phi = np.nan_to_num(st.phi)
+        self.phi = np.nan_to_num(st.phi)
         with np.errstate(invalid="ignore", divide="ignore"):
-            half = np.where(solid & np.isfinite(sauter), 0.5 * sauter, 1.0)
-            self.swelling = np.where(solid, (1.0 + np.nan_to_num(c.layer) / half) ** 3, 1.0)
-            self.mean_swelling = (np.where(solid, self.swelling, 0.0).sum(axis=1)
-                                  / np.maximum(solid.sum(axis=1), 1))
-            volume = np.where(solid, phi, 0.0)
-            total = volume.sum(axis=1)
-            radius = total / np.where(solid, volume / half, 0.0).sum(axis=1)
-            self.radius = np.where(total > 0, radius, np.nan)      # formulation._solid_radius_m
-            eta_d = np.where(np.isnan(c.droplet_viscosity), self.eta_l[:, None],
-                             c.droplet_viscosity)
-            dropped = np.where(drop, phi, 0.0)
-            self.ratio = (np.where(drop, phi * eta_d, 0.0).sum(axis=1) / dropped.sum(axis=1)
-                          / self.eta_l)
-        self.has_droplets = drop.any(axis=1) & (self.phi_droplets > 0)
-        self.phi = phi
-        self.temperature_K = c.temperature_K
-        self.onset = c.onset
-        self.frictional = np.where(np.isnan(c.frictional),
-                                   formulation.FRICTIONAL_RATIO * self.phi_max, c.frictional)
+            self.swelling = np.where(solid, formulation.layer_swelling(
+                np.nan_to_num(c.layer), np.where(solid & np.isfinite(sauter), sauter, 2.0)), 1.0)
         # The liquid law of each row (presets are Newtonian at their viscosity).
-        self.law = np.where(_among(c.liquid, ["water", "glycerol-water"]), "newtonian",
-                            c.liquid).astype(object)
-        self.law_params = {"viscosity_Pa_s": np.where(self.law == "newtonian", self.eta_l,
-                                                      np.nan)}
+        law = np.where(_among(c.liquid, ["water", "glycerol-water"]), "newtonian",
+                       c.liquid).astype(object)
+        law_params = {"viscosity_Pa_s": np.where(law == "newtonian", st.eta_l, np.nan)}
         for name, params in _laws(c, _shift(c)).items():
-            on = self.law == name
+            on = law == name
             for k, v in params.items():
-                self.law_params.setdefault(k, np.full(c.rows.n, np.nan))[on] = v[on]
-        has_phi_max = np.zeros(c.rows.n, bool)
-        for name in pd.unique(c.relation[c.rows.ok]):
-            spec = get_model(name, kind="suspension")
-            has_phi_max[c.relation == name] = "phi_max" in spec.param_names()
-        self.brownian = has_phi_max & np.isfinite(self.radius)
+                law_params.setdefault(k, np.full(c.rows.n, np.nan))[on] = v[on]
+        self.set = engine.FormulationSet(**formulation.resolve_columns(
+            phi_solids_effective=st.phi_solids_eff, phi_solids=st.phi_solids,
+            phi_droplets=st.phi_droplets, phi=self.phi, is_solid=solid, swelling=self.swelling,
+            sauter_diameter_m=sauter, droplet_viscosity_Pa_s=c.droplet_viscosity,
+            liquid_viscosity_Pa_s=st.eta_l, phi_max=st.phi_max, relation=c.relation,
+            relation_params={"intrinsic_viscosity": st.intrinsic},
+            droplet_model=c.droplet_relation, droplet_params={}, onset_stress_Pa=c.onset,
+            phi_max_frictional=c.frictional, temperature_K=c.temperature_K, liquid_law=law,
+            liquid_params=law_params))
+        self.ratio = self.set.droplet_params["viscosity_ratio"]
+        self.has_droplets = (c.present & ~c.is_solid).any(axis=1) & (st.phi_droplets > 0)
 
     def rows(self, k) -> engine.FormulationSet:
         """Rows `k` as an engine `FormulationSet` (`engine.row_inputs` of each row)."""
-        n = len(k)
-        eff, bare = self.phi_eff[k], self.phi_solids[k]
-        swelling = np.where(bare > 0, eff / np.where(bare > 0, bare, 1.0),
-                            self.mean_swelling[k])
-        nan = np.full(n, np.nan)
-        return engine.FormulationSet(
-            phi=eff, phi_solids=bare, swelling=swelling, phi_droplets=self.phi_droplets[k],
-            phi_max=self.phi_max[k],
-            phi_max_frictional=np.where(np.isnan(self.onset[k]), nan, self.frictional[k]),
-            onset_stress_Pa=self.onset[k],
-            radius_m=np.where(self.brownian[k], self.radius[k], np.nan),
-            temperature_K=self.temperature_K[k], yield_stress_Pa=np.zeros(n),
-            has_solids=np.ones(n, bool), liquid_law=self.law[k],
-            liquid_params={p: v[k] for p, v in self.law_params.items()},
-            relation=self.relation[k],
-            relation_params={"intrinsic_viscosity": self.intrinsic[k]},
-            droplet_model=self.droplet_relation[k],
-            droplet_params={"viscosity_ratio": self.ratio[k]},
-            network=np.full(n, None, dtype=object))
-
-    def bare(self, k, phi):
-        """Bare solids fraction when the solids are scaled to effective fraction `phi`."""
-        eff = self.phi_eff[k]
-        return np.where(eff > 0, self.phi_solids[k] * phi / np.where(eff > 0, eff, 1.0),
-                        phi / self.mean_swelling[k])
+        return self.set.take(k)
 
 
 def _join(parts: list[np.ndarray]) -> np.ndarray:

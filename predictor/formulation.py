@@ -312,9 +312,8 @@ def mixtures(formulation: Formulation, loadings=None, is_mass=None) -> Mixture:
     w = composition.mass_fractions(phi, rho, liq.density_kg_per_m3)
     is_solid = np.array([i.kind == SOLID for i in ings])
     dists = [i.distribution() for i in ings]
-    swelling = np.array([
-        (1.0 + i.layer_thickness_m / (0.5 * d.sauter_diameter_m)) ** 3 if i.kind == SOLID else 1.0
-        for i, d in zip(ings, dists, strict=True)])
+    swelling = np.array([layer_swelling(i.layer_thickness_m, d.sauter_diameter_m)
+                         if i.kind == SOLID else 1.0 for i, d in zip(ings, dists, strict=True)])
     phi_s = phi[:, is_solid].sum(axis=1)
     phi_eff = (phi * swelling)[:, is_solid].sum(axis=1)
     phi_max, eta_i = _solid_packing(ings, dists, phi * swelling, is_solid)
@@ -326,6 +325,12 @@ def mixtures(formulation: Formulation, loadings=None, is_mass=None) -> Mixture:
     return Mixture(phi, w, is_solid, swelling, phi_s, phi_eff, phi[:, ~is_solid].sum(axis=1),
                    phi_max, eta_i, eta_l,
                    np.atleast_1d(composition.mixture_density(phi, rho, liq.density_kg_per_m3)))
+
+
+def layer_swelling(layer_thickness_m, diameter_m):
+    """Effective over bare volume of particles with an adsorbed layer, (1 + delta/a)**3,
+    a the (Sauter) radius."""
+    return (1.0 + layer_thickness_m / (0.5 * diameter_m)) ** 3
 
 
 def _solid_packing(ings, dists, phi_eff, is_solid):
@@ -457,16 +462,33 @@ def droplet_relation(formulation: Formulation, mix: Mixture) -> tuple[str, dict]
     params = {}
     on = rows.phi_droplets > 0.0
     if drops and on.any() and "viscosity_ratio" in spec.param_names():
-        volume = rows.phi[:, drops]
-        eta_d = np.array([formulation.ingredients[k].droplet_viscosity_Pa_s
-                          if formulation.ingredients[k].droplet_viscosity_Pa_s is not None
-                          else mix.liquid_viscosity_Pa_s for k in drops])
-        total = np.where(on, volume.sum(axis=1), 1.0)
-        ratio = np.where(on, volume @ eta_d / total, np.nan) / mix.liquid_viscosity_Pa_s
+        eta_d = np.array([np.nan if i.droplet_viscosity_Pa_s is None else
+                          i.droplet_viscosity_Pa_s for i in formulation.ingredients])
+        is_drop = np.array([i.kind == DROPLET for i in formulation.ingredients])
+        ratio = droplet_viscosity_ratio(rows.phi, is_drop, eta_d, mix.liquid_viscosity_Pa_s)
         params["viscosity_ratio"] = ratio if rows is mix else float(ratio[0])
     params.update({k: v for k, v in formulation.droplet_model_params.items()
                    if k in spec.param_names()})
     return spec.name, params
+
+
+def droplet_viscosity_ratio(phi, is_droplet, droplet_viscosity_Pa_s, liquid_viscosity_Pa_s):
+    """Viscosity ratio (N,) of the droplets over the liquid, volume-weighted over the
+    droplet ingredients of each row; nan in rows without droplets.
+
+    phi, is_droplet and droplet_viscosity_Pa_s are (N, K) or (K,) (nan viscosity: the
+    liquid's); liquid_viscosity_Pa_s a float or (N,).
+    """
+    phi = np.atleast_2d(np.asarray(phi, dtype=float))
+    eta_l = np.asarray(liquid_viscosity_Pa_s, dtype=float)
+    eta_d = np.asarray(droplet_viscosity_Pa_s, dtype=float)
+    eta_d = np.where(np.isnan(eta_d), eta_l[..., None] if eta_l.ndim else eta_l, eta_d)
+    volume = np.where(is_droplet, phi, 0.0)
+    total = volume.sum(axis=1)
+    on = total > 0.0
+    with np.errstate(invalid="ignore"):
+        weighted = np.where(is_droplet, phi * eta_d, 0.0).sum(axis=1)
+        return np.where(on, weighted / np.where(on, total, 1.0), np.nan) / eta_l
 
 
 #: Frictional over frictionless jamming point, 0.58/0.64 (Wyart & Cates 2014 and Singh et al.
@@ -522,43 +544,96 @@ def set_columns(formulation: Formulation, mix: Mixture) -> dict:
     """The resolved inputs of N variants (a `mixtures` result): the fields of a
     `FormulationSet`, arrays over the rows. See `predict` for the choices made.
 
-    `engine.vary` builds its set from these; `row_inputs` is their one-row case.
+    `resolve_columns` of the formulation's fields; `engine.vary` builds its set from
+    these; `row_inputs` is their one-row case.
     """
     mix = mix.rows()
     n = mix.phi.shape[0]
+    law, params = liquid_law_of(formulation.liquid)
+    spec = get_model(formulation.model, kind="suspension")
+    rel = spec.check_params(_relation_params(spec, mix, formulation.model_params))
+    phi_max = rel.pop("phi_max", mix.phi_max)
+    droplet_model, droplet_params = droplet_relation(formulation, mix)
+    droplet_params.pop("viscosity_ratio", None)
+    ings = formulation.ingredients
+    onset, frictional = formulation.thickening_onset_stress_Pa, formulation.phi_max_frictional
+    return resolve_columns(
+        phi_solids_effective=mix.phi_solids_effective, phi_solids=mix.phi_solids,
+        phi_droplets=mix.phi_droplets, phi=mix.phi, is_solid=mix.is_solid,
+        swelling=mix.swelling,
+        sauter_diameter_m=np.array([i.distribution().sauter_diameter_m for i in ings]),
+        droplet_viscosity_Pa_s=np.array([np.nan if i.droplet_viscosity_Pa_s is None
+                                         else i.droplet_viscosity_Pa_s for i in ings]),
+        liquid_viscosity_Pa_s=np.full(n, mix.liquid_viscosity_Pa_s), phi_max=phi_max,
+        relation=spec.name, relation_params=rel, droplet_model=droplet_model,
+        droplet_params=droplet_params, ratio="viscosity_ratio" in get_model(
+            droplet_model, kind="emulsion").param_names() and bool(np.any(mix.phi_droplets > 0)),
+        onset_stress_Pa=np.nan if onset is None else onset,
+        phi_max_frictional=np.nan if frictional is None else frictional,
+        temperature_K=formulation.liquid.temperature_K, liquid_law=law, liquid_params=params,
+        network=_networks(formulation, mix))
+
+
+def resolve_columns(*, phi_solids_effective, phi_solids, phi_droplets, phi, is_solid, swelling,
+                    sauter_diameter_m, droplet_viscosity_Pa_s, liquid_viscosity_Pa_s, phi_max,
+                    relation, relation_params, droplet_model, droplet_params, ratio=True,
+                    onset_stress_Pa, phi_max_frictional, temperature_K, liquid_law,
+                    liquid_params, network=None) -> dict:
+    """The fields of a `FormulationSet` of N rows from per-row arrays: the one resolution
+    of formulations into engine rows (`set_columns` for variants of one formulation, the
+    batch screen for a table of many).
+
+    Per-row values are floats, str or arrays (N,); per-ingredient ones (N, K) or (K,):
+    phi (bare volume fractions, 0 where absent), is_solid (False for droplets and absent
+    ingredients), swelling (adsorbed layers, (1 + delta/a)**3), sauter_diameter_m,
+    droplet_viscosity_Pa_s (nan: the liquid's). Parameter dicts map names to floats or
+    arrays (N,). `ratio` adds the droplets' `droplet_viscosity_ratio` to the droplet
+    parameters (before `droplet_params`, which override it). phi_max_frictional nan means
+    `FRICTIONAL_RATIO` times phi_max; it is dropped (nan) where onset_stress_Pa is nan.
+    Choices: see `predict`.
+    """
+    eff = np.atleast_1d(np.asarray(phi_solids_effective, dtype=float))
+    n = eff.shape[0]
 
     def full(value, dtype=float):
         return np.broadcast_to(np.asarray(value, dtype=dtype), (n,)).copy()
 
-    law, params = liquid_law_of(formulation.liquid)
-    spec = get_model(formulation.model, kind="suspension")
-    rel = spec.check_params(_relation_params(spec, mix, formulation.model_params))
-    phi_max = full(rel.pop("phi_max", mix.phi_max))
-    droplet_model, droplet_params = droplet_relation(formulation, mix)
-    onset = formulation.thickening_onset_stress_Pa
-    frictional = formulation.phi_max_frictional
-    if onset is None:
-        frictional = np.nan
-    elif frictional is None:
-        frictional = FRICTIONAL_RATIO * phi_max
-    eff, bare = mix.phi_solids_effective, mix.phi_solids
-    held = float(np.mean(mix.swelling[mix.is_solid])) if mix.is_solid.any() else 1.0
-    swelling = np.where(eff > 0, eff / np.where(eff > 0, bare, 1.0), held)
+    phi = np.broadcast_to(np.asarray(phi, dtype=float), (n, np.shape(phi)[-1]))
+    solid = np.broadcast_to(np.asarray(is_solid, dtype=bool), phi.shape)
+    swelling_k = np.broadcast_to(np.asarray(swelling, dtype=float), phi.shape)
+    bare = full(phi_solids)
+    count = solid.sum(axis=1)
+    held = np.where(count > 0, np.where(solid, swelling_k, 0.0).sum(axis=1)
+                    / np.maximum(count, 1), 1.0)        # mean swelling of the solids
+    with np.errstate(invalid="ignore", divide="ignore"):
+        swelling_row = np.where(eff > 0, eff / np.where(eff > 0, bare, 1.0), held)
+        half = np.where(solid, 0.5 * np.broadcast_to(sauter_diameter_m, phi.shape), 1.0)
+        volume = np.where(solid, phi, 0.0)
+        total = volume.sum(axis=1)
+        radius = np.where(total > 0, total / np.where(solid, volume / half, 0.0).sum(axis=1),
+                          np.nan)                       # Sauter radius of all solids
+    phi_max = full(phi_max)
+    onset = full(onset_stress_Pa)
+    frictional = full(phi_max_frictional)
+    frictional = np.where(np.isnan(onset), np.nan,
+                          np.where(np.isnan(frictional), FRICTIONAL_RATIO * phi_max, frictional))
+    drops = {}
+    if ratio:
+        drops["viscosity_ratio"] = droplet_viscosity_ratio(
+            phi, ~solid & (phi > 0), droplet_viscosity_Pa_s, full(liquid_viscosity_Pa_s))
+    drops.update(droplet_params)
     return {
-        "phi": full(eff), "phi_solids": full(bare), "swelling": swelling,
-        "phi_droplets": full(mix.phi_droplets), "phi_max": phi_max,
-        "phi_max_frictional": full(frictional),
-        "onset_stress_Pa": full(np.nan if onset is None else onset),
-        "radius_m": _solid_radius_m(formulation, mix),
-        "temperature_K": full(formulation.liquid.temperature_K), "yield_stress_Pa": full(0.0),
-        "has_solids": full(mix.is_solid.any(), bool),
-        "liquid_law": full(law, object),
-        "liquid_params": {k: full(v) for k, v in params.items()},
-        "relation": full(spec.name, object),
-        "relation_params": {k: full(v) for k, v in rel.items()},
+        "phi": eff, "phi_solids": bare, "swelling": swelling_row,
+        "phi_droplets": full(phi_droplets), "phi_max": phi_max,
+        "phi_max_frictional": frictional, "onset_stress_Pa": onset, "radius_m": radius,
+        "temperature_K": full(temperature_K), "yield_stress_Pa": np.zeros(n),
+        "has_solids": solid.any(axis=1), "liquid_law": full(liquid_law, object),
+        "liquid_params": {k: full(v) for k, v in liquid_params.items()},
+        "relation": full(relation, object),
+        "relation_params": {k: full(v) for k, v in relation_params.items()},
         "droplet_model": full(droplet_model, object),
-        "droplet_params": {k: full(v) for k, v in droplet_params.items()},
-        "network": _networks(formulation, mix),
+        "droplet_params": {k: full(v) for k, v in drops.items()},
+        "network": full(None, object) if network is None else network,
     }
 
 
