@@ -1602,23 +1602,6 @@ def _max_loading(f: _Flow, k, rate, limit) -> tuple[np.ndarray, np.ndarray, np.n
     return phi, reason, errors
 
 
-def _solid_mass_fraction(c: _Chunk, f: _Flow, k, phi_eff) -> np.ndarray:
-    """`formulation.solid_mass_fraction` of rows `k` with their solids at `phi_eff`."""
-    solid = (c.present & c.is_solid)[k]
-    phi = f.phi[k]
-    swelling = f.swelling[k]
-    shares = np.where(solid, phi * swelling, 0.0)
-    total = shares.sum(axis=1, keepdims=True)
-    even = solid / np.maximum(solid.sum(axis=1, keepdims=True), 1)
-    shares = np.where(total > 0, shares / np.where(total > 0, total, 1.0), even)
-    bare = phi_eff[:, None] * shares / swelling
-    drops = np.where((c.present & ~c.is_solid)[k], phi, 0.0)
-    phi_all = np.clip(bare + drops, 0.0, None)
-    phi_all = phi_all / np.maximum(phi_all.sum(axis=1, keepdims=True), 1.0)
-    w = composition.mass_fractions(phi_all, c.density[k], c.liquid_density[k])
-    return np.where(solid, w, 0.0).sum(axis=1)
-
-
 def _flow_answers(c: _Chunk, ctx: _Context, st: _State, sauter, packing_notes, rates, limits):
     """Viscosity and regime at each row's window shear rates, the highest loadings, notes.
 
@@ -1626,11 +1609,10 @@ def _flow_answers(c: _Chunk, ctx: _Context, st: _State, sauter, packing_notes, r
     with the checks and notes `predict` gives (rows it would refuse get its error). The
     highest loading under each window's max viscosity is `engine.max_loading` over rows
     and windows at once (`_max_loading`), its mass fraction
-    `formulation.solid_mass_fraction`; a
-    failed solve leaves NaN and a note. Returns arrays over rows and windows: viscosity
-    [Pa*s], regime, max effective solids phi [-], max solids mass fraction [-], the
-    limiting reason of each highest loading ("viscosity", "packing", "liquid"; "" where not
-    solved), and the notes per row.
+    `formulation.scaled_solid_mass_fraction`; a failed solve leaves NaN and a note.
+    Returns arrays over rows and windows: viscosity [Pa*s], regime, max effective solids
+    phi [-], max solids mass fraction [-], the limiting reason of each highest loading
+    ("viscosity", "packing", "liquid"; "" where not solved), and the notes per row.
     """
     n, width = rates.shape
     eta = np.full((n, width), np.nan)
@@ -1686,7 +1668,10 @@ def _flow_answers(c: _Chunk, ctx: _Context, st: _State, sauter, packing_notes, r
                                            limits[k, pair_window[sel]])
         mass = np.full(len(k), np.nan)
         done = np.isfinite(phi)
-        mass[done] = _solid_mass_fraction(c, f, k[done], phi[done])
+        kd = k[done]
+        mass[done] = formulation.scaled_solid_mass_fraction(
+            phi[done], f.phi[kd], (c.present & c.is_solid)[kd], f.swelling[kd], c.density[kd],
+            c.liquid_density[kd])
         return phi, mass, reason, errors
 
     pair_errors = np.full(len(pair_row), "", dtype=object)

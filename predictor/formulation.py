@@ -860,18 +860,33 @@ def solid_mass_fraction(formulation: Formulation, phi_solids_effective,
                         mix: Mixture | None = None):
     """Total mass fraction of the solids when their effective volume fraction is scaled."""
     mix = mix or mixture(formulation)
-    phi_eff = np.atleast_1d(np.asarray(phi_solids_effective, dtype=float))
-    if not mix.is_solid.any():
-        return np.zeros_like(phi_eff)
     rho = np.array([i.density_kg_per_m3 for i in formulation.ingredients])
-    shares = np.where(mix.is_solid, mix.phi * mix.swelling, 0.0)
-    shares = shares / shares.sum() if shares.sum() > 0 else mix.is_solid / mix.is_solid.sum()
-    bare = phi_eff[:, None] * shares / mix.swelling            # real solid volume per ingredient
-    drops = np.where(mix.is_solid, 0.0, mix.phi)
+    return scaled_solid_mass_fraction(phi_solids_effective, mix.phi, mix.is_solid, mix.swelling,
+                                      rho, formulation.liquid.density_kg_per_m3)
+
+
+def scaled_solid_mass_fraction(phi_solids_effective, phi, is_solid, swelling, density_kg_per_m3,
+                               liquid_density_kg_per_m3):
+    """Total mass fraction of the solids (N,) when each row's solids are scaled, along their
+    shares of the effective volume, to effective fraction `phi_solids_effective` (N,).
+
+    Per-ingredient arrays (volume fractions `phi`, `is_solid`, `swelling`, densities) are
+    (K,) or (N, K); droplets keep their volume fraction. The one scaling of
+    `solid_mass_fraction` and the batch's highest loadings.
+    """
+    phi_eff = np.atleast_1d(np.asarray(phi_solids_effective, dtype=float))
+    solid = np.asarray(is_solid, dtype=bool)
+    phi = np.asarray(phi, dtype=float)
+    shares = np.where(solid, phi * swelling, 0.0)
+    total = shares.sum(axis=-1, keepdims=True)
+    even = solid / np.maximum(solid.sum(axis=-1, keepdims=True), 1)
+    shares = np.where(total > 0, shares / np.where(total > 0, total, 1.0), even)
+    bare = phi_eff[:, None] * shares / swelling            # real solid volume per ingredient
+    drops = np.where(solid, 0.0, phi)
     phi_all = np.clip(bare + drops, 0.0, None)
     phi_all = phi_all / np.maximum(phi_all.sum(axis=1, keepdims=True), 1.0)
-    w = composition.mass_fractions(phi_all, rho, formulation.liquid.density_kg_per_m3)
-    return w[:, mix.is_solid].sum(axis=1)
+    w = composition.mass_fractions(phi_all, density_kg_per_m3, liquid_density_kg_per_m3)
+    return np.where(solid, w, 0.0).sum(axis=1)
 
 
 def max_loading(formulation: Formulation, viscosity_limit_Pa_s: float,
