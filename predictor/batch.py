@@ -1242,66 +1242,56 @@ def _flag_row(rows: _Rows, i: int, message: str) -> None:
 
 
 def _liquid_viscosity(c: _Chunk) -> np.ndarray:
-    from . import liquids
-
+    """Each row's liquid viscosity, by `formulation.liquid_viscosities` per liquid kind
+    (a law's apparent viscosity at 1 1/s), failures isolated per row."""
+    shift = _shift(c)
     eta = np.full(c.rows.n, np.nan)
-    for kind in ("water", "glycerol-water"):
+    newtonian = c.liquid == "newtonian"
+    eta[newtonian] = formulation.liquid_viscosities(
+        "newtonian", c.temperature_K[newtonian],
+        params={"viscosity_Pa_s": c.liquid_viscosity[newtonian] * shift[newtonian]})
+    kinds = {kind: {} for kind in formulation.LIQUID_PRESETS}
+    kinds.update(_laws(c, shift))
+    for kind, params in kinds.items():
         index = np.flatnonzero((c.liquid == kind) & c.rows.ok)
 
-        def call(part, kind=kind):
-            if kind == "water":
-                return liquids.water_viscosity(c.temperature_K[part])
-            return liquids.glycerol_water_viscosity(c.glycerol[part], c.temperature_K[part])
+        def call(part, kind=kind, params=params):
+            return formulation.liquid_viscosities(kind, c.temperature_K[part], c.glycerol[part],
+                                                  {k: v[part] for k, v in params.items()})
 
         for part, value in _guarded(call, index, c.rows):
-            eta[part] = value
-    shift = _shift(c)
-    newtonian = c.liquid == "newtonian"
-    eta[newtonian] = c.liquid_viscosity[newtonian] * shift[newtonian]
-    for name, params in _laws(c, shift).items():   # apparent viscosity at 1 1/s
-        on = np.flatnonzero((c.liquid == name) & c.rows.ok)
-
-        def call(part, name=name, params=params):
-            return liquids.liquid_viscosity(1.0, name, **{k: v[part] for k, v in
-                                                          params.items()})
-
-        for part, value in _guarded(call, on, c.rows):
             eta[part] = value
     return eta
 
 
 def _shift(c: _Chunk) -> np.ndarray:
-    """Arrhenius factor of each row's liquid (1 for presets and without an activation
-    temperature), as `formulation.Liquid.shift_factor`."""
-    from . import liquids
-
+    """Arrhenius factor of each row's liquid (`formulation.liquid_shift`), failures isolated
+    per row."""
     out = np.ones(c.rows.n)
-    on = (~np.isnan(c.activation_K) & ~_among(c.liquid, ["water", "glycerol-water"])
-          & c.rows.ok)
 
     def call(part):
-        return liquids.arrhenius_shift(c.temperature_K[part], c.reference_K[part],
-                                       c.activation_K[part])
+        return formulation.liquid_shift(c.liquid[part], c.temperature_K[part],
+                                        c.reference_K[part], c.activation_K[part])
 
-    for part, value in _guarded(call, np.flatnonzero(on), c.rows):
+    for part, value in _guarded(call, np.flatnonzero(c.rows.ok), c.rows):
         out[part] = value
     return out
 
 
 def _laws(c: _Chunk, shift: np.ndarray) -> dict:
-    """Law name -> its parameters (n,) at each row's temperature, as
-    `formulation.liquid_law_of` (viscosities and time constants times the shift)."""
+    """Law name -> its parameters (n,) at each row's temperature
+    (`formulation.law_at_temperature`)."""
     out = {}
     for name in pd.unique(c.liquid):
-        if name in ("water", "glycerol-water", "newtonian"):
+        if name in formulation.LIQUID_PRESETS or name == "newtonian":
             continue
         try:
             spec = get_model(name, kind="liquid")
         except LoadlineError:
             continue
-        out[spec.name] = {p.name: c.law_params[p.name] * (shift if p.unit in
-                                                          formulation._SHIFTED_UNITS else 1.0)
-                          for p in spec.params}
+        law, params = formulation.law_at_temperature(
+            spec, {p.name: c.law_params[p.name] for p in spec.params}, shift)
+        out[law] = params
     return out
 
 
@@ -1540,7 +1530,7 @@ class _Flow:
             self.swelling = np.where(solid, formulation.layer_swelling(
                 np.nan_to_num(c.layer), np.where(solid & np.isfinite(sauter), sauter, 2.0)), 1.0)
         # The liquid law of each row (presets are Newtonian at their viscosity).
-        law = np.where(_among(c.liquid, ["water", "glycerol-water"]), "newtonian",
+        law = np.where(_among(c.liquid, formulation.LIQUID_PRESETS), "newtonian",
                        c.liquid).astype(object)
         law_params = {"viscosity_Pa_s": np.where(law == "newtonian", st.eta_l, np.nan)}
         for name, params in _laws(c, _shift(c)).items():

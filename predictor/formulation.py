@@ -81,25 +81,26 @@ class Liquid:
         return cached
 
     def _newtonian_viscosity_Pa_s(self) -> float:
-        if self.preset == "water":
-            return float(liquids.water_viscosity(self.temperature_K))
-        if self.preset == "glycerol-water":
-            return float(liquids.glycerol_water_viscosity(self.glycerol_mass_fraction,
-                                                          self.temperature_K))
-        if self.preset:
+        if self.preset and self.preset not in LIQUID_PRESETS:
             raise InputRangeError("liquid preset", self.preset, "'water', 'glycerol-water' or ''")
-        if self.law != "newtonian":
-            law, params = liquid_law_of(self)
-            return float(liquids.liquid_viscosity(1.0, law, **params))
-        value = self.params.get("viscosity_Pa_s", 1e-3)
-        return float(value) * self.shift_factor()
+        if self.preset:
+            return float(liquid_viscosities(self.preset, self.temperature_K,
+                                            self.glycerol_mass_fraction))
+        if self.law == "newtonian":
+            spec = get_model("newtonian", kind="liquid")
+            params = law_at_temperature(spec, {"viscosity_Pa_s": self.params.get(
+                "viscosity_Pa_s", 1e-3)}, self.shift_factor())[1]
+        else:
+            params = liquid_law_of(self)[1]
+        return float(liquid_viscosities(self.law, self.temperature_K,
+                                        self.glycerol_mass_fraction, params))
 
     def shift_factor(self) -> float:
         """Arrhenius factor from the reference to the working temperature (1 if none given)."""
         if self.activation_temperature_K is None or self.preset:
             return 1.0
-        return float(liquids.arrhenius_shift(self.temperature_K, self.reference_temperature_K,
-                                             self.activation_temperature_K))
+        return float(liquid_shift(self.law, self.temperature_K, self.reference_temperature_K,
+                                  self.activation_temperature_K))
 
 
 @dataclass(frozen=True)
@@ -499,6 +500,8 @@ DEFAULT_RANGE_1_PER_S = (1e-3, 1e5)
 #: Units of the law parameters scaled by the Arrhenius factor (time-temperature
 #: superposition also scales time constants; common practice, no source).
 _SHIFTED_UNITS = ("Pa*s", "s")
+#: Liquid presets computed from the temperature (Newtonian).
+LIQUID_PRESETS = ("water", "glycerol-water")
 
 
 def liquid_law_of(liquid: Liquid) -> tuple[str, dict]:
@@ -520,11 +523,70 @@ def _liquid_law_of(liquid: Liquid) -> tuple[str, dict]:
     if liquid.preset:
         return "newtonian", {"viscosity_Pa_s": liquid.newtonian_viscosity_Pa_s()}
     spec = get_model(liquid.law, kind="liquid")
-    params = spec.check_params(dict(liquid.params))
-    shift = liquid.shift_factor()
+    return law_at_temperature(spec, spec.check_params(dict(liquid.params)),
+                              liquid.shift_factor())
+
+
+def liquid_shift(kind, temperature_K, reference_temperature_K, activation_temperature_K):
+    """Arrhenius factor of each row's liquid, from its reference to its working temperature.
+
+    The one liquid shift of the core: `Liquid.shift_factor` is its one-row case and the batch
+    calls it for many rows. `kind` is the preset or law name of each row; presets
+    (`LIQUID_PRESETS`) and rows without an activation temperature (NaN) get 1.
+
+    Examples
+    --------
+    >>> liquid_shift(["newtonian", "water", "power-law"], 323.15, 298.15,
+    ...              [2000.0, 2000.0, float("nan")]).round(4)
+    array([0.5951, 1.    , 1.    ])
+    """
+    kind, t, ref, act = np.broadcast_arrays(np.asarray(kind, dtype=object),
+                                            np.asarray(temperature_K, dtype=float),
+                                            np.asarray(reference_temperature_K, dtype=float),
+                                            np.asarray(activation_temperature_K, dtype=float))
+    out = np.ones(t.shape)
+    on = ~np.isnan(act)
+    for preset in LIQUID_PRESETS:
+        on &= kind != preset
+    if on.any():
+        out[on] = liquids.arrhenius_shift(t[on], ref[on], act[on])
+    return out
+
+
+def law_at_temperature(spec, params: dict, shift) -> tuple[str, dict]:
+    """Registry name and parameters of a liquid law at the working temperature.
+
+    Viscosity-like and time-constant parameters (`_SHIFTED_UNITS`) are multiplied by the
+    Arrhenius factor `shift` (scalar or one per row); yield stresses and flow indices are
+    kept. `spec` is the law's registry entry; `params` holds SI values (floats or arrays).
+    """
     units = {p.name: p.unit for p in spec.params}
     return spec.name, {k: v * shift if units[k] in _SHIFTED_UNITS else v
                        for k, v in params.items()}
+
+
+def liquid_viscosities(kind: str, temperature_K, glycerol_mass_fraction=0.0,
+                       params: dict | None = None):
+    """Viscosity of rows that share one liquid kind, at their working temperatures.
+
+    The one liquid resolution of the core: `Liquid.newtonian_viscosity_Pa_s` is its one-row
+    case and the batch calls it per kind for many rows. Presets compute it from the
+    temperature (and glycerol mass fraction); "newtonian" returns the given viscosity; any
+    other law returns its apparent viscosity at 1 1/s. `params` are the law's parameters at
+    temperature (`law_at_temperature`).
+
+    Examples
+    --------
+    >>> float(liquid_viscosities("newtonian", 298.15, params={"viscosity_Pa_s": 0.5}))
+    0.5
+    """
+    if kind == "water":
+        return liquids.water_viscosity(temperature_K)
+    if kind == "glycerol-water":
+        return liquids.glycerol_water_viscosity(glycerol_mass_fraction, temperature_K)
+    if kind == "newtonian":
+        return np.asarray(params["viscosity_Pa_s"], dtype=float)
+    return liquids.liquid_viscosity(1.0, kind, **params)
 
 
 def _solid_radius_m(formulation: Formulation, mix: Mixture) -> np.ndarray:
