@@ -1388,15 +1388,13 @@ def _texts(mask, make: Callable[..., str], *columns) -> np.ndarray:
     return out
 
 
-# Size classes allowed by formulation.Formulation (which writes these limits inline). [m]
-_SIZE_CLASS_RANGE = (1e-9, 1e-2)
-
-
 def _check_formulation(c: _Chunk, sauter, smallest, largest) -> None:
     """Flag the rows `formulation.Formulation` would refuse, with its message.
 
-    The same limits (`formulation._INGREDIENT_RANGES` and `_LIQUID_RANGES`) checked in the
-    same order, so that a row's first error is the one `predict` raises for its formulation.
+    The same limits (`formulation._INGREDIENT_RANGES`, `_LIQUID_RANGES`, `SIZE_CLASS_RANGE`,
+    `_FORMULATION_RANGES`), test (`formulation.out_of_range`) and message
+    (`formulation.range_error`), checked in the same order, so that a row's first error is
+    the one `predict` raises for its formulation.
     """
     rows = c.rows
     position = np.cumsum(c.present, axis=1) - 1    # index in Formulation.ingredients
@@ -1407,10 +1405,10 @@ def _check_formulation(c: _Chunk, sauter, smallest, largest) -> None:
     optional = ("phi_max", "droplet_viscosity_Pa_s")    # NaN means "not given" (None)
 
     def flag(mask, field_name, value, low, high, index=None):
-        bad = mask & rows.ok & ~((value >= low) & (value <= high))    # NaN fails too
+        bad = formulation.out_of_range(value, low, high, mask & rows.ok)
         if bad.any():
-            rows.flag(bad, _texts(bad, lambda i, v: str(InputRangeError(
-                field_name.format(i=i), v, f"a number from {low:g} to {high:g}")),
+            rows.flag(bad, _texts(bad, lambda i, v: str(formulation.range_error(
+                field_name.format(i=i), v, low, high)),
                 index if index is not None else np.zeros(rows.n, int), value))
 
     for j in range(c.present.shape[1]):
@@ -1422,7 +1420,7 @@ def _check_formulation(c: _Chunk, sauter, smallest, largest) -> None:
                 flag(given, f"ingredients[{{i}}].{name}", value, low, high, position[:, j])
         for what, value in (("smallest", smallest[:, j]), ("largest", largest[:, j])):
             flag(on & ~np.isnan(value), f"ingredients[{{i}}].size ({what} class)", value,
-                 *_SIZE_CLASS_RANGE, position[:, j])
+                 *formulation.SIZE_CLASS_RANGE, position[:, j])
     liquid = {"temperature_K": c.temperature_K, "density_kg_per_m3": c.liquid_density,
               "glycerol_mass_fraction": c.glycerol, "reference_temperature_K": c.reference_K,
               "activation_temperature_K": c.activation_K}
@@ -1430,22 +1428,21 @@ def _check_formulation(c: _Chunk, sauter, smallest, largest) -> None:
         if name in liquid:
             given = ~np.isnan(liquid[name]) if name == "activation_temperature_K" else True
             flag(np.ones(rows.n, bool) & given, f"liquid.{name}", liquid[name], low, high)
-    for name, value, (low, high) in (("thickening_onset_stress_Pa", c.onset, (1e-9, 1e7)),
-                                     ("phi_max_frictional", c.frictional, (0.05, 1.0))):
-        flag(~np.isnan(value), name, value, low, high)
+    options = {"thickening_onset_stress_Pa": c.onset, "phi_max_frictional": c.frictional}
+    for name, (low, high) in formulation._FORMULATION_RANGES.items():
+        flag(~np.isnan(options[name]), name, options[name], low, high)
 
 
 def _check_params(rows: _Rows, mask, spec, values: dict) -> None:
-    """Flag rows where `spec.check_params` would refuse one of `values`, with its message."""
+    """Flag rows where `spec.check_params` would refuse one of `values`, with its message
+    (`spec.out_of_bounds`, `spec.param_error`)."""
     for p in spec.params:
         if p.name not in values:
             continue
         value = np.asarray(values[p.name], dtype=float)
-        low, high = p.bounds
-        bad = mask & rows.ok & ~((value >= low) & (value <= high))
+        bad = mask & rows.ok & spec.out_of_bounds(p, value)
         if bad.any():
-            rows.flag(bad, _texts(bad, lambda v, p=p, low=low, high=high: str(InputRangeError(
-                p.name, v, f"{low:g} to {high:g} [{p.unit}] for {spec.name}")), value))
+            rows.flag(bad, _texts(bad, lambda v, p=p: str(spec.param_error(p, v)), value))
 
 
 def _packing(c: _Chunk, ctx: _Context, phi_eff: np.ndarray) -> tuple:

@@ -165,12 +165,14 @@ class Formulation:
             _check_interactions(i, ing)
             if ing.size is not None:
                 d = ing.size.diameters_m
-                _check_range(f"ingredients[{i}].size (smallest class)", float(d.min()), 1e-9, 1e-2)
-                _check_range(f"ingredients[{i}].size (largest class)", float(d.max()), 1e-9, 1e-2)
+                _check_range(f"ingredients[{i}].size (smallest class)", float(d.min()),
+                             *SIZE_CLASS_RANGE)
+                _check_range(f"ingredients[{i}].size (largest class)", float(d.max()),
+                             *SIZE_CLASS_RANGE)
         for name, (low, high) in _LIQUID_RANGES.items():
             _check_range(f"liquid.{name}", getattr(self.liquid, name), low, high)
-        _check_range("thickening_onset_stress_Pa", self.thickening_onset_stress_Pa, 1e-9, 1e7)
-        _check_range("phi_max_frictional", self.phi_max_frictional, 0.05, 1.0)
+        for name, (low, high) in _FORMULATION_RANGES.items():
+            _check_range(name, getattr(self, name), low, high)
 
 
 # Screening limits of the inputs (our own choice, wide enough for real formulations; common
@@ -187,6 +189,9 @@ _LIQUID_RANGES = {
     "activation_temperature_K": (0.0, 1e5), "ionic_strength_mol_per_L": (1e-9, 10.0),
     "relative_permittivity": (1.0, 200.0),
 }
+_FORMULATION_RANGES = {"thickening_onset_stress_Pa": (1e-9, 1e7), "phi_max_frictional": (0.05, 1.0)}
+#: Size classes allowed in an ingredient's size distribution. [m]
+SIZE_CLASS_RANGE = (1e-9, 1e-2)
 
 
 def _check_interactions(i: int, ing: Ingredient) -> None:
@@ -214,10 +219,38 @@ def _check_interactions(i: int, ing: Ingredient) -> None:
 def _check_range(field_name: str, value, low: float, high: float) -> None:
     if value is None:
         return
-    if isinstance(value, bool) or not isinstance(value, int | float | np.floating):
-        raise InputRangeError(field_name, value, f"a number from {low:g} to {high:g}")
-    if not (np.isfinite(value) and low <= value <= high):
-        raise InputRangeError(field_name, value, f"a number from {low:g} to {high:g}")
+    if (isinstance(value, bool) or not isinstance(value, int | float | np.floating)
+            or out_of_range(value, low, high)):
+        raise range_error(field_name, value, low, high)
+
+
+def out_of_range(value, low: float, high: float, given=True) -> np.ndarray:
+    """Where a given number lies outside [low, high]; NaN and infinities fail.
+
+    The one range test of `Formulation`'s checks: `Formulation.__post_init__` applies it to
+    one formulation's fields and the batch to columns of many rows (`given` masks the rows
+    that state the field), with the message of `range_error`.
+
+    Examples
+    --------
+    >>> out_of_range([0.5, 1.5, float("nan"), float("nan")], 0.0, 1.0,
+    ...              given=[True, True, True, False])
+    array([False,  True,  True, False])
+    """
+    value = np.asarray(value, dtype=float)
+    with np.errstate(invalid="ignore"):
+        return np.asarray(given, dtype=bool) & ~((value >= low) & (value <= high))
+
+
+def range_error(field_name: str, value, low: float, high: float) -> InputRangeError:
+    """The error `Formulation` raises for a field outside [low, high] (see `out_of_range`).
+
+    Examples
+    --------
+    >>> print(range_error("loading", 1.5, 0.0, 1.0).allowed)
+    a number from 0 to 1
+    """
+    return InputRangeError(field_name, value, f"a number from {low:g} to {high:g}")
 
 
 @dataclass(frozen=True)

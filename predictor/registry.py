@@ -65,14 +65,27 @@ class ModelSpec:
             )
         values = {**self.defaults(), **params}
         for p in self.params:
-            value = np.asarray(values[p.name], dtype=float)
-            low, high = p.bounds
-            if not np.all(np.isfinite(value)) or np.any(value < low) or np.any(value > high):
-                bad = value[~(np.isfinite(value) & (value >= low) & (value <= high))].flat[0]
-                raise InputRangeError(
-                    p.name, bad, f"{low:g} to {high:g} [{p.unit}] for {self.name}"
-                )
+            bad = self.out_of_bounds(p, values[p.name])
+            if np.any(bad):
+                raise self.param_error(p, np.asarray(values[p.name], dtype=float)[bad].flat[0])
         return values
+
+    def out_of_bounds(self, param: Param, value):
+        """Where `value` (scalar or array) lies outside `param`'s bounds; NaN fails.
+
+        The one bounds test of `check_params`, which the batch applies to many rows at once.
+        """
+        import numpy as np
+
+        value = np.asarray(value, dtype=float)
+        low, high = param.bounds
+        return ~((value >= low) & (value <= high))
+
+    def param_error(self, param: Param, value) -> InputRangeError:
+        """The error `check_params` raises for `param` = `value` outside its bounds."""
+        low, high = param.bounds
+        return InputRangeError(param.name, value,
+                               f"{low:g} to {high:g} [{param.unit}] for {self.name}")
 
     def validity_message(self, phi, params: dict) -> str | None:
         """A plain sentence when some phi lies outside the relation's validity range."""

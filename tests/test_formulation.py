@@ -147,3 +147,50 @@ def test_scenario_keeps_both_parameter_spaces_and_reads_older_files():
     del doc["relations"]["droplet_parameters"]       # a file written before the split
     old = scenario.loads(json.dumps(doc))
     assert old.droplet_model_params == {"phi_max": 0.6}   # what the shared space meant
+
+
+def test_liquid_rows_are_the_one_liquid_resolution():
+    # Many rows through formulation.liquid_shift / law_at_temperature / liquid_viscosities
+    # give what each one-row Liquid gives. Outside check: the Arrhenius (Andrade) form
+    # eta(T) = eta_ref * exp(T_A (1/T - 1/T_ref)) by hand (common practice, no source), and a
+    # power-law liquid at 1 1/s has eta = K (Ostwald-de Waele, by definition).
+    t = np.array([293.15, 323.15, 353.15])
+    shift = fm.liquid_shift(["newtonian"] * 3, t, 298.15, 3000.0)
+    assert shift == pytest.approx(np.exp(3000.0 * (1 / t - 1 / 298.15)), rel=1e-12)
+    spec = pr.get_model("power-law", kind="liquid")
+    law, params = fm.law_at_temperature(spec, {"consistency_Pa_s": np.full(3, 2.0),
+                                               "flow_index": np.full(3, 0.5)}, shift)
+    assert params["flow_index"] == pytest.approx([0.5] * 3)      # flow indices are kept
+    eta = fm.liquid_viscosities(law, t, params=params)
+    assert eta == pytest.approx(2.0 * shift, rel=1e-12)
+    for i, ti in enumerate(t):
+        one = fm.Liquid(preset="", law="power-law", temperature_K=float(ti),
+                        params={"consistency_Pa_s": 2.0, "flow_index": 0.5},
+                        activation_temperature_K=3000.0)
+        assert one.shift_factor() == shift[i]
+        assert one.newtonian_viscosity_Pa_s() == pytest.approx(eta[i], rel=1e-15)
+        water = fm.Liquid(temperature_K=float(ti), activation_temperature_K=3000.0)
+        assert water.shift_factor() == 1.0                     # presets are not shifted
+        assert water.newtonian_viscosity_Pa_s() == fm.liquid_viscosities("water", t)[i]
+
+
+def test_range_checks_one_row_and_many_rows_say_the_same():
+    # The batch's vectorised test and message are the ones Formulation raises
+    # (limits: common practice, no source; loading is a fraction, 0 to 1 by definition).
+    loadings = np.array([0.3, 1.2, np.nan, -0.1])
+    bad = fm.out_of_range(loadings, 0.0, 1.0)
+    assert bad.tolist() == [False, True, True, True]
+    for value, refused in zip(loadings, bad, strict=True):
+        if refused:
+            with pytest.raises(pr.InputRangeError) as err:
+                one_powder(loading=float(value))
+            assert str(err.value) == str(fm.range_error("ingredients[0].loading", value,
+                                                         0.0, 1.0))
+        else:
+            one_powder(loading=float(value))
+    spec = pr.get_model("power-law", kind="liquid")
+    index = spec.params[1]                       # flow_index, 0.05 to 2
+    assert spec.out_of_bounds(index, [0.5, 3.0]).tolist() == [False, True]
+    with pytest.raises(pr.InputRangeError) as err:
+        spec.check_params({"flow_index": 3.0})
+    assert str(err.value) == str(spec.param_error(index, 3.0))
