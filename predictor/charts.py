@@ -314,15 +314,21 @@ def _records(frame) -> list[dict]:
         clean = frame.replace([np.inf, -np.inf], np.nan)
         clean = clean.astype(object).where(clean.notna(), None)
         return clean.to_dict("records")
-    columns = [[None if _missing(v) else v for v in frame[name].to_numpy().tolist()]
-               for name in frame.columns]
     names = list(frame.columns)
+    columns = [_column_list(frame[name].to_numpy()) for name in names]
     return [dict(zip(names, row, strict=True)) for row in zip(*columns, strict=True)]
 
 
-def _missing(value) -> bool:
-    return value is None or value is pd.NA or (isinstance(value, float)
-                                               and not math.isfinite(value))
+def _column_list(values: np.ndarray) -> list:
+    """A column as Python values, None where missing (NaN, inf, None, NA)."""
+    out = values.tolist()
+    if values.dtype.kind == "f":
+        for k in np.flatnonzero(~np.isfinite(values)).tolist():
+            out[k] = None
+    elif values.dtype.kind == "O":
+        out = [None if v is None or v is pd.NA or (isinstance(v, float) and not math.isfinite(v))
+               else v for v in out]
+    return out
 
 
 AXIS_EXTENT = 64   # px kept for every y axis so stacked panels line up
