@@ -27,7 +27,7 @@ test: $(STAMP) browser
 	$(BIN)/ruff check predictor app tests
 	$(BIN)/python -m pytest -q -n 2 || [ $$? -eq 5 ]
 
-bench: $(STAMP)
+bench: $(STAMP) browser
 	$(BIN)/python tests/benchmarks/run.py --markdown artifacts/bench.md
 
 fuzz: $(STAMP)

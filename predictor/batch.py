@@ -84,7 +84,10 @@ Output columns, appended to the input columns: ``status`` (``ok`` / ``error``), 
 ``phi solids [-]`` (effective, with adsorbed layers), ``phi droplets [-]``, ``phi_max [-]``,
 ``headroom phi/phi_max [-]``, ``liquid viscosity [Pa*s]``, and per window
 ``window j viscosity [Pa*s]``, ``window j regime``, ``window j max solids [vol%]``
-(effective) and ``window j max solids [wt%]`` (when the window has a max viscosity),
+(effective), ``window j max solids [wt%]`` and ``window j limited by`` (when the window has
+a max viscosity; what sets the highest loading: ``viscosity`` where the max viscosity is
+reached, ``packing`` where it is not reached below phi_max, ``liquid`` where the liquid with
+its droplets is already above it; empty where not computed),
 ``window j verdict`` (``pass`` / ``fail`` / ``error``), then ``settling`` and ``warnings``.
 The viscosity unit of the output is selectable.
 
@@ -613,39 +616,60 @@ class _Rows:
     n: int
     errors: np.ndarray
     numbers: dict = field(default_factory=dict)
-    texts: dict = field(default_factory=dict)
+    cells: dict = field(default_factory=dict)     # text columns: stripped pyarrow arrays
+    lowered: dict = field(default_factory=dict)   # texts in lower case, made when asked
+
+    def text(self, key) -> np.ndarray | None:
+        """The stripped cells of a text column as an object array (None: no such column)."""
+        cells = self.cells.get(key)
+        return None if cells is None else cells.to_numpy(zero_copy_only=False).astype(object)
+
+    def __post_init__(self):
+        self._ok = pd.isna(self.errors)   # kept in step by `flag` and `flag_row`
 
     def flag(self, mask, message) -> None:
         """Keep the first error of each row where `mask`; `message` is a str or per-row array."""
-        mask = np.asarray(mask, dtype=bool) & pd.isna(self.errors)
+        mask = np.asarray(mask, dtype=bool) & self._ok
         if not mask.any():
             return
         if isinstance(message, str):
             self.errors[mask] = message
         else:
             self.errors[mask] = np.asarray(message, dtype=object)[mask]
+        self._ok[mask] = False
+
+    def flag_row(self, i: int, message: str) -> None:
+        """Keep the first error of row `i`."""
+        if self._ok[i]:
+            self.errors[i], self._ok[i] = message, False
 
     @property
     def ok(self) -> np.ndarray:
-        return pd.isna(self.errors)
+        """Rows without an error (a copy)."""
+        return self._ok.copy()
 
 
 def _read_cells(chunk: pd.DataFrame, layout: Layout, row_errors=None) -> _Rows:
+    """The chunk's cells as SI arrays (numbers) and stripped texts, bad cells flagged.
+
+    Vectorised per column: the cells are stripped and parsed in pyarrow's compute kernels
+    (`_strip`, `_parse_numbers`); a message is built only for the rows that need one.
+    """
     rows = _Rows(len(chunk), np.full(len(chunk), None, dtype=object))
     if row_errors is not None:   # from read_table: rows whose cells could not be aligned
         row_errors = np.asarray(row_errors, dtype=object)
         rows.flag(row_errors != "", row_errors)
     for col in layout.columns:
-        raw = chunk[col.header].astype(str).str.strip()
+        raw = _strip(chunk[col.header])
         key = (col.field, col.index)
         if col.dimension == "text":
-            rows.texts[key] = raw.to_numpy(dtype=object)
+            rows.cells[key] = raw
             continue
-        value = np.array(pd.to_numeric(raw, errors="coerce"), dtype=float)
-        bad = (raw.to_numpy(dtype=object) != "") & ~np.isfinite(value)
+        value, given = _parse_numbers(raw)
+        bad = given & ~np.isfinite(value)
         if bad.any():
-            rows.flag(bad, np.array([f"column '{col.header}' = {c!r} is not allowed; expected "
-                                     "a finite number." for c in raw], dtype=object))
+            rows.flag(bad, _messages(bad, raw, lambda c, col=col: (
+                f"column '{col.header}' = {c!r} is not allowed; expected a finite number.")))
             value[bad] = np.nan
         with np.errstate(over="ignore", invalid="ignore"):
             si = col.offset + col.scale * value
@@ -654,25 +678,71 @@ def _read_cells(chunk: pd.DataFrame, layout: Layout, row_errors=None) -> _Rows:
     return rows
 
 
+def _strip(cells: pd.Series):
+    """A column's cells as a pyarrow string array, surrounding whitespace removed."""
+    import pyarrow as pa
+    import pyarrow.compute as pc
+
+    try:
+        arr = pa.array(cells, type=pa.string(), from_pandas=True)
+    except (pa.ArrowInvalid, pa.ArrowTypeError):     # cells that are not all text
+        arr = pa.array(cells.astype(str).to_numpy(dtype=object), type=pa.string())
+    if isinstance(arr, pa.ChunkedArray):
+        arr = arr.combine_chunks()
+    return pc.utf8_trim_whitespace(pc.fill_null(arr, ""))
+
+
+def _parse_numbers(raw) -> tuple[np.ndarray, np.ndarray]:
+    """Floats of stripped text cells (NaN where empty or not a number), and where given.
+
+    pyarrow's parser for a clean column (the same doubles as `pandas.to_numeric`, checked
+    in the tests); `pandas.to_numeric` with errors="coerce" when a cell is not a number.
+    """
+    import pyarrow as pa
+    import pyarrow.compute as pc
+
+    given = pc.not_equal(raw, "")
+    try:
+        value = pc.cast(pc.if_else(given, raw, None), pa.float64())
+        value = value.to_numpy(zero_copy_only=False).astype(float, copy=True)
+    except (pa.ArrowInvalid, pa.ArrowNotImplementedError):
+        value = np.array(pd.to_numeric(pd.Series(raw.to_numpy(zero_copy_only=False)
+                                                 .astype(object)), errors="coerce"),
+                         dtype=float)
+    return value, given.to_numpy(zero_copy_only=False).astype(bool)
+
+
+def _messages(mask: np.ndarray, cells, make: Callable[[object], str]) -> np.ndarray:
+    """`make(cell)` for the rows where `mask` (others empty): messages only where needed.
+
+    `cells` is a pyarrow array or a numpy array over the rows.
+    """
+    out = np.full(len(mask), "", dtype=object)
+    where = np.flatnonzero(mask)
+    picked = cells.take(where).to_pylist() if hasattr(cells, "to_pylist") else \
+        np.asarray(cells)[where].tolist()
+    out[where] = [make(cell) for cell in picked]
+    return out
+
+
 #: Highest shear rate a window may ask for. Process shear rates reach about 1e6 to 1e7 1/s
 #: (high-speed coating, spraying); 1e9 is generous and keeps stresses finite (common
 #: practice, no source). [1/s]
 MAX_SHEAR_RATE_1_PER_S = 1e9
 
 
-def _check_cell_range(rows: _Rows, raw: pd.Series, col: Column, si: np.ndarray) -> None:
+def _check_cell_range(rows: _Rows, raw, col: Column, si: np.ndarray) -> None:
     """Flag cells whose SI value overflowed, and shear rates beyond any process, by column."""
-    cells = raw.to_numpy(dtype=object)
     overflow = np.isinf(si)
     if overflow.any():
-        rows.flag(overflow, np.array([f"column '{col.header}' = {c!r} is too large once "
-                                      "converted to SI units." for c in cells], dtype=object))
+        rows.flag(overflow, _messages(overflow, raw, lambda c: (
+            f"column '{col.header}' = {c!r} is too large once converted to SI units.")))
     if col.dimension == "shear_rate":
         high = np.isfinite(si) & (si > MAX_SHEAR_RATE_1_PER_S)
         if high.any():
-            rows.flag(high, np.array([f"column '{col.header}' = {c!r} is not allowed; expected "
-                                      f"a shear rate up to {MAX_SHEAR_RATE_1_PER_S:g} 1/s."
-                                      for c in cells], dtype=object))
+            rows.flag(high, _messages(high, raw, lambda c: (
+                f"column '{col.header}' = {c!r} is not allowed; expected a shear rate up to "
+                f"{MAX_SHEAR_RATE_1_PER_S:g} 1/s.")))
         si[~np.isfinite(si) | (si > MAX_SHEAR_RATE_1_PER_S)] = np.nan
     else:
         si[overflow] = np.nan
@@ -686,11 +756,27 @@ def _num(rows: _Rows, field_name: str, index: int = 0, default=np.nan) -> np.nda
 
 
 def _text(rows: _Rows, field_name: str, index: int = 0, default: str = "") -> np.ndarray:
-    value = rows.texts.get((field_name, index))
-    if value is None:
+    import pyarrow.compute as pc
+
+    cells = rows.cells.get((field_name, index))
+    if cells is None:
         return np.full(rows.n, default, dtype=object)
-    value = pd.Series(value, dtype=object).str.lower().fillna("").to_numpy(dtype=object)
-    return np.where(value == "", default, value)
+    lowered = rows.lowered.get((field_name, index))
+    if lowered is None:    # str.lower once per distinct cell
+        coded = pc.dictionary_encode(cells)
+        uniques = [u.lower() for u in coded.dictionary.to_pylist()] or [""]
+        lowered = np.array(uniques, dtype=object)[
+            coded.indices.to_numpy(zero_copy_only=False)]
+        rows.lowered[(field_name, index)] = lowered
+    return np.where(lowered == "", default, lowered)
+
+
+def _among(values: np.ndarray, options) -> np.ndarray:
+    """`np.isin` for an object array of texts: one hash pass, each distinct text looked up once."""
+    codes, uniques = pd.factorize(np.asarray(values, dtype=object).ravel(), use_na_sentinel=False)
+    wanted = set(options)
+    inside = np.array([u in wanted for u in uniques] or [False], dtype=bool)
+    return inside[codes].reshape(np.shape(values))
 
 
 def _check(rows: _Rows, bad, layout: Layout, field_name: str, index: int, value, allowed: str,
@@ -704,9 +790,8 @@ def _check(rows: _Rows, bad, layout: Layout, field_name: str, index: int, value,
     scale = col.scale if col else 1.0
     offset = col.offset if col else 0.0
     shown = (np.asarray(value, dtype=float) - offset) / (scale or 1.0)
-    messages = np.array([f"column '{header}' = {v:.6g} is not allowed; expected {allowed}."
-                         for v in shown], dtype=object) if bad.any() else None
-    rows.flag(bad, messages)
+    rows.flag(bad, _messages(bad, shown, lambda v: (
+        f"column '{header}' = {v:.6g} is not allowed; expected {allowed}.")))
 
 
 @dataclass
@@ -810,7 +895,7 @@ def _with_base(chunk: pd.DataFrame, ctx: _Context, row_errors):
     errors = (np.full(n, "", dtype=object) if row_errors is None
               else np.asarray(row_errors, dtype=object).copy())
     names = chunk[col.header].astype(str).str.strip().to_numpy(dtype=object)
-    work = chunk.copy()
+    work = chunk.copy(deep=False)     # copy on write: `chunk` keeps its cells
     columns = list(ctx.layout.columns)
     known = {(c.field, c.index): c for c in columns}
     for name in pd.unique(names[names != ""]):
@@ -948,10 +1033,10 @@ def _resolve(chunk: pd.DataFrame, ctx: _Context, row_errors=None) -> _Chunk:
     from .registry import models
 
     laws = [s.name for s in models("liquid")]
-    known = np.isin(liquid, ["water", "glycerol-water", "newtonian", *laws])
-    rows.flag(~known, np.array([f"column 'liquid' = {v!r} is not allowed; expected 'water', "
-                                f"'glycerol-water' or a liquid law: {', '.join(laws)}."
-                                for v in liquid], object))
+    known = _among(liquid, ["water", "glycerol-water", "newtonian", *laws])
+    rows.flag(~known, _messages(~known & rows.ok, liquid, lambda v: (
+        f"column 'liquid' = {v!r} is not allowed; expected 'water', "
+        f"'glycerol-water' or a liquid law: {', '.join(laws)}.")))
     law_params = {}
     for name in pd.unique(liquid[known & rows.ok]):
         if name in ("water", "glycerol-water", "newtonian"):
@@ -1000,17 +1085,19 @@ def _resolve(chunk: pd.DataFrame, ctx: _Context, row_errors=None) -> _Chunk:
         present[:, j] = (name != "") | ~np.isnan(loading)
         names[:, j] = np.where(name == "", f"ingredient {k}", name)
         kind = _text(rows, "ingredient kind", k, default="solid")
-        rows.flag(present[:, j] & ~np.isin(kind, ["solid", "droplet"]),
-                  np.array([f"column 'ingredient {k} kind' = {v!r} is not allowed; expected "
-                            "'solid' or 'droplet'." for v in kind], object))
+        odd = present[:, j] & ~_among(kind, ["solid", "droplet"]) & rows.ok
+        rows.flag(odd, _messages(odd, kind, lambda v, k=k: (
+            f"column 'ingredient {k} kind' = {v!r} is not allowed; expected 'solid' or "
+            "'droplet'.")))
         is_solid[:, j] = kind != "droplet"
         loading_col = layout.get("ingredient loading", k)
         header = loading_col.header if loading_col else f"ingredient {k} loading"
         basis = _text(rows, "ingredient basis", k,
                       default=loading_col.basis if loading_col else "mass")
-        rows.flag(present[:, j] & ~np.isin(basis, ["mass", "volume"]),
-                  np.array([f"column 'ingredient {k} basis' = {v!r} is not allowed; expected "
-                            "'mass' or 'volume'." for v in basis], object))
+        odd = present[:, j] & ~_among(basis, ["mass", "volume"]) & rows.ok
+        rows.flag(odd, _messages(odd, basis, lambda v, k=k: (
+            f"column 'ingredient {k} basis' = {v!r} is not allowed; expected 'mass' or "
+            "'volume'.")))
         is_mass[:, j] = basis == "mass"
         rows.flag(present[:, j] & np.isnan(loading),
                   f"column '{header}' is empty for an "
@@ -1027,7 +1114,7 @@ def _resolve(chunk: pd.DataFrame, ctx: _Context, row_errors=None) -> _Chunk:
                "ingredient density", k, density, "a density > 0", f"ingredient {k} density")
         d50 = _num(rows, "ingredient d50", k)
         tab = _text(rows, "ingredient size table", k)
-        raw_tab = rows.texts.get(("ingredient size table", k))
+        raw_tab = rows.text(("ingredient size table", k))
         if raw_tab is not None:   # keep the file name's case
             tab = np.where(tab == "", "", raw_tab)
         rows.flag(present[:, j] & is_solid[:, j] & np.isnan(d50) & (tab == ""),
@@ -1151,8 +1238,7 @@ def _guarded(func: Callable[[np.ndarray], object], index: np.ndarray, rows: _Row
 
 
 def _flag_row(rows: _Rows, i: int, message: str) -> None:
-    if pd.isna(rows.errors[i]):
-        rows.errors[i] = message
+    rows.flag_row(i, message)
 
 
 def _liquid_viscosity(c: _Chunk) -> np.ndarray:
@@ -1190,7 +1276,7 @@ def _shift(c: _Chunk) -> np.ndarray:
     from . import liquids
 
     out = np.ones(c.rows.n)
-    on = (~np.isnan(c.activation_K) & ~np.isin(c.liquid, ["water", "glycerol-water"])
+    on = (~np.isnan(c.activation_K) & ~_among(c.liquid, ["water", "glycerol-water"])
           & c.rows.ok)
 
     def call(part):
@@ -1250,27 +1336,30 @@ def _nan(value) -> float:
     return math.nan if value is None else float(value)
 
 
-def _groups(frame: pd.DataFrame) -> list[tuple[tuple, np.ndarray]]:
-    """The distinct rows of `frame`: [(key tuple, positions), ...], in O(n log n).
+def _groups(columns: dict) -> list[tuple[tuple, np.ndarray]]:
+    """The distinct rows of equal-length `columns` (name -> 1-D array): [(key tuple,
+    positions), ...], by one hash pass per column and one sort.
 
     NaN in a key becomes None, so keys compare equal and can index a cache.
     """
-    if frame.empty:
+    arrays = [np.asarray(v) for v in columns.values()]
+    if not arrays or len(arrays[0]) == 0:
         return []
-    combined = np.zeros(len(frame), dtype=np.int64)
-    for col in frame.columns:
-        codes, _ = pd.factorize(frame[col].to_numpy(), use_na_sentinel=False)
+    combined = np.zeros(len(arrays[0]), dtype=np.int64)
+    for values in arrays:
+        codes, _ = pd.factorize(values, use_na_sentinel=False)
         combined, _ = pd.factorize(combined * (int(codes.max()) + 1) + codes)
     order = np.argsort(combined, kind="stable")
     cuts = np.flatnonzero(np.diff(combined[order])) + 1
     starts = np.concatenate([[0], cuts])
-    ends = np.concatenate([cuts, [len(frame)]])
-    values = frame.to_numpy(dtype=object)
+    ends = np.concatenate([cuts, [len(order)]])
+    firsts = [values[order[starts]].tolist() for values in arrays]   # each group's first row
 
     def key(row):
         return tuple(None if isinstance(v, float) and math.isnan(v) else v for v in row)
 
-    return [(key(values[order[a]]), order[a:b]) for a, b in zip(starts, ends, strict=True)]
+    rows = zip(*firsts, strict=True)
+    return [(key(row), order[a:b]) for row, a, b in zip(rows, starts, ends, strict=True)]
 
 
 def _sizes(c: _Chunk, ctx: _Context) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
@@ -1283,8 +1372,8 @@ def _sizes(c: _Chunk, ctx: _Context) -> tuple[np.ndarray, np.ndarray, np.ndarray
         has_size = c.present[:, j] & c.rows.ok & ((c.table[:, j] != "") | ~np.isnan(c.d50[:, j]))
         if not has_size.any():
             continue
-        keys = pd.DataFrame({"t": c.table[has_size, j], "d": c.d50[has_size, j],
-                             "s": c.spread[has_size, j]})
+        keys = {"t": c.table[has_size, j], "d": c.d50[has_size, j],
+                "s": c.spread[has_size, j]}
         where = np.flatnonzero(has_size)
         for (tab, d50, spread), pos in _groups(keys):
             dist = _distribution(ctx, str(tab), _nan(d50), _nan(spread))
@@ -1304,8 +1393,7 @@ def _texts(mask, make: Callable[..., str], *columns) -> np.ndarray:
     out = np.full(np.shape(mask), "", dtype=object)
     where = np.flatnonzero(mask)
     if where.size:
-        frame = pd.DataFrame({i: np.asarray(col)[where] for i, col in enumerate(columns)})
-        for key, pos in _groups(frame):
+        for key, pos in _groups({i: np.asarray(col)[where] for i, col in enumerate(columns)}):
             out[where[pos]] = make(*key)
     return out
 
@@ -1396,9 +1484,9 @@ def _packing(c: _Chunk, ctx: _Context, phi_eff: np.ndarray) -> tuple:
         for name, arr in (("d", c.d50), ("s", c.spread), ("a", c.aspect), ("m", c.phi_max_given),
                           ("i", c.intrinsic_given)):
             keys[f"{name}{j}"] = np.where(on, arr[:, j], -1.0)
-    frame = pd.DataFrame(keys)[use]
-    if frame.empty:
+    if not use.any():
         return phi_max, intrinsic, notes
+    frame = {name: values[use] for name, values in keys.items()}
     where = np.flatnonzero(use)
     solid_eff = np.where(solid, np.nan_to_num(phi_eff), 0.0)
     for key, pos in _groups(frame):
@@ -1515,7 +1603,7 @@ class _Flow:
         self.frictional = np.where(np.isnan(c.frictional),
                                    formulation.FRICTIONAL_RATIO * self.phi_max, c.frictional)
         # The liquid law of each row (presets are Newtonian at their viscosity).
-        self.law = np.where(np.isin(c.liquid, ["water", "glycerol-water"]), "newtonian",
+        self.law = np.where(_among(c.liquid, ["water", "glycerol-water"]), "newtonian",
                             c.liquid).astype(object)
         self.law_params = {"viscosity_Pa_s": np.where(self.law == "newtonian", self.eta_l,
                                                       np.nan)}
@@ -1651,31 +1739,40 @@ def _flow_notes(f: _Flow, k: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
 
 def _join(parts: list[np.ndarray]) -> np.ndarray:
     """Per-row texts joined with "; ", empty ones left out."""
-    out = parts[0].copy()
+    out = np.asarray(parts[0], dtype=object).copy()
     for part in parts[1:]:
-        both = (out != "") & (part != "")
-        out = np.where(both, out + "; " + part, np.where(out == "", part, out))
+        part = np.asarray(part, dtype=object)
+        given = part != ""
+        if not given.any():
+            continue
+        empty = out == ""
+        both = given & ~empty
+        out[both] = out[both] + "; " + part[both]
+        out[given & empty] = part[given & empty]
     return out
 
 
-def _max_loading(f: _Flow, k, rate, limit) -> tuple[np.ndarray, np.ndarray]:
+def _max_loading(f: _Flow, k, rate, limit) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
     """`engine.max_loading` (the solver of `formulation.max_loading`) for many (row, window)
-    pairs at once. Returns the fractions and, per pair, the error that stopped its solve
-    ("" if none; the fraction is then NaN), as `max_loading` would raise it.
+    pairs at once. Returns the fractions, their limiting reasons ("viscosity", "packing" or
+    "liquid") and, per pair, the error that stopped its solve ("" if none; the fraction is
+    then NaN and the reason ""), as `max_loading` would raise it.
     """
     errors = np.full(len(k), "", dtype=object)
     try:
-        phi, _ = engine.max_loading(f.rows(k), limit, rate)
-        return phi, errors
+        phi, reason = engine.max_loading(f.rows(k), limit, rate)
+        return phi, np.asarray(reason, dtype=object), errors
     except LoadlineError:
         pass
     phi = np.full(len(k), np.nan)
+    reason = np.full(len(k), "", dtype=object)
     for i in range(len(k)):          # isolate the pairs whose solve fails
         try:
-            phi[i] = engine.max_loading(f.rows(k[i:i + 1]), limit[i], rate[i])[0][0]
+            one, why = engine.max_loading(f.rows(k[i:i + 1]), limit[i], rate[i])
+            phi[i], reason[i] = one[0], str(why[0])
         except LoadlineError as err:
             errors[i] = str(err)
-    return phi, errors
+    return phi, reason, errors
 
 
 def _solid_mass_fraction(c: _Chunk, f: _Flow, k, phi_eff) -> np.ndarray:
@@ -1704,19 +1801,21 @@ def _flow_answers(c: _Chunk, ctx: _Context, st: _State, sauter, packing_notes, r
     and windows at once (`_max_loading`), its mass fraction
     `formulation.solid_mass_fraction`; a
     failed solve leaves NaN and a note. Returns arrays over rows and windows: viscosity
-    [Pa*s], regime, max effective solids phi [-], max solids mass fraction [-], and the
-    notes per row.
+    [Pa*s], regime, max effective solids phi [-], max solids mass fraction [-], the
+    limiting reason of each highest loading ("viscosity", "packing", "liquid"; "" where not
+    solved), and the notes per row.
     """
     n, width = rates.shape
     eta = np.full((n, width), np.nan)
     regime = np.full((n, width), "", dtype=object)
     max_phi = np.full((n, width), np.nan)
     max_mass = np.full((n, width), np.nan)
+    limited = np.full((n, width), "", dtype=object)
     notes = np.full(n, "", dtype=object)
     good = np.isfinite(rates) & (rates > 0)
     asked = c.rows.ok & good.any(axis=1)      # the rows `predict` is called for
     if not asked.any():
-        return eta, regime, max_phi, max_mass, notes
+        return eta, regime, max_phi, max_mass, limited, notes
     f = _Flow(c, st, sauter)
     rows = c.rows
     # The checks `predict` makes beyond `mixture`, in its order: a newtonian liquid's law,
@@ -1730,7 +1829,7 @@ def _flow_answers(c: _Chunk, ctx: _Context, st: _State, sauter, packing_notes, r
     for name in pd.unique(c.droplet_relation[asked & f.has_droplets]):
         _check_params(rows, asked & f.has_droplets & (c.droplet_relation == name),
                       get_model(name, kind="emulsion"), {"viscosity_ratio": f.ratio})
-    _check_params(rows, asked & np.isin(c.liquid, ["water", "glycerol-water"]), newtonian,
+    _check_params(rows, asked & _among(c.liquid, ["water", "glycerol-water"]), newtonian,
                   {"viscosity_Pa_s": st.eta_l})
 
     def call(part):
@@ -1756,21 +1855,23 @@ def _flow_answers(c: _Chunk, ctx: _Context, st: _State, sauter, packing_notes, r
 
     def solve(sel):
         k = pair_row[sel]
-        phi, errors = _max_loading(f, k, rates[k, pair_window[sel]], limits[k, pair_window[sel]])
+        phi, reason, errors = _max_loading(f, k, rates[k, pair_window[sel]],
+                                           limits[k, pair_window[sel]])
         mass = np.full(len(k), np.nan)
         done = np.isfinite(phi)
         mass[done] = _solid_mass_fraction(c, f, k[done], phi[done])
-        return phi, mass, errors
+        return phi, mass, reason, errors
 
     pair_errors = np.full(len(pair_row), "", dtype=object)
 
     def failed(p, err):      # an error the solve did not foresee: isolated to its pair
         pair_errors[p] = str(err)
 
-    for sel, (phi, mass, errors) in _guarded(solve, np.arange(len(pair_row)), rows,
-                                             on_error=failed):
+    for sel, (phi, mass, reason, errors) in _guarded(solve, np.arange(len(pair_row)), rows,
+                                                     on_error=failed):
         max_phi[pair_row[sel], pair_window[sel]] = phi
         max_mass[pair_row[sel], pair_window[sel]] = mass
+        limited[pair_row[sel], pair_window[sel]] = reason
         pair_errors[sel] = np.where(errors == "", pair_errors[sel], errors)
     window_notes = np.full(n, "", dtype=object)
     for p in np.flatnonzero(pair_errors != ""):   # as formulation.max_loading raising
@@ -1779,20 +1880,34 @@ def _flow_answers(c: _Chunk, ctx: _Context, st: _State, sauter, packing_notes, r
         window_notes[i] = f"{window_notes[i]}; {text}" if window_notes[i] else text
     notes[asked] = _join([flow_notes, window_notes, np.where(asked, packing_notes, ""),
                           drop_notes])[asked]
-    return eta, regime, max_phi, max_mass, notes
+    return eta, regime, max_phi, max_mass, limited, notes
 
 
-def duration_text(seconds: float) -> str:
-    """A duration in the largest fitting unit, 3 significant digits ("2.5 h", "41 days")."""
-    if not np.isfinite(seconds):
-        return "never"
-    for unit, scale in (("years", 365.25 * 86400.0), ("days", 86400.0), ("h", 3600.0),
-                        ("min", 60.0)):
-        if seconds >= scale:
-            return f"{seconds / scale:.3g} {unit}"
-    return f"{seconds:.3g} s"
+_DURATION_UNITS = (("years", 365.25 * 86400.0), ("days", 86400.0), ("h", 3600.0),
+                   ("min", 60.0), ("s", 1.0))
 
 
+def duration_text(seconds) -> str | np.ndarray:
+    """A duration in the largest fitting unit, 3 significant digits ("2.5 h", "41 days");
+    an array of them (object) for an array of durations.
+
+    Examples
+    --------
+    >>> duration_text(9000.0)
+    '2.5 h'
+    >>> duration_text(np.array([41 * 86400.0, 0.5, np.inf])).tolist()
+    ['41 days', '0.5 s', 'never']
+    """
+    x = np.asarray(seconds, dtype=float)
+    flat = x.ravel()
+    scale = np.ones(flat.shape)
+    unit = np.full(flat.shape, "s", dtype=object)
+    for name, size in reversed(_DURATION_UNITS[:-1]):     # the largest fitting unit wins
+        fits = flat >= size
+        scale[fits], unit[fits] = size, name
+    numbers = np.array(list(map("{:.3g}".format, (flat / scale).tolist())), dtype=object)
+    out = np.where(np.isfinite(flat), numbers + " " + unit, "never").astype(object)
+    return str(out[0]) if x.ndim == 0 else out.reshape(x.shape)
 
 
 #: Shear rate of settling at which a liquid law's viscosity is taken (the default of
@@ -1832,8 +1947,7 @@ def _settling(c: _Chunk, st: _State, ctx: _Context) -> np.ndarray:
         if not sized.any():
             continue
         d90 = np.full(n, np.nan)
-        keys = pd.DataFrame({"t": c.table[sized, j], "d": c.d50[sized, j],
-                             "s": c.spread[sized, j]})
+        keys = {"t": c.table[sized, j], "d": c.d50[sized, j], "s": c.spread[sized, j]}
         where = np.flatnonzero(sized)
         for (tab, d50, spread), pos in _groups(keys):
             dist = _distribution(ctx, str(tab), _nan(d50), _nan(spread))
@@ -1866,8 +1980,9 @@ def _settling(c: _Chunk, st: _State, ctx: _Context) -> np.ndarray:
                 k = np.flatnonzero(~stable & (verdict[sel] == ""))
                 times = np.asarray(r["clear_layer_time_s"])[k]
                 direction = np.asarray(r["direction"])[k]
-                verdict[moving] = [f"{c.names[i, j]} {d}, 1 mm layer in {duration_text(t)}"
-                                   for i, d, t in zip(moving, direction, times, strict=True)]
+                verdict[moving] = (c.names[moving, j].astype(str).astype(object) + " "
+                                   + direction.astype(str).astype(object) + ", 1 mm layer in "
+                                   + duration_text(times))
     empty = verdict == ""
     verdict[empty & (stable_reason != "")] = "stable (" + stable_reason[
         empty & (stable_reason != "")] + ")"
@@ -1904,7 +2019,7 @@ def _predict_chunk(chunk: pd.DataFrame, ctx: _Context, viscosity_unit: str,
         if windows else np.zeros((n, 0))
     limits = np.column_stack([_num(rows, "window max viscosity", j) for j in windows]) \
         if windows else np.zeros((n, 0))
-    curve_eta, curve_regime, max_phi, max_mass, curve_notes = _flow_answers(
+    curve_eta, curve_regime, max_phi, max_mass, limited_by, curve_notes = _flow_answers(
         c, ctx, st, sauter, packing_notes, rates, limits)
 
     ok = rows.ok
@@ -1957,6 +2072,7 @@ def _predict_chunk(chunk: pd.DataFrame, ctx: _Context, viscosity_unit: str,
         if np.isfinite(hi).any():
             out[f"{label} max solids [vol%]"] = 100 * max_phi[:, w] * mask
             out[f"{label} max solids [wt%]"] = 100 * max_mass[:, w] * mask
+            out[f"{label} limited by"] = np.where(ok, limited_by[:, w], "")
         passed = np.where(np.isnan(lo), True, eta >= lo) & np.where(np.isnan(hi), True, eta <= hi)
         verdict = np.where(ok & passed, "pass", np.where(ok, "fail", "error")).astype(object)
         verdict = np.where(ok & bad_rate, "error: shear rate missing or <= 0", verdict)
@@ -1967,7 +2083,7 @@ def _predict_chunk(chunk: pd.DataFrame, ctx: _Context, viscosity_unit: str,
         out[f"{label} verdict"] = verdict
     out["settling"] = np.where(ok, _settling(c, st, ctx), "")
     out["warnings"] = warnings
-    result = chunk.copy()
+    result = chunk.copy(deep=False)     # copy on write: the chunk itself is never changed
     for name, values in out.items():
         if name in result.columns:
             name = f"{name} (result)"
@@ -2024,7 +2140,7 @@ def _note_liquid_fails(frame: pd.DataFrame) -> pd.DataFrame:
                     "droplets) is above the max viscosity; no solids loading meets it")
             joined = (notes + "; " + text).where(notes != "", text)
             notes = notes.where(~fails, joined)
-    frame = frame.copy()
+    frame = frame.copy(deep=False)     # copy on write: the input frame is kept
     frame["warnings"] = notes.to_numpy(dtype=object)
     return frame
 
@@ -2083,13 +2199,30 @@ def screen(table: pd.DataFrame, base_dir=".", viscosity_unit: str = "Pa*s",
     _check_unit(viscosity_unit)
     layout = parse_header([h for h in table.columns if h != ROW_ERROR])
     ctx = _Context(layout, pathlib.Path(base_dir))
-    text = table.astype(object).where(table.notna(), "").astype(str)
+    text = _as_text(table)
     parts = [_note_liquid_fails(_predict_chunk_safe(
         text.iloc[s:s + chunk_rows].reset_index(drop=True), ctx, viscosity_unit))
         for s in range(0, len(text), chunk_rows)]
     if not parts:
         return _predict_chunk(text, ctx, viscosity_unit)
     return pd.concat(parts, ignore_index=True)
+
+
+def _as_text(table: pd.DataFrame) -> pd.DataFrame:
+    """The table with every cell as text, missing ones empty; text columns kept as they are."""
+    text_dtype = pd.Series([""], dtype=object).astype(str).dtype
+    parts = []
+    for i in range(table.shape[1]):
+        col = table.iloc[:, i]
+        if col.dtype == text_dtype:
+            parts.append(col.fillna("") if col.hasnans else col)
+        else:
+            parts.append(col.astype(object).where(col.notna(), "").astype(str))
+    if not parts:
+        return table.astype(object).where(table.notna(), "").astype(str)
+    out = pd.concat(parts, axis=1, ignore_index=True)
+    out.columns = table.columns
+    return out
 
 
 def screen_file(path, out_path=None, viscosity_unit: str = "Pa*s",
@@ -2258,7 +2391,7 @@ def spreadsheet_safe(value):
 def safe_frame(frame: pd.DataFrame, digits: int = 6) -> pd.DataFrame:
     """A copy of `frame` fit for a spreadsheet: text cells and headers escaped with
     `spreadsheet_safe` (vectorised), floats rounded to `digits` significant digits."""
-    out = frame.copy()
+    out = frame.copy(deep=False)     # copy on write: `frame` itself is never changed
     out.columns = [spreadsheet_safe(str(c)) for c in out.columns]
     for col in out.columns:
         values = out[col]

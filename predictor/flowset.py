@@ -128,19 +128,29 @@ class FormulationSet:
         ``fs.take(first)`` holds each distinct row once; ``inverse`` maps every row to its
         position there. Tables of designed experiments repeat formulations many times.
         """
+        n = len(self)
         columns = []
         for f in dataclasses.fields(self):
             value = getattr(self, f.name)
             for v in (value.values() if isinstance(value, dict) else (value,)):
                 v = np.asarray(v)
-                if v.dtype.kind in "OUS":
-                    v = np.unique(np.array([str(x) for x in v.ravel()]),
-                                  return_inverse=True)[1].ravel()
-                columns.append(np.asarray(v, dtype=float))
-        columns += [np.asarray(e, dtype=float).reshape(len(self), -1).T for e in extra]
-        table = np.column_stack([c.T if c.ndim == 2 else c for c in columns])
-        table = np.where(np.isnan(table), -np.inf, table)      # NaN rows compare equal
-        _, first, inverse = np.unique(table, axis=0, return_index=True, return_inverse=True)
+                columns.append(_codes(v.ravel()) if v.dtype.kind in "OUS" else v)
+        columns += [np.asarray(e, dtype=float).reshape(n, -1) for e in extra]
+        columns = [c for v in columns for c in np.asarray(v, dtype=float).reshape(n, -1).T]
+        # Each value as its bits (one NaN, one zero), and a 64-bit hash of each row: one sort
+        # of n integers, not a lexicographic sort of rows; checked exactly below.
+        bits = [np.where(np.isnan(c), np.nan, c + 0.0).view(np.uint64) for c in columns]
+        hashed = np.zeros(n, dtype=np.uint64)
+        mix = np.uint64(0x9E3779B97F4A7C15)
+        with np.errstate(over="ignore"):
+            for b in bits:
+                hashed = (hashed ^ (b + (hashed << np.uint64(6)) + (hashed >> np.uint64(2)))) * mix
+        _, first, inverse = np.unique(hashed, return_index=True, return_inverse=True)
+        inverse = inverse.ravel()
+        if not all(np.array_equal(b[first][inverse], b) for b in bits):   # a collision
+            table = np.ascontiguousarray(np.column_stack(bits))
+            keys = table.view(np.dtype((np.void, table.shape[1] * 8))).ravel()
+            _, first, inverse = np.unique(keys, return_index=True, return_inverse=True)
         return first, inverse.ravel()
 
     def at_loading(self, phi) -> FormulationSet:
@@ -201,6 +211,22 @@ def from_rows(rows: Sequence[Mapping]) -> FormulationSet:
     return FormulationSet(**out)
 
 
+def _codes(values: np.ndarray) -> np.ndarray:
+    """Integer codes of the distinct objects of a 1-D array (by their text if unhashable)."""
+    try:
+        uniques = list(dict.fromkeys(values.tolist()))
+    except TypeError:
+        values = np.array([str(x) for x in values], dtype=object)
+        uniques = list(dict.fromkeys(values.tolist()))
+    if len(uniques) > 16:
+        index = {u: i for i, u in enumerate(uniques)}
+        return np.fromiter((index[x] for x in values.tolist()), dtype=float, count=len(values))
+    codes = np.zeros(len(values))
+    for i, u in enumerate(uniques[1:], start=1):
+        codes[values == u] = i
+    return codes
+
+
 def _rates(shear_rate_1_per_s, n: int) -> np.ndarray:
     rates = np.atleast_1d(np.asarray(shear_rate_1_per_s, dtype=float))
     if rates.ndim == 2 and rates.shape[0] != n or rates.ndim > 2:
@@ -217,8 +243,10 @@ def _groups(*labels: np.ndarray):
     """Row indices of each distinct combination of the label arrays."""
     codes = np.zeros(len(labels[0]), dtype=np.int64)
     for lab in labels:
-        uniq, inverse = np.unique(np.asarray(lab).astype(str), return_inverse=True)
-        codes = codes * max(len(uniq), 1) + inverse.ravel()
+        lab = np.asarray(lab).ravel()
+        inverse = _codes(lab if lab.dtype.kind == "O" else lab.astype(str).astype(object))
+        inverse = inverse.astype(np.int64)
+        codes = codes * (int(inverse.max(initial=0)) + 1) + inverse
     order = np.argsort(codes, kind="stable")
     cuts = np.flatnonzero(np.diff(codes[order])) + 1
     yield from (part for part in np.split(order, cuts) if part.size)

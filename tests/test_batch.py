@@ -85,6 +85,77 @@ def test_hand_calculated_row():
     assert row["window 1 verdict"] == "pass"
 
 
+def test_window_limited_by_names_what_sets_the_highest_loading():
+    # Hand calculations (outside checks). Row "mp": Maron-Pierce, eta_r = (1 - phi/0.6)**-2
+    # on 100 mPa*s. Under 1.6 Pa*s the viscosity sets it (phi = 0.45, as in
+    # test_hand_calculated_row); under 0.05 Pa*s the liquid alone (0.1 Pa*s) is already
+    # above it, so 0 and "liquid". Row "ein": Einstein (1905), eta_r = 1 + 2.5 phi, is 2.5 at
+    # phi_max = 0.6, i.e. 0.25 Pa*s < 1.6 Pa*s: the packing limit sets it (phi = 0.6).
+    common = {"liquid": "newtonian", "liquid viscosity [mPa*s]": "100",
+              "liquid density [kg/m3]": "1000", "ingredient 1": "beads",
+              "ingredient 1 loading [vol%]": "30", "ingredient 1 density [g/cm3]": "2.5",
+              "ingredient 1 d50 [um]": "20", "ingredient 1 phi_max [-]": "0.6",
+              "window 1 shear rate [1/s]": "10", "window 1 max viscosity [Pa*s]": "1.6",
+              "window 2 shear rate [1/s]": "10"}
+    table = pd.DataFrame([
+        {**common, "candidate": "mp", "relation": "maron-pierce",
+         "window 2 max viscosity [Pa*s]": "0.05"},
+        {**common, "candidate": "ein", "relation": "einstein",
+         "window 2 max viscosity [Pa*s]": ""},
+        {**common, "candidate": "bad", "relation": "maron-pierce",
+         "ingredient 1 loading [vol%]": "-3", "window 2 max viscosity [Pa*s]": ""}])
+    with _quiet():
+        result = batch.screen(table).set_index("candidate")
+    mp, ein = result.loc["mp"], result.loc["ein"]
+    assert mp["window 1 limited by"] == "viscosity"
+    assert mp["window 1 max solids [vol%]"] == pytest.approx(45.0, rel=1e-6)
+    assert mp["window 2 limited by"] == "liquid"
+    assert mp["window 2 max solids [vol%]"] == 0.0
+    assert ein["window 1 limited by"] == "packing"
+    assert ein["window 1 max solids [vol%]"] == pytest.approx(60.0, rel=1e-6)
+    assert ein["window 2 limited by"] == ""            # no max viscosity: nothing solved
+    assert result.loc["bad", "status"] == "error"
+    assert result.loc["bad", "window 1 limited by"] == ""
+
+
+@pytest.mark.parametrize("odd", [[], ["forty", "1,5", "inf", "nan", "0x10", " "]])
+def test_cells_parse_as_pandas_to_numeric(odd):
+    # Reference library: the vectorised cell parser (pyarrow kernels) gives the same doubles
+    # as pandas.to_numeric(errors="coerce") on the stripped cells, bit for bit, with and
+    # without cells that are not numbers (the fallback path).
+    rng = np.random.default_rng(5)
+    x = rng.uniform(0, 100, 3000) * 10.0 ** rng.integers(-30, 30, 3000)
+    cells = ([repr(float(v)) for v in x] + [f" {v:.17g} " for v in x[:500]]
+             + [str(round(float(v), 6)) for v in x[:500]]
+             + ["1.", ".5", "+3", "-0", "1E-3", "007", "", "1e400"] + odd)
+    series = pd.Series(cells, dtype=str)
+    value, given = batch._parse_numbers(batch._strip(series))
+    expected = pd.to_numeric(series.str.strip(), errors="coerce").to_numpy(dtype=float)
+    assert np.array_equal(value, expected, equal_nan=True)
+    assert np.array_equal(given, series.str.strip().to_numpy(dtype=object) != "")
+
+
+def _duration_by_hand(seconds: float) -> str:
+    """Largest fitting unit (Julian year of 365.25 days), Python's "{:.3g}" formatting."""
+    if not np.isfinite(seconds):
+        return "never"
+    for unit, scale in (("years", 365.25 * 86400), ("days", 86400), ("h", 3600), ("min", 60)):
+        if seconds >= scale:
+            return f"{seconds / scale:.3g} {unit}"
+    return f"{seconds:.3g} s"
+
+
+def test_duration_text_vectorised_equals_hand_formatting():
+    # Each cell of the array form as the unit chosen one value at a time and formatted by
+    # Python's str.format (common practice, no source).
+    seconds = np.concatenate([10.0 ** np.random.default_rng(2).uniform(-6, 13, 2000),
+                              [59.999, 60.0, 3600.0, 86400.0, 365.25 * 86400.0, np.inf]])
+    texts = batch.duration_text(seconds)
+    assert list(texts) == [_duration_by_hand(float(v)) for v in seconds]
+    assert batch.duration_text(9000.0) == "2.5 h" and texts[-1] == "never"
+    assert batch.duration_text(59.999) == "60 s" and batch.duration_text(60.0) == "1 min"
+
+
 def test_bad_rows_reported_and_good_rows_kept(error_result):
     summary, frame, out = error_result
     assert summary.rows == 11 and summary.ok == 3 and summary.errors == 8
