@@ -1,6 +1,6 @@
 """Loadline's core: viscosity of suspensions and emulsions from what is known before the trial.
 
-The names below are the stable public API (design.md); everything else is reached through
+The names below are the stable public API; everything else is reached through
 its module (``predictor.shear``, ``predictor.design``, ...). Both are loaded on first use
 (module `__getattr__`, PEP 562), so ``import predictor`` costs almost nothing and a command
 pays only for what it uses. The registry loads every model module the first time it is

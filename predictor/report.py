@@ -32,8 +32,8 @@ from .errors import LoadlineError
 from .registry import get_model, models
 from .units import from_si
 
-#: Typical shear rates of process steps [1/s] (common practice, no checked source; the
-#: list of shared/references.md). Used when `formulation` offers no process_viscosities.
+#: Typical shear rates of process steps [1/s] (common practice, no checked source).
+#: Used when `formulation` offers no process_viscosities.
 PROCESS_STEPS = (
     ("storage, sedimentation", 1e-6, 1e-3), ("levelling", 1e-2, 1e-1),
     ("sagging", 1e-1, 1e1), ("pouring, dip coating", 1e1, 1e2),

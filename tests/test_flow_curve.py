@@ -1,6 +1,6 @@
 """Formulation flow curve: wiring to `shear.flow_curve`, the liquid law, process windows.
 
-Checks at this layer are about wiring (style.md bullet 21): the right inputs reach the solver
+Checks at this layer are about wiring: the right inputs reach the solver
 in SI, and results agree with the function layer or with closed forms (Krieger-Dougherty in a
 Newtonian liquid; Chateau, Ovarlez & Trung for a Herschel-Bulkley liquid, from memory;
 Andrade's Arrhenius factor). The numbers themselves are checked in test_shear.py.

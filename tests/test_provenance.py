@@ -48,8 +48,8 @@ def test_readme_states_the_count():
 
 
 def test_restated_values_no_longer_say_from_memory():
-    # Values listed as restated in readable secondary sources (../shared/references.md,
-    # "Checked against readable restatements") must say so, not "from memory".
+    # Values listed as restated in readable secondary sources (open code
+    # or notes citing the paper) must say so, not "from memory".
     import predictor.emulsion as emulsion
     import predictor.packing as packing
     import predictor.stability as stability

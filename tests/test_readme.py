@@ -1,4 +1,4 @@
-"""The README's relation table is the registry's own (style.md bullet 14)."""
+"""The README's relation table is the registry's own."""
 
 import pathlib
 

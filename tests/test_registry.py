@@ -1,4 +1,4 @@
-"""Meta-tests that keep the registry honest and the layers apart (style.md bullets 3, 15)."""
+"""Meta-tests that keep the registry honest and the layers apart."""
 
 import ast
 import inspect
@@ -100,7 +100,7 @@ def test_unknown_model_lists_valid_names():
 
 
 def test_design_model_names_are_registered():
-    # Names fixed by design.md for the public API.
+    # Names of the stable public API.
     for name in ["einstein", "batchelor", "krieger-dougherty", "quemada", "maron-pierce",
                  "eilers", "mooney", "chong", "thomas", "frankel-acrivos"]:
         assert get_model(name).kind == "suspension"

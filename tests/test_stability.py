@@ -29,7 +29,7 @@ def test_droplets_lighter_than_the_liquid_cream():
 
 
 def test_richardson_zaki_stokes_exponent():
-    # Richardson & Zaki (1954): n = 4.65 in the Stokes regime (references.md, seen).
+    # Richardson & Zaki (1954): n = 4.65 in the Stokes regime (seen in the source).
     assert stability.RICHARDSON_ZAKI_STOKES == 4.65
     assert stability.richardson_zaki_exponent(0.01) == 4.65
     assert stability.richardson_zaki(0.0) == 1.0

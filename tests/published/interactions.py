@@ -11,7 +11,7 @@ CASES = [
          "0.304e-9",
          "Israelachvili, Intermolecular and Surface Forces, 3rd ed., 2011, Ch. 14: "
          "1/kappa = 0.304 nm / sqrt(I) for 1:1 electrolytes in water at 25 C",
-         note="from memory (the issue and references.md quote the same value)"),
+         note="from memory"),
     Case("interactions.debye_length",
          {"ionic_strength_mol_per_L": 0.01, "temperature_K": 298.15,
           "relative_permittivity": 78.3},
@@ -34,7 +34,7 @@ CASES = [
          "Hogg, Healy & Fuerstenau, Trans. Faraday Soc. 62, 1638, 1966: equal spheres, "
          "V = 2 pi eps eps0 a psi^2 ln(1 + exp(-kappa h))",
          note="hand calculation at contact: 2 pi 78.3 8.8541878e-12 0.5e-6 0.03^2 ln 2; "
-              "formula from memory (references.md)"),
+              "formula from memory"),
     Case("interactions.wiese_healy",
          {"separation_m": 9.6e-9, "radius_m": 0.5e-6, "surface_potential_V": 0.03,
           "debye_length_m": 9.6e-9, "relative_permittivity": 78.3},

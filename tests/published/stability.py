@@ -11,7 +11,7 @@ CASES = [
          note="hand calculation: 1650 * 9.81 * 1e-10 / 0.018"),
     Case("stability.richardson_zaki_exponent", {"reynolds": 0.05}, "4.65",
          "Richardson & Zaki, Trans. Inst. Chem. Eng. 32, 35, 1954: Stokes-regime exponent",
-         note="seen (references.md)"),
+         note="seen in the source"),
     Case("stability.richardson_zaki", {"phi": 0.2, "exponent": 4.65}, "0.354298",
          "Richardson & Zaki 1954: v/v0 = (1 - phi)^n",
          note="hand calculation: 0.8^4.65 = exp(4.65 ln 0.8)"),
