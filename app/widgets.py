@@ -175,6 +175,27 @@ def read_upload(upload, suffixes: tuple[str, ...], max_bytes: int = state.MAX_UP
         raise predictor.ScenarioError(f"{name} is not UTF-8 text.") from None
 
 
+SECTION_PREFIX = "sb_open_"     # session-state key of a sidebar section's open state
+
+
+def section(label: str, name: str, icon: str):
+    """A sidebar expander whose fields are drawn only while it is open.
+
+    Streamlit reads the whole session state for each widget it draws, so every field drawn
+    costs time on every run; a closed section draws none (its values are kept by
+    `state.keep_widget_values`). Opening or closing it reruns the app. The open state is
+    remembered apart from the widget (key ``"_" + key``), so a label that changes (an
+    ingredient's title shows its loading) keeps the section open.
+    """
+    key = SECTION_PREFIX + name
+    return st.expander(label, expanded=bool(st.session_state.get("_" + key, False)), key=key,
+                       icon=icon, on_change=_remember_open, args=(key,))
+
+
+def _remember_open(key: str) -> None:
+    st.session_state["_" + key] = bool(st.session_state[key])
+
+
 def scenario_box() -> None:
     """Open (file or demo) and save the whole scenario."""
     st.subheader("Scenario", anchor=False, divider="gray")
@@ -187,7 +208,10 @@ def scenario_box() -> None:
         st.error(message, icon=":material/error:")
     if st.session_state.get("scenario_warning"):
         st.warning(st.session_state["scenario_warning"], icon=":material/warning:")
-    with st.expander("Open, save, demos", icon=":material/folder_open:"):
+    files = section("Open, save, demos", "files", ":material/folder_open:")
+    if not files.open:
+        return
+    with files:
         st.file_uploader("Open a saved scenario (*.loadline.json)", type=["json"],
                          key="open_file", on_change=_open_uploaded,
                          max_upload_size=state.MAX_UPLOAD_BYTES // 1_000_000)
@@ -228,7 +252,10 @@ def _unit_changed(unit_key: str) -> None:
 
 
 def units_box() -> None:
-    with st.expander("Units", icon=":material/straighten:"):
+    box = section("Units", "units", ":material/straighten:")
+    if not box.open:
+        return
+    with box:
         names = {"unit_viscosity": "Viscosity", "unit_size": "Particle and droplet size",
                  "unit_layer": "Adsorbed layer", "unit_temperature": "Temperature",
                  "unit_density": "Density", "unit_tension": "Interfacial tension",
@@ -253,7 +280,10 @@ def _law_param_changed(name: str, unit: str, dimension: str | None) -> None:
 
 def liquid_box() -> None:
     ss = st.session_state
-    with st.expander(f"Liquid: {ss['liq_name'] or 'unnamed'}", icon=":material/water_drop:"):
+    box = section(f"Liquid: {ss['liq_name'] or 'unnamed'}", "liquid", ":material/water_drop:")
+    if not box.open:
+        return
+    with box:
         st.text_input("Name", key="liq_name")
         st.selectbox("Liquid", list(LIQUID_PRESETS), key="liq_preset",
                      format_func=LIQUID_PRESETS.get)
@@ -343,8 +373,11 @@ def ingredient_box(i: int) -> None:
     kind = ss[k("kind")]
     title = (f"{i + 1} · {ss[k('name')]} — {ss[k('loading')]:g} "
              f"{state.BASIS_LABELS.get(ss[k('basis')], '')}")
-    with st.expander(title, icon=":material/grain:" if kind == "solid"
-                     else ":material/bubble_chart:"):
+    box = section(title, f"ing{i}", ":material/grain:" if kind == "solid"
+                  else ":material/bubble_chart:")
+    if not box.open:
+        return
+    with box:
         st.text_input("Name", key=k("name"))
         st.radio("Kind", state.KINDS, key=k("kind"), format_func=KIND_LABELS.get,
                  horizontal=True)

@@ -171,7 +171,9 @@ def body() -> None:
                                 export=functools.partial(build, joined=True))
         else:
             build = functools.partial(charts.design_map, grid, unit, ss["presentation"])
-            widgets.chart_block(build(), _table(grid, unit), "design-map", "map",
+            # Frames, not records: Streamlit sends them as Arrow directly (the export, PNG
+            # and SVG, is built as plain JSON).
+            widgets.chart_block(build(frames=True), _table(grid, unit), "design-map", "map",
                                 export=functools.partial(build, joined=True),
                                 on_select=_load_cell)
             st.caption("Hover a cell for its values; click a cell to load that recipe into "

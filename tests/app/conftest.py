@@ -8,7 +8,7 @@ import pathlib
 import pytest
 from streamlit.testing.v1 import AppTest
 
-from app import state
+from app import state, widgets
 from predictor import scenario as sc
 
 REPO = pathlib.Path(__file__).resolve().parents[2]
@@ -80,3 +80,12 @@ def pytest_runtest_makereport(item, call):
     report = yield
     setattr(item, f"rep_{report.when}", report)
     return report
+
+
+def open_sections(at: AppTest, n_ing: int = 4) -> AppTest:
+    """Open every sidebar section (they draw their fields only while open)."""
+    names = ["files", "units", "liquid"] + [f"ing{i}" for i in range(n_ing)]
+    for name in names:
+        at.session_state[widgets.SECTION_PREFIX + name] = True
+        at.session_state["_" + widgets.SECTION_PREFIX + name] = True
+    return at

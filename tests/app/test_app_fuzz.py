@@ -22,8 +22,8 @@ import pytest
 from streamlit import config
 from streamlit.testing.v1 import AppTest
 
-from app import state
-from tests.app.conftest import DEMOS, REPO, TIMEOUT, demo, seed_values
+from app import state, widgets
+from tests.app.conftest import DEMOS, REPO, TIMEOUT, demo, open_sections, seed_values
 from tests.conftest import FUZZ_CASES
 
 STEPS = max(1, int(os.environ.get("LOADLINE_APP_FUZZ_STEPS", "40")))
@@ -177,6 +177,13 @@ def _step(rng: np.random.Generator, at: AppTest) -> str:
         view = str(rng.choice(PAGES))
         at.switch_page(f"views/{view}.py").run()
         return f"page {view}"
+    if rng.random() < 0.1:       # open or close a sidebar section, as a click on it does
+        name = str(rng.choice(["files", "units", "liquid", "ing0", "ing1", "ing2"]))
+        key = widgets.SECTION_PREFIX + name
+        opened = not at.session_state[key] if key in at.session_state else True
+        at.session_state[key] = at.session_state["_" + key] = opened
+        at.run()
+        return f"section {name} {'opened' if opened else 'closed'}"
     kind, widget = _widgets(at)[int(rng.integers(len(_widgets(at))))]
     key = widget.key
     if kind == "number_input":
@@ -246,7 +253,8 @@ def test_random_walk_shows_no_exception(seed, scenario, monkeypatch, full_errors
     monkeypatch.setenv(state.SCENARIO_ENV, f"data_demo/{scenario}.loadline.json")
     seed += BASE_SEED
     rng = np.random.default_rng(seed)
-    at = AppTest.from_file(str(REPO / "app" / "main.py"), default_timeout=TIMEOUT).run()
+    at = open_sections(AppTest.from_file(str(REPO / "app" / "main.py"),
+                                         default_timeout=TIMEOUT)).run()
     assert not _problems(at), _problems(at)
     assert at.session_state["sc_source"] == f"{scenario}.loadline.json"
     done = []

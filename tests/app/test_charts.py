@@ -178,3 +178,24 @@ def test_energy_curve_axes_rule_and_export():
     assert domain[1] > curve.total_kT.max() and domain[0] > curve.van_der_waals_kT.min()
     _valid(chart)
     assert charts.to_png(chart)[:8] == b"\x89PNG\r\n\x1a\n"
+
+
+@pytest.mark.parametrize("columns", [None, ["a", "b", "c", "e", "f", "g", "h"]])
+def test_chart_records_are_pandas_records_with_null_for_missing(columns):
+    """The fast column-wise `_records` gives pandas' own records (reference library:
+    pandas `DataFrame.to_dict("records")` after NaN/inf -> None), value and Python type."""
+    frame = pd.DataFrame({
+        "a": [1.0, np.inf, np.nan, -np.inf], "h": np.array([0.5, 1.0, 2.0, 3.0], "float32"),
+        "b": pd.array([True, None, False, True], dtype="boolean"),
+        "c": pd.Categorical(["x", "y", None, "x"]),
+        "d": pd.to_datetime(["2020-01-01", None, "2020-01-02", "2020-01-03"]),
+        "e": [1, 2, 3, 4], "f": pd.array([1.5, None, 2.0, 3.0], dtype="Float64"),
+        "g": pd.array(["s", None, "u", "t"], dtype="string")})
+    frame = frame if columns is None else frame[columns]
+    clean = frame.replace([np.inf, -np.inf], np.nan)
+    expected = clean.astype(object).where(clean.notna(), None).to_dict("records")
+    got = charts._records(frame)
+    assert got == expected
+    assert [type(v) for row in got for v in row.values()] == \
+        [type(v) for row in expected for v in row.values()]
+    assert got[1]["a"] is None and got[2]["a"] is None and got[0]["a"] == 1.0

@@ -4,10 +4,11 @@ from __future__ import annotations
 
 import json
 
+import pandas as pd
 import pytest
 
 from app import state
-from predictor import design
+from predictor import charts, design
 from predictor import formulation as fm
 from predictor import scenario as sc
 from tests.app.conftest import chart_specs, demo, messages, metric, page, seed_values
@@ -141,3 +142,18 @@ def test_map_and_triangle_charts_are_valid_vega_lite_and_export(big):
         assert label in text
     assert charts.to_png(charts.design_map(grid, "mPa*s", big, joined=True))[:4] == b"\x89PNG"
     assert "<svg" in charts.to_svg(charts.design_triangle(tri, "Pa*s", big, joined=True))
+
+
+def test_map_chart_with_frames_is_the_same_chart_as_the_plain_one():
+    """The page's spec (datasets left as DataFrames for Streamlit) carries the same rows
+    as the plain-JSON spec of the exports, and the same everything else."""
+    grid = design.loading_map(demo(), 0, 1, (0.30, 0.60), (0.0, 0.15), 50.0, n=9,
+                              windows=[("pump", 100.0, 5.0, None)])
+    plain = charts.design_map(grid, "mPa*s")
+    framed = charts.design_map(grid, "mPa*s", frames=True)
+    assert {k: v for k, v in plain.items() if k != "datasets"} == \
+        {k: v for k, v in framed.items() if k != "datasets"}
+    assert plain["datasets"].keys() == framed["datasets"].keys()
+    for name, frame in framed["datasets"].items():
+        assert isinstance(frame, pd.DataFrame)
+        assert charts._records(frame) == plain["datasets"][name]

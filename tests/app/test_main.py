@@ -11,7 +11,7 @@ from app import state, widgets
 from predictor import formulation as fm
 from predictor import scenario as sc
 from predictor.units import from_si
-from tests.app.conftest import DEMOS, REPO, TIMEOUT, demo, messages, metric
+from tests.app.conftest import DEMOS, REPO, TIMEOUT, demo, messages, metric, open_sections
 
 PAGES = ["loading_sweep", "flow_curve", "sizes_packing", "droplets", "calibrate",
          "design_map", "batch_screen", "process_checks",
@@ -19,7 +19,9 @@ PAGES = ["loading_sweep", "flow_curve", "sizes_packing", "droplets", "calibrate"
 
 
 def _app() -> AppTest:
-    return AppTest.from_file(str(REPO / "app" / "main.py"), default_timeout=TIMEOUT)
+    """The whole app with every sidebar section open (so its fields are on screen)."""
+    return open_sections(AppTest.from_file(str(REPO / "app" / "main.py"),
+                                           default_timeout=TIMEOUT))
 
 
 def _viscosity_mPa_s(form) -> float:
@@ -193,3 +195,21 @@ def test_unknown_keys_of_an_upload_reach_the_user():
     assert not at.exception
     shown = " ".join(w.value for w in at.warning)
     assert "colour" in shown and "relations.parameters.phi_maxx" in shown
+
+
+def test_closed_sidebar_sections_draw_no_fields_and_open_ones_stay_open():
+    """A closed section draws none of its fields (fewer widgets per run) and its values
+    still reach the page; an open ingredient stays open when its title (the loading)
+    changes."""
+    at = AppTest.from_file(str(REPO / "app" / "main.py"), default_timeout=TIMEOUT).run()
+    keys = {w.key for w in at.number_input}
+    assert "liq_temperature" not in keys and "ing0_loading" not in keys
+    assert len(at.sidebar.expander) >= 4
+    key = widgets.SECTION_PREFIX + "ing0"
+    at.session_state[key] = at.session_state["_" + key] = True
+    at.run()
+    assert "ing0_loading" in {w.key for w in at.number_input}
+    at.number_input(key="ing0_loading").set_value(12.0).run()
+    assert not at.exception
+    assert at.number_input(key="ing0_loading").value == 12.0
+    assert "liq_temperature" not in {w.key for w in at.number_input}

@@ -96,13 +96,21 @@ def _set_state(key):
     return lambda at, v: at.session_state.__setitem__(key, v)
 
 
+def _open(name: str) -> dict:
+    """Seed: the sidebar section holding the changed field is open, as it is for the user
+    who types into it (closed sections draw no fields)."""
+    key = "sb_open_" + name          # app.widgets.SECTION_PREFIX
+    return {key: True, "_" + key: True}
+
+
 CASES = [  # (name, scope, view, scenario, change, values factory, seed)
     ("Loading sweep: change a loading (sidebar)", "app", "loading_sweep", "mineral_coating",
-     _set_state("ing0_loading"), lambda: _numbers(30.0, 0.7), {}),
+     _set_state("ing0_loading"), lambda: _numbers(30.0, 0.7), _open("ing0")),
     ("Flow curve: change the liquid temperature (sidebar)", "app", "flow_curve",
-     "mineral_coating", _set_state("liq_temperature"), lambda: _numbers(20.0, 0.9), {}),
+     "mineral_coating", _set_state("liq_temperature"), lambda: _numbers(20.0, 0.9),
+     _open("liquid")),
     ("Droplets: change the droplet loading (sidebar)", "app", "droplets", "hand_cream",
-     _set_state("ing0_loading"), lambda: _numbers(20.0, 0.7), {}),
+     _set_state("ing0_loading"), lambda: _numbers(20.0, 0.7), _open("ing0")),
     ("Loading sweep: move phi_max", "page", "loading_sweep", "ceramic_slip",
      lambda at, v: at.slider(key="param_phi_max").set_value(v), lambda: _numbers(0.60, 0.005),
      {"auto_phi_max": False}),
