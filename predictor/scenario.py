@@ -135,8 +135,8 @@ _KNOWN_KEYS = {
                *_LIQUID_QUANTITIES, *_LIQUID_NUMBERS},
     "ingredient": {"name", "kind", "loading", "size_distribution", *_INGREDIENT_QUANTITIES,
                    *_INGREDIENT_NUMBERS, *_INGREDIENT_FLAGS},
-    "relations": {"solids", "droplets", "parameters", "thickening_onset_stress",
-                  "phi_max_frictional"},
+    "relations": {"solids", "droplets", "parameters", "droplet_parameters",
+                  "thickening_onset_stress", "phi_max_frictional"},
 }
 
 
@@ -301,6 +301,18 @@ def _unknown_parameters(doc: dict) -> list[str]:
         if known is not None:
             found += [f"relations.parameters.{k}" for k in relations["parameters"]
                       if k not in known]
+    if isinstance(relations, dict) and isinstance(relations.get("droplet_parameters"), dict):
+        from .errors import UnknownModelError
+        from .registry import get_model
+
+        try:
+            known = set(get_model(str(relations.get("droplets", "phan-thien-pham")),
+                                  kind="emulsion").param_names())
+        except UnknownModelError:
+            known = None
+        if known is not None:
+            found += [f"relations.droplet_parameters.{k}"
+                      for k in relations["droplet_parameters"] if k not in known]
     liquid = doc.get("liquid")
     if isinstance(liquid, dict) and isinstance(liquid.get("parameters"), dict):
         units = _law_units(str(liquid.get("law", "newtonian")))

@@ -141,3 +141,21 @@ def test_older_schema_versions_are_migrated(monkeypatch):
     original = read_scenario(DEMO[0]).ingredients[0]
     assert migrated.ingredients[0].aspect_ratio == original.aspect_ratio
     assert json.loads(dumps(migrated))["schema_version"] == 2
+
+
+def test_a_written_scenario_reads_back_without_unknown_key_warnings():
+    # Every key the writer emits (relations.droplet_parameters included) is one the reader
+    # knows; an unknown droplet-relation parameter is still named (common practice, no source).
+    import warnings
+
+    from predictor import scenario
+
+    assert DEMO
+    for path in DEMO:
+        doc = json.loads(dumps(read_scenario(path)))
+        with warnings.catch_warnings():
+            warnings.simplefilter("error")
+            scenario.scenario_from_dict(doc)
+        doc["relations"]["droplet_parameters"] = {"bogus": 1.0}
+        with pytest.warns(UserWarning, match=r"relations\.droplet_parameters\.bogus"):
+            scenario.scenario_from_dict(doc)

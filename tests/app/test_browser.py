@@ -268,10 +268,16 @@ def test_presentation_layout_and_demo_switch(page):
             page.keyboard.press("Escape")
     option.click()
     _settled(page)
-    sidebar.get_by_role("button", name="Open this demo").click()
-    _settled(page)
-    expect(page.get_by_test_id("stMain").get_by_text(demo("hand_cream").name)).to_be_visible(
-        timeout=WAIT_MS)
+    opened = page.get_by_test_id("stMain").get_by_text(demo("hand_cream").name)
+    for attempt in range(3):    # a click landing while a rerun redraws the button is lost
+        sidebar.get_by_role("button", name="Open this demo").click()
+        _settled(page)
+        try:
+            expect(opened).to_be_visible(timeout=WAIT_MS // 3)
+            break
+        except AssertionError:
+            if attempt == 2:
+                raise
     expect(sidebar.get_by_text(f"Liquid: {demo('hand_cream').liquid.name}")).to_be_visible(
         timeout=WAIT_MS)
     sidebar.get_by_text("Presentation layout (large type)").click()
