@@ -210,7 +210,8 @@ def test_reynolds_beyond_every_correlation_warns():
 def test_no_warning_in_range():
     with warnings.catch_warnings():
         warnings.simplefilter("error")
-        process.pipe_pressure_drop(1e-3, 0.05, 10.0, 1000.0, viscosity_Pa_s=1e-3)
+        flow = process.pipe_pressure_drop(1e-3, 0.05, 10.0, 1000.0, viscosity_Pa_s=1e-3)
+    assert flow.regime == "turbulent" and flow.pressure_drop_Pa > 0
 
 
 # --- stirred tanks ------------------------------------------------------------------------------

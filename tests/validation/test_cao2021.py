@@ -10,8 +10,10 @@ from tests.validation import common
 
 
 def test_import_fit_and_critical_fraction():
-    common.check_emulsion("Cao2021a", series=12, rms_max=0.10)
+    r = common.check_emulsion("Cao2021a", series=12, rms_max=0.10)
+    assert abs(r["phi_c"] - r["spec"].reported_phi_c) <= common.PHI_C_TOLERANCE
 
 
 def test_second_panel():
-    common.check_emulsion("Cao2021b", series=10, rms_max=0.10)
+    r = common.check_emulsion("Cao2021b", series=10, rms_max=0.10)
+    assert abs(r["phi_c"] - r["spec"].reported_phi_c) <= common.PHI_C_TOLERANCE

@@ -12,7 +12,8 @@ from tests.validation import common
 
 
 def test_import_fit_and_critical_fraction():
-    common.check_emulsion("Dekker2018", series=7, rms_max=0.10)
+    r = common.check_emulsion("Dekker2018", series=7, rms_max=0.10)
+    assert abs(r["phi_c"] - r["spec"].reported_phi_c) <= common.PHI_C_TOLERANCE
 
 
 def test_yield_stresses_match_the_curators_fits_within_ten_percent():

@@ -10,4 +10,5 @@ from tests.validation import common
 
 
 def test_import_fit_and_critical_fraction():
-    common.check_emulsion("Paredes2013", series=10, rms_max=0.10)
+    r = common.check_emulsion("Paredes2013", series=10, rms_max=0.10)
+    assert abs(r["phi_c"] - r["spec"].reported_phi_c) <= common.PHI_C_TOLERANCE
