@@ -238,27 +238,29 @@ def relation_names(kind: str) -> list[str]:
 
 
 @st.cache_data(**CACHE)
-def flow_curve(scenario: str, low_1_per_s: float, high_1_per_s: float, n: int = 121) -> dict:
-    """Flow curve over [low, high] (log grid), its markers (onsets...) and messages.
+def flow_curve(scenario: str, low_1_per_s: float, high_1_per_s: float,
+               point_1_per_s: float, n: int = 121) -> dict:
+    """Flow curve over [low, high] (log grid), its markers (onsets...), messages, and the
+    curve at the process rate `point_1_per_s` (one row as a dict).
 
-    Returns {"value": {"curve": DataFrame, "markers": {...}, "messages": [...]},
-    "warnings": [...]}.
+    A process rate inside the range is solved with the curve, in one call: each rate's
+    stress is solved on its own and the markers depend only on the range, so the point
+    equals a prediction at that rate alone (tests/app/test_flow_curve.py checks it).
+
+    Returns {"value": {"curve": DataFrame, "point": {...}, "markers": {...},
+    "messages": [...]}, "warnings": [...]}.
     """
     def run():
+        form = formulation(scenario)
         rates = np.logspace(np.log10(low_1_per_s), np.log10(high_1_per_s), n)
-        curve = fm.predict(formulation(scenario), rates)
+        inside = low_1_per_s <= point_1_per_s <= high_1_per_s
+        both = fm.predict(form, np.append(rates, point_1_per_s) if inside else rates)
+        curve = both.iloc[:n]
+        point = both.iloc[n] if inside else fm.predict(form, [point_1_per_s]).iloc[0]
         markers = {k: v for k, v in {**curve.attrs, **curve.attrs.get("markers", {})}.items()
                    if isinstance(v, int | float | np.floating) and not isinstance(v, bool)}
-        return {"curve": curve, "markers": markers,
+        return {"curve": curve, "point": point.to_dict(), "markers": markers,
                 "messages": list(curve.attrs.get("warnings", ()))}
-    return dict(zip(("value", "warnings"), _captured(run), strict=True))
-
-
-@st.cache_data(**CACHE)
-def flow_point(scenario: str, shear_rate_1_per_s: float) -> dict:
-    """The flow curve at one shear rate (the process rate): one row as a dict."""
-    def run():
-        return fm.predict(formulation(scenario), [shear_rate_1_per_s]).iloc[0].to_dict()
     return dict(zip(("value", "warnings"), _captured(run), strict=True))
 
 
@@ -271,12 +273,9 @@ def process_windows() -> list[tuple[str, float, float]]:
 
 @st.cache_data(**CACHE)
 def process_table(scenario: str) -> dict:
-    """Viscosity in each process window (predictor's process_viscosities), if available."""
+    """Viscosity in each process window (`formulation.process_viscosities`)."""
     def run():
-        func = getattr(fm, "process_viscosities", None)
-        if func is None:
-            return None
-        return func(formulation(scenario))
+        return fm.process_viscosities(formulation(scenario))
     return dict(zip(("value", "warnings"), _captured(run), strict=True))
 
 

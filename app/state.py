@@ -226,14 +226,16 @@ def init(ss: MutableMapping | None = None) -> None:
             ss["scenario_message"] = f"The opening scenario could not be read: {err}"
 
 
-def keep_widget_values(ss: MutableMapping | None = None) -> None:
-    """Re-assign every declared key so that page switches do not drop widget values.
+def keep_widget_values(ss: MutableMapping | None = None, keys=None) -> None:
+    """Re-assign every declared key (or just `keys`) so that page switches and closed
+    sections do not drop widget values.
 
     Streamlit removes the value of a widget that is not drawn in a run; writing the value
-    back before any widget is drawn keeps it (call once, at the top of app/main.py).
+    back keeps it (called at the top of app/main.py, and by a page for the fields of a
+    closed section, since a page body reruns alone).
     """
     ss = _session(ss)
-    for key in all_keys(ss):
+    for key in all_keys(ss) if keys is None else keys:
         if key in ss:
             ss[key] = ss[key]
 

@@ -175,11 +175,11 @@ def read_upload(upload, suffixes: tuple[str, ...], max_bytes: int = state.MAX_UP
         raise predictor.ScenarioError(f"{name} is not UTF-8 text.") from None
 
 
-SECTION_PREFIX = "sb_open_"     # session-state key of a sidebar section's open state
+SECTION_PREFIX = "sb_open_"     # session-state key of a section's open state
 
 
 def section(label: str, name: str, icon: str):
-    """A sidebar expander whose fields are drawn only while it is open.
+    """An expander (on the sidebar or a page) whose fields are drawn only while it is open.
 
     Streamlit reads the whole session state for each widget it draws, so every field drawn
     costs time on every run; a closed section draws none (its values are kept by

@@ -9,6 +9,7 @@ layout: larger type and taller charts for a projector.
 
 from __future__ import annotations
 
+import functools
 import json
 import math
 
@@ -68,9 +69,13 @@ class Figure:
         self.frames: dict[str, pd.DataFrame] = {}
 
     def chart(self, frame: pd.DataFrame) -> alt.Chart:
+        return alt.Chart(alt.NamedData(self.data(frame)["name"]))
+
+    def data(self, frame: pd.DataFrame) -> dict:
+        """A view's ``data`` reading `frame` (for views written as plain Vega-Lite)."""
         name = f"frame_{len(self.frames)}"
         self.frames[name] = frame
-        return alt.Chart(alt.NamedData(name))
+        return {"name": name}
 
     @staticmethod
     def part(chart) -> dict:
@@ -94,10 +99,25 @@ class Figure:
         return spec
 
     def spec(self, chart, big: bool = False) -> dict:
+        """The chart as a top-level spec, carrying only the datasets its views name (the
+        panels of one figure share the figure's frames; each is sent on its own)."""
         spec = {"$schema": alt.SCHEMA_URL, **self.part(chart)}
         spec["config"] = config(big)
-        spec["datasets"] = dict(self.frames)
+        used = _data_names(spec)
+        spec["datasets"] = {name: frame for name, frame in self.frames.items() if name in used}
         return spec
+
+
+def _data_names(spec) -> set[str]:
+    """Names of the datasets a spec's views read (``"data": {"name": ...}``), at any depth."""
+    if isinstance(spec, list):
+        return set().union(*(_data_names(part) for part in spec))
+    if not isinstance(spec, dict):
+        return set()
+    names = {spec["data"]["name"]} if isinstance(spec.get("data"), dict) and \
+        "name" in spec["data"] else set()
+    return names.union(*(_data_names(value) for key, value in spec.items()
+                         if key in ("layer", "vconcat", "hconcat", "concat", "spec")))
 
 
 def _palette(names: list[str]) -> alt.Scale:
@@ -344,46 +364,56 @@ def flow_curve(curve: pd.DataFrame, *, windows: pd.DataFrame, x_title: str, y_ti
     `markers`: rate, label (vertical rules, e.g. onsets). `point`: rate, viscosity, stress.
     Returns the styled panels (drawn one under the other), or with `joined` one chart of
     fixed width (for PNG/SVG export).
+
+    Written as plain Vega-Lite, not through Altair: the Flow curve page rebuilds it on
+    every change, and Altair's objects cost more than the prediction behind it.
     """
     fig = Figure()
     if joined and width == "container":
         width = EXPORT_WIDTH
     lo = float(curve["rate"].min())
     hi = float(curve["rate"].max())
-    x_scale = alt.Scale(type="log", domain=[lo, hi], nice=False)
-    x_axis = alt.Axis(values=decades(lo, hi), format="~g")
+    x_scale = {"type": "log", "domain": [lo, hi], "nice": False}
+    x_axis = {"values": decades(lo, hi), "format": "~g"}
     shown = windows[(windows["high"] > lo) & (windows["low"] < hi)].copy()
     shown["low_c"] = shown["low"].clip(lower=lo)
     shown["high_c"] = shown["high"].clip(upper=hi)
     shown["chosen"] = shown["name"] == selected
     row = 28 if big else 21
-    strip_y = alt.Y("name:N", sort=list(shown["name"]), title=None,
-                    axis=alt.Axis(labels=False, ticks=False, domain=False, minExtent=AXIS_EXTENT,
-                                  maxExtent=AXIS_EXTENT),
-                    scale=alt.Scale(paddingInner=0.1))
-    colour = alt.Color("chosen:N", legend=None,
-                       scale=alt.Scale(domain=[True, False], range=[VERMILLION, SKY]))
+    strip_y = {"field": "name", "type": "nominal", "sort": list(shown["name"]), "title": None,
+               "axis": {"labels": False, "ticks": False, "domain": False,
+                        "minExtent": AXIS_EXTENT, "maxExtent": AXIS_EXTENT},
+               "scale": {"paddingInner": 0.1}}
+
+    def chosen(colours):
+        return {"field": "chosen", "type": "nominal", "legend": None,
+                "scale": {"domain": [True, False], "range": colours}}
     # Each name beside its bar, on the side with room: right of bars in the lower half of
     # the (log) axis, left of bars in the upper half; never on top of another row's bar.
     middle = math.sqrt(lo * hi)
     shown["right"] = np.sqrt(shown["low_c"] * shown["high_c"]) < middle
-    label_colour = alt.Color("chosen:N", legend=None, scale=alt.Scale(
-        domain=[True, False], range=[VERMILLION, "#333333"]))
-    labels = [fig.chart(shown[shown["right"] == right]).mark_text(
-        align="left" if right else "right", baseline="middle", dx=5 if right else -5
-    ).encode(x=alt.X(f"{'high_c' if right else 'low_c'}:Q", scale=x_scale,
-                                  axis=None), y=strip_y, text=alt.Text("name:N"),
-                          color=label_colour)
-        for right in (True, False) if (shown["right"] == right).any()]
-    strip = fig.layer(
-        fig.chart(shown).mark_bar(height=7 if not big else 9, cornerRadius=2).encode(
-            x=alt.X("low_c:Q", scale=x_scale, axis=None), x2=alt.X2("high_c:Q"), y=strip_y,
-            color=colour, tooltip=[alt.Tooltip("name:N", title="process"),
-                                   alt.Tooltip("low:Q", format="~g", title="from"),
-                                   alt.Tooltip("high:Q", format="~g", title="to")]),
-        *labels, resolve={"scale": {"color": "independent"}},
-        height=row * max(len(shown), 1), width=width,
-        title=f"Typical process shear rates [{x_title.split('[')[-1].rstrip(']')}]")
+    labels = [{"data": fig.data(shown[shown["right"] == right]),
+               "mark": {"type": "text", "align": "left" if right else "right",
+                        "baseline": "middle", "dx": 5 if right else -5},
+               "encoding": {"x": {"field": "high_c" if right else "low_c",
+                                  "type": "quantitative", "scale": x_scale, "axis": None},
+                            "y": strip_y, "text": {"field": "name", "type": "nominal"},
+                            "color": chosen([VERMILLION, "#333333"])}}
+              for right in (True, False) if (shown["right"] == right).any()]
+    bars = {"data": fig.data(shown),
+            "mark": {"type": "bar", "height": 7 if not big else 9, "cornerRadius": 2},
+            "encoding": {"x": {"field": "low_c", "type": "quantitative", "scale": x_scale,
+                               "axis": None},
+                         "x2": {"field": "high_c"}, "y": strip_y,
+                         "color": chosen([VERMILLION, SKY]),
+                         "tooltip": [{"field": "name", "type": "nominal", "title": "process"},
+                                     {"field": "low", "type": "quantitative", "format": "~g",
+                                      "title": "from"},
+                                     {"field": "high", "type": "quantitative", "format": "~g",
+                                      "title": "to"}]}}
+    strip = fig.layer(bars, *labels, resolve={"scale": {"color": "independent"}},
+                      height=row * max(len(shown), 1), width=width,
+                      title=f"Typical process shear rates [{x_title.split('[')[-1].rstrip(']')}]")
 
     panel_height = _height(big, 280)
 
@@ -391,48 +421,54 @@ def flow_curve(curve: pd.DataFrame, *, windows: pd.DataFrame, x_title: str, y_ti
         data = curve[(curve[field] > 0) & (curve[field] < float("inf"))]
         vlo = float(data[field].min()) if len(data) else 1e-3
         vhi = float(data[field].max()) if len(data) else 1.0
-        y_scale = alt.Scale(type="log", domain=decade_domain(vlo, vhi), nice=False)
-        y_enc = alt.Y(f"{field}:Q", scale=y_scale, title=title,
-                      axis=alt.Axis(values=decades(vlo, vhi), format=",~g",
-                                    minExtent=AXIS_EXTENT, maxExtent=AXIS_EXTENT))
-        x_enc = alt.X("rate:Q", scale=x_scale, title=x_title, axis=x_axis)
+        y_enc = {"field": field, "type": "quantitative", "title": title,
+                 "scale": {"type": "log", "domain": decade_domain(vlo, vhi), "nice": False},
+                 "axis": {"values": decades(vlo, vhi), "format": ",~g",
+                          "minExtent": AXIS_EXTENT, "maxExtent": AXIS_EXTENT}}
+        x_enc = {"field": "rate", "type": "quantitative", "scale": x_scale, "title": x_title,
+                 "axis": x_axis}
         layers = []
         if selected is not None and bool(shown["chosen"].any()):
-            layers.append(fig.chart(shown[shown["chosen"]]).mark_rect(
-                color=VERMILLION, opacity=0.10).encode(
-                x=alt.X("low_c:Q", scale=x_scale, title=x_title, axis=x_axis),
-                x2=alt.X2("high_c:Q")))
-        base = fig.chart(data).encode(x=x_enc)
-        layers.append(base.mark_line(color=BLUE, strokeWidth=3 if big else 2.4).encode(
-            y=y_enc, tooltip=[alt.Tooltip("rate:Q", format=".3g", title=x_title),
-                              alt.Tooltip(f"{field}:Q", format=".4g", title=title)]))
+            layers.append({"data": fig.data(shown[shown["chosen"]]),
+                           "mark": {"type": "rect", "color": VERMILLION, "opacity": 0.10},
+                           "encoding": {"x": {**x_enc, "field": "low_c"},
+                                        "x2": {"field": "high_c"}}})
+        layers.append({"data": fig.data(data),
+                       "mark": {"type": "line", "color": BLUE,
+                                "strokeWidth": 3 if big else 2.4},
+                       "encoding": {"x": x_enc, "y": y_enc, "tooltip": [
+                           {"field": "rate", "type": "quantitative", "format": ".3g",
+                            "title": x_title},
+                           {"field": field, "type": "quantitative", "format": ".4g",
+                            "title": title}]}})
         if with_regime and "regime" in data and len(data):
             regimes = list(dict.fromkeys(data["regime"]))
-            # One rectangle per run of equal regimes (no hairline gaps between points).
-            edges = data.assign(rate_next=data["rate"].shift(-1).fillna(data["rate"].iloc[-1]))
-            run = (edges["regime"] != edges["regime"].shift()).cumsum()
-            bands = edges.groupby(run, sort=False).agg(
-                rate=("rate", "first"), rate_next=("rate_next", "last"),
-                regime=("regime", "first"))
-            # No stroke channel on the same field: Vega-Lite merges the two legends, and a
-            # stroke without a legend would hide the colour legend too.
-            layers.append(fig.chart(bands).mark_rect(y=panel_height - 9, y2=panel_height)
-                          .encode(x=x_enc, x2=alt.X2("rate_next:Q"),
-                                  color=alt.Color("regime:N", title="Regime (strip along the "
-                                                  "shear-rate axis)", scale=alt.Scale(
-                                      domain=regimes, range=[REGIME_COLOURS.get(r, GREY)
-                                                             for r in regimes])),
-                                  tooltip=[alt.Tooltip("regime:N", title="regime")]))
+            layers.append({"data": fig.data(_regime_runs(data)),
+                           "mark": {"type": "rect", "y": panel_height - 9, "y2": panel_height},
+                           # No stroke channel on the same field: Vega-Lite merges the two
+                           # legends, and a stroke without a legend hides the colour legend.
+                           "encoding": {"x": x_enc, "x2": {"field": "rate_next"}, "color": {
+                               "field": "regime", "type": "nominal",
+                               "title": "Regime (strip along the shear-rate axis)",
+                               "scale": {"domain": regimes,
+                                         "range": [REGIME_COLOURS.get(r, GREY)
+                                                   for r in regimes]}},
+                               "tooltip": [{"field": "regime", "type": "nominal",
+                                            "title": "regime"}]}})
         if markers is not None and len(markers):
-            layers.append(fig.chart(markers).mark_rule(color=BLACK, strokeDash=[6, 3]).encode(
-                x=x_enc))
-            layers.append(fig.chart(markers).mark_text(
-                align="left", dx=4, y=10, color=BLACK, fontWeight="bold").encode(
-                x=x_enc, text=alt.Text("label:N")))
+            layers.append({"data": fig.data(markers),
+                           "mark": {"type": "rule", "color": BLACK, "strokeDash": [6, 3]},
+                           "encoding": {"x": x_enc}})
+            layers.append({"data": fig.data(markers),
+                           "mark": {"type": "text", "align": "left", "dx": 4, "y": 10,
+                                    "color": BLACK, "fontWeight": "bold"},
+                           "encoding": {"x": x_enc, "text": {"field": "label",
+                                                             "type": "nominal"}}})
         if point is not None and point.get(field, 0) > 0:
-            layers.append(fig.chart(pd.DataFrame([point])).mark_point(
-                shape="diamond", filled=True, color=BLACK, size=260 if big else 170).encode(
-                x=x_enc, y=y_enc))
+            layers.append({"data": fig.data(pd.DataFrame([point])),
+                           "mark": {"type": "point", "shape": "diamond", "filled": True,
+                                    "color": BLACK, "size": 260 if big else 170},
+                           "encoding": {"x": x_enc, "y": y_enc}})
         return fig.layer(*layers, height=panel_height, width=width)
 
     panels = [strip, panel("viscosity", y_title, True)]
@@ -443,6 +479,18 @@ def flow_curve(curve: pd.DataFrame, *, windows: pd.DataFrame, x_title: str, y_ti
                                    resolve={"scale": {"color": "independent"}})
         return fig.spec(joined_chart, big)
     return [fig.spec(p, big) for p in panels]
+
+
+def _regime_runs(data: pd.DataFrame) -> pd.DataFrame:
+    """One rectangle per run of equal regimes along the rate (no hairline gaps between
+    points): rate, rate_next (the next run's first rate; the last rate at the end), regime."""
+    rate = data["rate"].to_numpy(dtype=float)
+    regime = data["regime"].to_numpy()
+    start = np.flatnonzero(np.r_[True, regime[1:] != regime[:-1]])
+    end = np.r_[start[1:], rate.size]                  # first point of the next run
+    return pd.DataFrame({"rate": rate[start],
+                         "rate_next": rate[np.minimum(end, rate.size - 1)],
+                         "regime": regime[start]})
 
 
 REGIME_COLOURS = {"plateau": GREEN, "thinning": SKY, "thickening": ORANGE, "yield": PURPLE,
@@ -749,19 +797,14 @@ def boundary_segments(x, y, mask) -> pd.DataFrame:
     grid = np.zeros((ys.size, xs.size), dtype=bool)
     grid[np.searchsorted(ys, y), np.searchsorted(xs, x)] = mask.astype(bool)
     dx, dy = (xs[-1] - xs[0]) / (xs.size - 1), (ys[-1] - ys[0]) / (ys.size - 1)
-    pad = np.pad(grid, 1)                              # outside the map counts as False
-    rows = []
-    vertical = pad[1:-1, 1:] != pad[1:-1, :-1]         # between column i-1 and i
-    for j, i in zip(*np.nonzero(vertical), strict=True):
-        edge = xs[0] + (i - 0.5) * dx
-        if 0 < i < xs.size:                            # the map's own frame is not a limit
-            rows.append((edge, ys[j] - dy / 2, edge, ys[j] + dy / 2))
-    horizontal = pad[1:, 1:-1] != pad[:-1, 1:-1]
-    for j, i in zip(*np.nonzero(horizontal), strict=True):
-        edge = ys[0] + (j - 0.5) * dy
-        if 0 < j < ys.size:
-            rows.append((xs[i] - dx / 2, edge, xs[i] + dx / 2, edge))
-    return pd.DataFrame(rows, columns=["x", "y", "x2", "y2"])
+    # Edges between neighbouring cells only: the map's own frame is not a limit.
+    j, i = np.nonzero(grid[:, 1:] != grid[:, :-1])         # between columns i and i + 1
+    edge = xs[0] + (i + 0.5) * dx
+    vertical = np.column_stack([edge, ys[j] - dy / 2, edge, ys[j] + dy / 2])
+    j, i = np.nonzero(grid[1:, :] != grid[:-1, :])         # between rows j and j + 1
+    edge = ys[0] + (j + 0.5) * dy
+    horizontal = np.column_stack([xs[i] - dx / 2, edge, xs[i] + dx / 2, edge])
+    return pd.DataFrame(np.vstack([vertical, horizontal]), columns=["x", "y", "x2", "y2"])
 
 
 def design_map_chart(cells: pd.DataFrame, *, x_title: str, y_title: str, colour_title: str,
@@ -775,53 +818,60 @@ def design_map_chart(cells: pd.DataFrame, *, x_title: str, y_title: str, colour_
     y_loading (what a click selects), feasible and one bool column per window. `windows`:
     (label, column) pairs. `current`: {"x", "y"} of the scenario's own recipe. Returns the
     Vega-Lite spec as a dict; with `selectable`, clicking a cell selects it (param "cell").
-    With `frames` the datasets stay DataFrames (see `_plain_spec`).
+    With `frames` the datasets stay DataFrames (NaN where there is no value; see
+    `_plain_spec`).
+
+    Written as plain Vega-Lite, not through Altair: the page rebuilds this chart on every
+    change of the map, and Altair's objects cost more than the map's own solve. Three
+    datasets (cells, limit segments, the recipe); the layers pick their rows with filters,
+    so no cell is sent twice.
     """
-    data = cells.replace([np.inf, -np.inf], np.nan).copy()
-    xs, ys = np.unique(data["x"]), np.unique(data["y"])
+    columns = {name: cells[name].to_numpy() for name in cells.columns}
+    for name, column in columns.items():            # no inf in a chart's data
+        if column.dtype.kind == "f":
+            columns[name] = np.where(np.isinf(column), np.nan, column)
+    x, y = columns["x"].astype(float), columns["y"].astype(float)
+    xs, ys = np.unique(x), np.unique(y)
     dx = (xs[-1] - xs[0]) / max(xs.size - 1, 1)
     dy = (ys[-1] - ys[0]) / max(ys.size - 1, 1)
-    data["x0"], data["x1"] = data["x"] - dx / 2, data["x"] + dx / 2
-    data["y0"], data["y1"] = data["y"] - dy / 2, data["y"] + dy / 2
-    x_scale = alt.Scale(domain=[float(xs[0] - dx / 2), float(xs[-1] + dx / 2)], nice=False,
-                        zero=False)
-    y_scale = alt.Scale(domain=[float(ys[0] - dy / 2), float(ys[-1] + dy / 2)], nice=False,
-                        zero=False)
-    # Channel objects, not "field:type" strings: Altair resolves a string by searching its
-    # schema, a few ms each.
-    x_enc = alt.X("x0:Q", scale=x_scale, title=x_title)
-    y_enc = alt.Y("y0:Q", scale=y_scale, title=y_title)
-    tips = [alt.Tooltip("x:Q", format=".4g", title=x_title),
-            alt.Tooltip("y:Q", format=".4g", title=y_title),
-            alt.Tooltip("value:Q", format=".4g", title=colour_title),
-            alt.Tooltip("headroom:Q", format=".3f", title="φ/φmax"),
-            alt.Tooltip("regime:N", title="regime")]
+    data = pd.DataFrame({**columns, "x0": x - dx / 2, "x1": x + dx / 2, "y0": y - dy / 2,
+                         "y1": y + dy / 2})
+
+    def axis(field, title_, lo, hi):
+        return {"field": field, "type": "quantitative", "title": title_,
+                "scale": {"domain": [float(lo), float(hi)], "nice": False, "zero": False}}
+    x_at = functools.partial(axis, title_=x_title, lo=xs[0] - dx / 2, hi=xs[-1] + dx / 2)
+    y_at = functools.partial(axis, title_=y_title, lo=ys[0] - dy / 2, hi=ys[-1] + dy / 2)
+    rects = {"x": x_at("x0"), "x2": {"field": "x1"}, "y": y_at("y0"), "y2": {"field": "y1"}}
+    centres = {"x": x_at("x"), "y": y_at("y")}
+    tips = [{"field": "x", "type": "quantitative", "format": ".4g", "title": x_title},
+            {"field": "y", "type": "quantitative", "format": ".4g", "title": y_title},
+            {"field": "value", "type": "quantitative", "format": ".4g", "title": colour_title},
+            {"field": "headroom", "type": "quantitative", "format": ".3f", "title": "φ/φmax"},
+            {"field": "regime", "type": "nominal", "title": "regime"}]
     if "feasible" in data:
-        tips.append(alt.Tooltip("feasible:N", title="inside every window"))
-    flowing = data[data["value"].notna() & (data["value"] > 0)]
-    fig = Figure()
-    layers = []
-    heat = fig.chart(flowing).mark_rect().encode(
-        x=x_enc, x2=alt.X2("x1"), y=y_enc, y2=alt.Y2("y1"), tooltip=tips,
-        color=alt.Color("value:Q", title=colour_title,
-                        scale=alt.Scale(type="log", scheme="viridis"),
-                        legend=alt.Legend(orient="right", direction="vertical",
-                                          format=",~g", gradientLength=220)))
-    if selectable:
-        heat = heat.add_params(alt.selection_point(name="cell", on="click", clear="dblclick",
-                                                   fields=["x_loading", "y_loading"]))
-    layers.append(heat)
-    stopped = data[~(data["value"].notna() & (data["value"] > 0))]
-    if len(stopped):
-        layers.append(fig.chart(stopped).mark_rect(color=NO_FLOW, opacity=0.85).encode(
-            x=x_enc, x2=alt.X2("x1"), y=y_enc, y2=alt.Y2("y1"), tooltip=tips))
+        tips.append({"field": "feasible", "type": "nominal", "title": "inside every window"})
+    flowing = {"and": [{"field": "value", "valid": True}, {"field": "value", "gt": 0}]}
+    layers = [{"name": "view_0", "data": {"name": "cells"}, "transform": [{"filter": flowing}],
+               "mark": {"type": "rect"},
+               "encoding": {**rects, "tooltip": tips, "color": {
+                   "field": "value", "type": "quantitative", "title": colour_title,
+                   "scale": {"type": "log", "scheme": "viridis"},
+                   "legend": {"orient": "right", "direction": "vertical", "format": ",~g",
+                              "gradientLength": 220}}}}]
+    value = data["value"].to_numpy(dtype=float)
+    if not (value > 0).all():                              # NaN compares False
+        layers.append({"data": {"name": "cells"}, "transform": [{"filter": {"not": flowing}}],
+                       "mark": {"type": "rect", "color": NO_FLOW, "opacity": 0.85},
+                       "encoding": {**rects, "tooltip": tips}})
     if "feasible" in data and data["feasible"].any():
         # Stippled, so the colours keep their meaning under the shading.
-        layers.append(fig.chart(data[data["feasible"].astype(bool)]).mark_point(
-            shape="circle", filled=True, color="#FFFFFF", stroke=GREEN, strokeWidth=1,
-            opacity=0.9, size=40).encode(x=alt.X("x:Q", scale=x_scale, title=x_title),
-                                         y=alt.Y("y:Q", scale=y_scale, title=y_title),
-                                         tooltip=tips))
+        layers.append({"data": {"name": "cells"},
+                       "transform": [{"filter": {"field": "feasible", "equal": True}}],
+                       "mark": {"type": "point", "shape": "circle", "filled": True,
+                                "color": "#FFFFFF", "stroke": GREEN, "strokeWidth": 1,
+                                "opacity": 0.9, "size": 40},
+                       "encoding": {**centres, "tooltip": tips}})
     # Drawn in this order: the feasible outline (wide, underneath), the windows (dashed),
     # the packing limit on top; where limits coincide each stays visible.
     lines = []
@@ -830,32 +880,45 @@ def design_map_chart(cells: pd.DataFrame, *, x_title: str, y_title: str, colour_
     lines += [(label, data[column].astype(bool), colour, 2.5, [7, 4])
               for (label, column), colour in zip(windows, MAP_LINE_COLOURS, strict=False)]
     lines.append((PACKING_LINE, data["headroom"].fillna(np.inf) < 1.0, "#000000", 3, [1, 0]))
-    drawn = [(label, colour, width, dash,
+    drawn = [(label, colour, width_, dash,
               boundary_segments(data["x"], data["y"], mask).assign(line=label))
-             for label, mask, colour, width, dash in lines]
+             for label, mask, colour, width_, dash in lines]
     drawn = [item for item in drawn if len(item[4])]   # only limits that cross the map
-    scale = alt.Scale(domain=[d[0] for d in drawn], range=[d[1] for d in drawn])
-    limits = [fig.chart(segments).mark_rule(strokeWidth=width, strokeDash=dash).encode(
-        x=alt.X("x:Q", scale=x_scale, title=x_title), x2=alt.X2("x2"),
-        y=alt.Y("y:Q", scale=y_scale, title=y_title), y2=alt.Y2("y2"),
-        color=alt.Color("line:N", title="Limits", scale=scale,
-                        legend=alt.Legend(orient="bottom", direction="horizontal",
-                                          symbolStrokeWidth=3)))
-        for _label, _colour, width, dash, segments in drawn]
-    if limits:                  # one legend for all limits, apart from the colour bar
-        layers.append(fig.layer(*limits))
+    limit_colour = {"field": "line", "type": "nominal", "title": "Limits",
+                    "scale": {"domain": [d[0] for d in drawn], "range": [d[1] for d in drawn]},
+                    "legend": {"orient": "bottom", "direction": "horizontal",
+                               "symbolStrokeWidth": 3}}
+    if drawn:                   # one legend for all limits, apart from the colour bar
+        layers.append({"layer": [
+            {"data": {"name": "limits"},
+             "transform": [{"filter": {"field": "line", "equal": label}}],
+             "mark": {"type": "rule", "strokeWidth": width_, "strokeDash": dash},
+             "encoding": {**centres, "x2": {"field": "x2"}, "y2": {"field": "y2"},
+                          "color": limit_colour}}
+            for label, _colour, width_, dash, _segments in drawn]})
+    datasets = {"cells": data,
+                "limits": pd.concat([d[4] for d in drawn], ignore_index=True) if drawn else
+                pd.DataFrame(columns=["x", "y", "x2", "y2", "line"])}
     if current is not None:
-        dot = pd.DataFrame([{"x": float(current["x"]), "y": float(current["y"]),
-                             "label": "current recipe"}])
-        base = fig.chart(dot).encode(x=alt.X("x:Q", scale=x_scale, title=x_title),
-                                     y=alt.Y("y:Q", scale=y_scale, title=y_title))
-        layers.append(base.mark_point(shape="diamond", filled=True, color="#FFFFFF",
-                                      stroke="#000000", strokeWidth=1.5, size=180))
-        layers.append(base.mark_text(align="left", dx=10, dy=-10, color="#000000",
-                                     fontWeight="bold").encode(text=alt.Text("label:N")))
-    chart = fig.layer(*layers, resolve={"scale": {"color": "independent"}}, width=width,
-                      height=height, **({"title": title} if title else {}))
-    return _plain_spec(fig, chart, frames)
+        datasets["recipe"] = pd.DataFrame([{"x": float(current["x"]), "y": float(current["y"]),
+                                            "label": "current recipe"}])
+        base = {"data": {"name": "recipe"}, "encoding": centres}
+        layers.append({**base, "mark": {"type": "point", "shape": "diamond", "filled": True,
+                                        "color": "#FFFFFF", "stroke": "#000000",
+                                        "strokeWidth": 1.5, "size": 180}})
+        layers.append({**base, "mark": {"type": "text", "align": "left", "dx": 10, "dy": -10,
+                                        "color": "#000000", "fontWeight": "bold"},
+                       "encoding": {**centres, "text": {"field": "label", "type": "nominal"}}})
+    spec = {"$schema": alt.SCHEMA_URL, "layer": layers,
+            "resolve": {"scale": {"color": "independent"}}, "width": width, "height": height,
+            **({"title": title} if title else {})}
+    if selectable:
+        spec["params"] = [{"name": "cell", "views": ["view_0"],
+                           "select": {"type": "point", "on": "click", "clear": "dblclick",
+                                      "fields": ["x_loading", "y_loading"]}}]
+    spec["datasets"] = datasets if frames else {name: _records(frame)
+                                                for name, frame in datasets.items()}
+    return spec
 
 
 def _plain_spec(fig: Figure, chart: dict, frames: bool = False) -> dict:
@@ -954,19 +1017,26 @@ def ternary_chart(cells: pd.DataFrame, *, parts: list[str], colour_title: str,
     return _plain_spec(fig, chart)
 
 
-def _shown_cells(grid: pd.DataFrame, viscosity_unit: str) -> pd.DataFrame:
+def _shown_cells(grid: pd.DataFrame, viscosity_unit: str, **scaled) -> pd.DataFrame:
+    """The cells as charted: value (viscosity in the shown unit), headroom, regime, a pass
+    column per window, feasible, and each ``name=(grid column, factor)`` of `scaled`.
+    Built in one go from an attrs-free view (each column read from `grid` itself would
+    deep-copy its attrs)."""
     from .units import from_si
 
-    cells = pd.DataFrame({
-        "value": from_si(grid["viscosity_Pa_s"].to_numpy(dtype=float), viscosity_unit,
-                         "viscosity"),
-        "headroom": grid["phi_over_phi_max"].to_numpy(dtype=float),
-        "regime": grid["regime"].astype(str).to_numpy()})
+    plain = grid.copy(deep=False)
+    plain.attrs = {}
+    cells = {"value": from_si(plain["viscosity_Pa_s"].to_numpy(dtype=float), viscosity_unit,
+                              "viscosity"),
+             "headroom": plain["phi_over_phi_max"].to_numpy(dtype=float),
+             "regime": plain["regime"].astype(str).to_numpy()}
     for w in grid.attrs.get("windows", []):
-        cells[w["column"]] = grid[f"{w['column']}_pass"].to_numpy()
-    if "feasible" in grid:
-        cells["feasible"] = grid["feasible"].to_numpy()
-    return cells
+        cells[w["column"]] = plain[f"{w['column']}_pass"].to_numpy()
+    if "feasible" in plain:
+        cells["feasible"] = plain["feasible"].to_numpy()
+    for name, (column, factor) in scaled.items():
+        cells[name] = factor * plain[column].to_numpy(dtype=float)
+    return pd.DataFrame(cells)
 
 
 def loading_map_chart(grid: pd.DataFrame, viscosity_unit: str = "Pa*s", *, width=MAP_WIDTH,
@@ -975,10 +1045,8 @@ def loading_map_chart(grid: pd.DataFrame, viscosity_unit: str = "Pa*s", *, width
     """The chart of a `design.loading_map` result: loadings in wt% or vol%, viscosity in
     `viscosity_unit`, each window's limit as a line, the current recipe marked."""
     unit = "wt%" if grid.attrs.get("basis", "mass") == "mass" else "vol%"
-    cells = _shown_cells(grid, viscosity_unit)
-    cells["x"] = 100 * grid["x_loading"].to_numpy(dtype=float)
-    cells["y"] = 100 * grid["y_loading"].to_numpy(dtype=float)
-    cells["x_loading"], cells["y_loading"] = grid["x_loading"], grid["y_loading"]
+    cells = _shown_cells(grid, viscosity_unit, x=("x_loading", 100.0), y=("y_loading", 100.0),
+                         x_loading=("x_loading", 1.0), y_loading=("y_loading", 1.0))
     now = grid.attrs.get("current")
     current = None if now is None else {"x": 100 * now["x_loading"], "y": 100 * now["y_loading"]}
     rate = grid.attrs.get("shear_rate_1_per_s")
@@ -995,9 +1063,8 @@ def loading_ternary_chart(tri: pd.DataFrame, viscosity_unit: str = "Pa*s", *,
                           width=MAP_WIDTH, height=MAP_HEIGHT,
                           title: str | None = None) -> dict:
     """The chart of a `design.loading_ternary` result (shares of the triangle's total)."""
-    cells = _shown_cells(tri, viscosity_unit)
-    for k in (1, 2, 3):
-        cells[f"share_{k}"] = tri[f"share_{k}"].to_numpy(dtype=float)
+    cells = _shown_cells(tri, viscosity_unit,
+                         **{f"share_{k}": (f"share_{k}", 1.0) for k in (1, 2, 3)})
     unit = "wt%" if tri.attrs.get("basis", "mass") == "mass" else "vol%"
     total = tri.attrs.get("total", float("nan"))
     parts = list(tri.attrs.get("parts", ["1", "2", "3"]))

@@ -339,6 +339,13 @@ def evaluate(fs: FormulationSet, shear_rate_1_per_s) -> Result:
     """
     n = len(fs)
     rates = _rates(shear_rate_1_per_s, n)
+    if rates.ndim == 1:                     # each distinct rate solved once (a map's window
+        unique, back = np.unique(rates, return_inverse=True)    # often shares its rate)
+        if unique.size < rates.size:
+            res = evaluate(fs, unique)
+            return Result(rates, *(value[:, back] if value.ndim == 2 else value
+                                   for value in (getattr(res, f.name)
+                                                 for f in dataclasses.fields(Result)[1:])))
     if n > 64:                              # each distinct row (and its rates) solved once
         first, inverse = fs.distinct(*(() if rates.ndim == 1 else (rates,)))
         if first.size < 0.9 * n:

@@ -230,6 +230,25 @@ def test_repeated_rows_are_solved_once_with_the_same_answers():
     assert list(why2) == list(why1[np.arange(300) % 6])
 
 
+def test_repeated_rates_are_solved_once_with_the_same_answers():
+    # A map's window often sits at the map's own rate: [100, 100, 0.1] is solved at two.
+    fs = engine.stack(_mixed_set())
+    rates = np.array([100.0, 100.0, 0.1, 5.0, 0.1])
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", ValidityWarning)
+        rep = engine.evaluate(fs, rates)
+        one = [engine.evaluate(fs, [rate]) for rate in rates]
+    assert np.array_equal(rep.shear_rate_1_per_s, rates)
+    for j in range(rates.size):
+        for name in ("viscosity_Pa_s", "shear_stress_Pa", "liquid_viscosity_Pa_s"):
+            np.testing.assert_allclose(getattr(rep, name)[:, j], getattr(one[j], name)[:, 0],
+                                       rtol=1e-9, err_msg=f"{name} at {rates[j]} 1/s")
+        assert list(rep.regime[:, j]) == list(one[j].regime[:, 0])
+    assert np.array_equal(rep.viscosity_Pa_s[:, 0], rep.viscosity_Pa_s[:, 1])
+    np.testing.assert_allclose(rep.apparent_yield_stress_Pa, one[0].apparent_yield_stress_Pa,
+                               rtol=1e-9)
+
+
 def test_max_loading_where_the_curve_jumps_answers_a_crossing_of_the_limit():
     # The invented ceramic slip demo thickens at 100 1/s, and near its zero-shear packing
     # limit its viscosity jumps up and falls back (the Brownian term is left out past it).

@@ -17,6 +17,7 @@ ss = st.session_state
 LIQUID = -1               # the liquid as a corner of the triangle
 MODES = {"plane": "Map of two", "triangle": "Triangle"}
 WINDOW_COLUMNS = ["name", "shear rate [1/s]", "max viscosity", "min viscosity"]
+CANDIDATE_FIELDS = ("cand_design", "cand_n", "cand_levels", "cand_seed")
 
 
 def _names() -> list[str]:
@@ -213,8 +214,14 @@ def _send(table: dict) -> None:
 
 
 def candidates_box(scenario: str, names: list[str], windows: tuple) -> None:
-    """Candidates from the scenario: a design over chosen factors, for the batch screen."""
-    with st.expander("Candidates for the batch screen", icon=":material/table_view:"):
+    """Candidates from the scenario: a design over chosen factors, for the batch screen.
+    Built only while its section is open: the map's own reruns do not pay for it."""
+    box = widgets.section("Candidates for the batch screen", "candidates",
+                          ":material/table_view:")
+    if not box.open:
+        state.keep_widget_values(ss, CANDIDATE_FIELDS)
+        return
+    with box:
         choices = _factor_choices(names)
         by_factor = {name: label for label, (name, _, _) in choices.items()}
         pair = [ss["map_x"], ss["map_y"]] if ss["map_x"] != ss["map_y"] else [0, 1]

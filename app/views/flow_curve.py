@@ -66,15 +66,14 @@ def body() -> None:
     try:
         rate = to_si(ss["process_shear_rate"], ss["unit_shear_rate"], "shear_rate",
                      "process shear rate")
-        result = compute.flow_curve(scenario, low, high)
-        at_rate = compute.flow_point(scenario, rate)
+        result = compute.flow_curve(scenario, low, high, rate)
     except predictor.LoadlineError as err:
         with right:
             widgets.show_error(err)
         return
     value = result["value"]
-    messages = result["warnings"] + value["messages"] + at_rate["warnings"]
-    curve, point = value["curve"], at_rate["value"]
+    messages = result["warnings"] + value["messages"]
+    curve, point = value["curve"], value["point"]
     v_unit = ss["unit_viscosity"]
     r_unit = ss["unit_shear_rate"]
 
@@ -151,10 +150,6 @@ def process_table() -> None:
         table = compute.process_table(ss["scenario_json_current"])
     except predictor.LoadlineError as err:
         widgets.show_error(err)
-        return
-    if table["value"] is None:
-        st.info("The table of viscosities per process window is not available yet: it comes "
-                "with predictor's process_viscosities.", icon=":material/hourglass_empty:")
         return
     raw = table["value"]
     v_unit, r_unit = ss["unit_viscosity"], ss["unit_shear_rate"]

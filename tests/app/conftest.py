@@ -85,7 +85,12 @@ def pytest_runtest_makereport(item, call):
 def open_sections(at: AppTest, n_ing: int = 4) -> AppTest:
     """Open every sidebar section (they draw their fields only while open)."""
     names = ["files", "units", "liquid"] + [f"ing{i}" for i in range(n_ing)]
-    for name in names:
-        at.session_state[widgets.SECTION_PREFIX + name] = True
-        at.session_state["_" + widgets.SECTION_PREFIX + name] = True
+    for key, value in opened(*names).items():
+        at.session_state[key] = value
     return at
+
+
+def opened(*names: str) -> dict:
+    """Session-state values that open the named sections (`widgets.section`)."""
+    keys = [widgets.SECTION_PREFIX + name for name in names]
+    return {**dict.fromkeys(keys, True), **dict.fromkeys(["_" + k for k in keys], True)}

@@ -11,7 +11,7 @@ from app import state
 from predictor import charts, design
 from predictor import formulation as fm
 from predictor import scenario as sc
-from tests.app.conftest import chart_specs, demo, messages, metric, page, seed_values
+from tests.app.conftest import chart_specs, demo, messages, metric, opened, page, seed_values
 
 WINDOWS = [("pumping", 100.0, 2.0, None), ("sag resistance", 0.1, None, 10.0)]
 
@@ -79,10 +79,35 @@ def _two_powders_values() -> dict:
     return values
 
 
+def test_candidates_box_is_built_only_while_open_and_keeps_its_settings():
+    # Closed, the map's reruns draw none of its widgets (each widget costs time on every run).
+    at = page("design_map", map_n=3).run()
+    assert not at.exception
+    assert "cand_send" not in _keys(at) and "cand_n" not in _keys(at)
+    _set(at, opened("candidates")).run()
+    assert "cand_send" in _keys(at)
+    at.number_input(key="cand_n").set_value(7).run()
+    _set(at, dict.fromkeys(opened("candidates"), False))
+    at.number_input(key="map_x_high").set_value(55.0).run()       # a rerun while closed
+    assert "cand_n" not in _keys(at)
+    _set(at, opened("candidates")).run()
+    assert at.number_input(key="cand_n").value == 7
+
+
+def _set(at, values: dict):
+    for key, value in values.items():
+        at.session_state[key] = value
+    return at
+
+
+def _keys(at) -> set:
+    return {getattr(w, "key", None) for w in at.main}
+
+
 def test_candidates_go_to_the_batch_screen(tmp_path):
     values = _two_powders_values() | {"map_n": 3, "map_x_low": 20.0, "map_x_high": 40.0,
                                       "map_y_low": 5.0, "map_y_high": 15.0}
-    at = page("design_map", **values).run()
+    at = page("design_map", **values, **opened("candidates")).run()
     assert not at.exception, at.exception
     at.button(key="cand_send").click().run()
     assert not at.exception
@@ -106,7 +131,7 @@ def test_candidates_go_to_the_batch_screen(tmp_path):
 
 
 def test_candidates_of_the_demo_paint_screen(tmp_path):
-    at = page("design_map", map_n=3).run()                 # the demo paint: Carreau-Yasuda
+    at = page("design_map", map_n=3, **opened("candidates")).run()   # demo paint: Carreau-Yasuda
     assert not at.exception
     assert "liquid law" not in messages(at)
     at.button(key="cand_send").click().run()

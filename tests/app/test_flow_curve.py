@@ -4,10 +4,12 @@ from __future__ import annotations
 
 import math
 
+import numpy as np
 import pytest
 
 from app import widgets
 from predictor import formulation as fm
+from predictor import scenario as sc
 from predictor import shear
 from predictor.units import from_si
 from tests.app.conftest import chart_specs, delta, demo, messages, metric, page
@@ -37,6 +39,27 @@ def test_changing_the_process_rate_passes_through():
     assert metric(at, "Viscosity [mPa·s]") == widgets.fmt(
         from_si(row["viscosity_Pa_s"], "mPa*s", "viscosity"))
     assert metric(at, "Shear stress there") == widgets.fmt(row["shear_stress_Pa"])
+
+
+@pytest.mark.parametrize("scenario", ["mineral_coating", "ceramic_slip", "hand_cream"])
+@pytest.mark.parametrize("rate", [0.05, 100.0, 3e5])        # the last outside the curve
+def test_the_process_point_solved_with_the_curve_equals_a_prediction_alone(scenario, rate):
+    # Folding the process rate into the curve's one call changes no number: each rate's
+    # stress is solved on its own, and the markers depend only on the curve's range.
+    from app import compute
+
+    text = sc.dumps(demo(scenario))
+    value = compute.flow_curve(text, 1e-3, 1e5, rate)["value"]
+    alone = _at_rate(demo(scenario), rate)
+    for name in ("viscosity_Pa_s", "shear_stress_Pa", "liquid_viscosity_Pa_s"):
+        assert value["point"][name] == pytest.approx(alone[name], rel=1e-9), name
+    assert value["point"]["regime"] == alone["regime"]
+    curve = fm.predict(demo(scenario), np.logspace(-3, 5, 121))
+    assert len(value["curve"]) == 121
+    np.testing.assert_allclose(value["curve"]["viscosity_Pa_s"], curve["viscosity_Pa_s"],
+                               rtol=1e-9)
+    assert value["curve"].attrs["markers"] == pytest.approx(curve.attrs["markers"], rel=1e-9,
+                                                            nan_ok=True)
 
 
 def test_choosing_a_process_moves_the_rate_into_its_window():

@@ -20,10 +20,11 @@ from __future__ import annotations
 
 import contextlib
 import itertools
-import logging
 import statistics
 import time
 
+from streamlit import config as streamlit_config
+from streamlit import logger as streamlit_logger
 from streamlit.runtime.scriptrunner import script_runner
 from streamlit.runtime.scriptrunner.script_cache import ScriptCache
 from streamlit.testing.v1 import app_test, local_script_runner
@@ -31,9 +32,11 @@ from streamlit.testing.v1 import app_test, local_script_runner
 from tests.app.conftest import REPO, page, seed_values
 from tests.benchmarks.common import row
 
-# AppTest outside a server logs a harmless 'missing ScriptRunContext' line per element.
-for _name in ("streamlit", "streamlit.runtime.scriptrunner_utils.script_run_context"):
-    logging.getLogger(_name).setLevel(logging.ERROR)
+# AppTest outside a server logs a harmless 'missing ScriptRunContext' line per element
+# access (thousands per run, none on a real server). Streamlit resets its loggers' level
+# from its configuration option whenever that is read again (AppTest does): set both.
+streamlit_config.set_option("logger.level", "error")
+streamlit_logger.set_log_level("error")
 
 GOAL = "under 100 ms per interaction"
 _RUNS: list[float] = []

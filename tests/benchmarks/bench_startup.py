@@ -61,13 +61,12 @@ def _first_chart_s(launcher: list[str]) -> tuple[float, float] | None:
     chromium = pathlib.Path("/usr/bin/chromium")
     if not chromium.exists():
         return None
-    import logging
-
     from playwright.sync_api import sync_playwright
+    from streamlit import logger as streamlit_logger
 
     # The browser test harness imports the app's modules outside a server: quiet their
-    # 'no runtime' notes.
-    logging.getLogger("streamlit").setLevel(logging.ERROR)
+    # 'no runtime' notes (through Streamlit, which sets each of its loggers' level).
+    streamlit_logger.set_log_level("error")
     from tests.app.test_browser import ARGS, _free_port, _healthy
 
     port = _free_port()
