@@ -167,10 +167,7 @@ def loading_sweep(scenario: str, relations: tuple[str, ...], band: bool = True,
         out = {"curves": curves, "phi_max": phi_max, "band": None, "band_sources": (),
                "phi_max_range": None,
                "wt_ticks": [(float(p), float(100 * w)) for p, w in zip(ticks, wt, strict=True)]}
-        spread = design.packing_estimator_spread(form)["estimates"]
-        if spread:
-            out["phi_max_range"] = (min(spread.values()), max(spread.values()))
-            out["phi_max_estimates"] = spread
+        spread = None
         if band:
             fit = _fit_or_none(calibration)
             frame = design.loading_sweep_with_band(form, phi=grid, fit=fit,
@@ -179,6 +176,12 @@ def loading_sweep(scenario: str, relations: tuple[str, ...], band: bool = True,
             out["band"] = frame[["phi", "viscosity_low_Pa_s", "viscosity_high_Pa_s"]]
             out["band_sources"] = tuple(frame.attrs.get("sources", ()))
             out["band_level"] = frame.attrs.get("level", 0.95)
+            spread = frame.attrs.get("packing_estimates")     # the band's own estimates
+        if spread is None:
+            spread = design.packing_estimator_spread(form)["estimates"]
+        if spread:
+            out["phi_max_range"] = (min(spread.values()), max(spread.values()))
+            out["phi_max_estimates"] = spread
         return out
     return dict(zip(("value", "warnings"), _captured(run), strict=True))
 

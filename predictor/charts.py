@@ -121,8 +121,12 @@ def _data_names(spec) -> set[str]:
 
 
 def _palette(names: list[str]) -> alt.Scale:
-    return alt.Scale(domain=names, range=[OKABE_ITO[i % len(OKABE_ITO)]
-                                          for i in range(len(names))])
+    return alt.Scale(**_palette_dict(names))
+
+
+def _palette_dict(names: list[str]) -> dict:
+    return {"domain": names, "range": [OKABE_ITO[i % len(OKABE_ITO)]
+                                       for i in range(len(names))]}
 
 
 def decades(low: float, high: float) -> list[float]:
@@ -156,6 +160,9 @@ def loading_sweep(curves: pd.DataFrame, *, y_title: str, series: str = "relation
     `curves`: columns phi, viscosity, <series>. `band`: phi, low, high (shaded). `current`:
     {"phi", "viscosity", "label"}. `limit`: {"viscosity", "phi", "label"}. `wt_ticks`:
     [(phi, wt%)], drawn as a second x axis on top.
+
+    Written as plain Vega-Lite, not through Altair: the Loading sweep page rebuilds it on
+    every change, and Altair's objects cost more than the sweep behind it.
     """
     fig = Figure()
     data = curves[(curves["viscosity"] > 0) & curves["viscosity"].notna()
@@ -163,75 +170,93 @@ def loading_sweep(curves: pd.DataFrame, *, y_title: str, series: str = "relation
     names = list(dict.fromkeys(data[series]))
     x_max = max(float(data["phi"].max()) if len(data) else 0.0,
                 phi_max_range[1] if phi_max_range else 0.0, phi_max or 0.0) * 1.04
-    x_scale = alt.Scale(domain=[0, round(min(max(x_max, 0.05), 1.0), 3)], nice=False,
-                        zero=True)
+    x_scale = {"domain": [0, round(min(max(x_max, 0.05), 1.0), 3)], "nice": False,
+               "zero": True}
     y_low = float(data["viscosity"].min()) if len(data) else 1.0
     focus = max([y_low] + [float(d["viscosity"]) for d in (current, limit)
                            if d and d.get("viscosity")])
     y_high = min(float(data["viscosity"].max()) if len(data) else 10.0, 300.0 * focus)
     y_domain = decade_domain(y_low, y_high)
-    y_scale = alt.Scale(type="log", domain=y_domain, nice=False)
-    y_axis = alt.Axis(values=decades(y_low, y_high), format=",~g")
+    y_scale = {"type": "log", "domain": y_domain, "nice": False}
+    y_enc = {"field": "viscosity", "type": "quantitative", "scale": y_scale, "title": y_title}
+    x_bare = {"field": "phi", "type": "quantitative", "scale": x_scale, "axis": None}
     layers = []
     if phi_max_range is not None and phi_max_range[1] > phi_max_range[0]:
-        layers.append(fig.chart(pd.DataFrame([{
+        layers.append({"data": fig.data(pd.DataFrame([{
             "low": phi_max_range[0], "high": phi_max_range[1],
-            "what": "packing-limit range of the estimators"}])).mark_rect(
-            color=ORANGE, opacity=0.18, clip=True).encode(
-            x=alt.X("low:Q", scale=x_scale, axis=None), x2=alt.X2("high:Q"),
-            tooltip=[alt.Tooltip("what:N", title=" "), alt.Tooltip("low:Q", format=".3f",
-                     title="lowest φmax"), alt.Tooltip("high:Q", format=".3f",
-                                                       title="highest φmax")]))
+            "what": "packing-limit range of the estimators"}])),
+            "mark": {"type": "rect", "color": ORANGE, "opacity": 0.18, "clip": True},
+            "encoding": {"x": {**x_bare, "field": "low"}, "x2": {"field": "high"},
+                         "tooltip": [{"field": "what", "type": "nominal", "title": " "},
+                                     {"field": "low", "type": "quantitative", "format": ".3f",
+                                      "title": "lowest φmax"},
+                                     {"field": "high", "type": "quantitative",
+                                      "format": ".3f", "title": "highest φmax"}]}})
     if band is not None and len(band):
         band = band.assign(high=band["high"].clip(upper=y_domain[1]),
                            low=band["low"].clip(lower=y_domain[0], upper=y_domain[1]))
-        layers.append(fig.chart(band).mark_area(color=BLUE, opacity=0.18, clip=True).encode(
-            x=alt.X("phi:Q", scale=x_scale, axis=None),
-            y=alt.Y("low:Q", scale=y_scale, title=y_title), y2=alt.Y2("high:Q")))
-    dash = alt.StrokeDash(f"{series}:N", legend=None, scale=alt.Scale(
-        domain=names or [""], range=[[1, 0]] + [[6, 3]] * max(len(names) - 1, 0)))
-    layers.append(fig.chart(data).mark_line(strokeWidth=3 if big else 2.4, clip=True).encode(
-        x=alt.X("phi:Q", scale=x_scale, title=x_title, axis=alt.Axis(format=".2f")),
-        y=alt.Y("viscosity:Q", scale=y_scale, title=y_title, axis=y_axis),
-        color=alt.Color(f"{series}:N", scale=_palette(names), title=series_title,
-                        sort=names),
-        strokeDash=dash,
-        tooltip=[alt.Tooltip(f"{series}:N", title=series_title),
-                 alt.Tooltip("phi:Q", format=".3f", title="φ"),
-                 alt.Tooltip("viscosity:Q", format=".4g", title=y_title)]))
+        layers.append({"data": fig.data(band),
+                       "mark": {"type": "area", "color": BLUE, "opacity": 0.18, "clip": True},
+                       "encoding": {"x": x_bare, "y": {**y_enc, "field": "low"},
+                                    "y2": {"field": "high"}}})
+    layers.append({"data": fig.data(data),
+                   "mark": {"type": "line", "strokeWidth": 3 if big else 2.4, "clip": True},
+                   "encoding": {
+                       "x": {"field": "phi", "type": "quantitative", "scale": x_scale,
+                             "title": x_title, "axis": {"format": ".2f"}},
+                       "y": {**y_enc, "axis": {"values": decades(y_low, y_high),
+                                               "format": ",~g"}},
+                       "color": {"field": series, "type": "nominal", "title": series_title,
+                                 "scale": _palette_dict(names), "sort": names},
+                       "strokeDash": {"field": series, "type": "nominal", "legend": None,
+                                      "scale": {"domain": names or [""], "range": [[1, 0]] + [
+                                          [6, 3]] * max(len(names) - 1, 0)}},
+                       "tooltip": [{"field": series, "type": "nominal", "title": series_title},
+                                   {"field": "phi", "type": "quantitative", "format": ".3f",
+                                    "title": "φ"},
+                                   {"field": "viscosity", "type": "quantitative",
+                                    "format": ".4g", "title": y_title}]}})
     if phi_max is not None:
-        rule = pd.DataFrame([{"phi": phi_max, "text": f"packing limit φmax {phi_max:.3f}"}])
-        base = fig.chart(rule)
-        layers.append(base.mark_rule(color=VERMILLION, strokeDash=[8, 4], strokeWidth=2)
-                      .encode(x=alt.X("phi:Q", scale=x_scale, axis=None)))
+        rule = fig.data(pd.DataFrame([{"phi": phi_max,
+                                       "text": f"packing limit φmax {phi_max:.3f}"}]))
+        layers.append({"data": rule, "mark": {"type": "rule", "color": VERMILLION,
+                                              "strokeDash": [8, 4], "strokeWidth": 2},
+                       "encoding": {"x": x_bare}})
         # at the foot of the rule: the curve climbs out of the plot near phi_max at the top
-        layers.append(base.mark_text(color=VERMILLION, align="right", dx=-6,
-                                     y=_height(big) - 8, baseline="bottom", fontWeight="bold")
-                      .encode(x=alt.X("phi:Q", scale=x_scale, axis=None), text=alt.Text("text:N")))
+        layers.append({"data": rule, "mark": {"type": "text", "color": VERMILLION,
+                                              "align": "right", "dx": -6,
+                                              "y": _height(big) - 8, "baseline": "bottom",
+                                              "fontWeight": "bold"},
+                       "encoding": {"x": x_bare, "text": {"field": "text", "type": "nominal"}}})
     if limit is not None and limit.get("viscosity"):
         lim = pd.DataFrame([limit])
-        layers.append(fig.chart(lim).mark_rule(color=GREY, strokeDash=[2, 3]).encode(
-            y=alt.Y("viscosity:Q", scale=y_scale, title=y_title)))
-        layers.append(fig.chart(lim).mark_text(color=GREY, align="left", dx=4, dy=-7,
-                                               x=4).encode(
-            y=alt.Y("viscosity:Q", scale=y_scale, title=y_title), text=alt.Text("label:N")))
+        layers.append({"data": fig.data(lim),
+                       "mark": {"type": "rule", "color": GREY, "strokeDash": [2, 3]},
+                       "encoding": {"y": y_enc}})
+        layers.append({"data": fig.data(lim),
+                       "mark": {"type": "text", "color": GREY, "align": "left", "dx": 4,
+                                "dy": -7, "x": 4},
+                       "encoding": {"y": y_enc, "text": {"field": "label", "type": "nominal"}}})
     if current is not None and current.get("viscosity"):
         cur = pd.DataFrame([current])
-        layers.append(fig.chart(cur).mark_point(shape="diamond", size=260 if big else 170,
-                                                filled=True, color=BLACK).encode(
-            x=alt.X("phi:Q", scale=x_scale, axis=None),
-            y=alt.Y("viscosity:Q", scale=y_scale, title=y_title),
-            tooltip=[alt.Tooltip("label:N", title="current loading")]))
-        layers.append(fig.chart(cur).mark_text(align="right", dx=-12, dy=-10,
-                                               fontWeight="bold", color=BLACK).encode(
-            x=alt.X("phi:Q", scale=x_scale, axis=None),
-            y=alt.Y("viscosity:Q", scale=y_scale, title=y_title), text=alt.Text("label:N")))
+        layers.append({"data": fig.data(cur),
+                       "mark": {"type": "point", "shape": "diamond",
+                                "size": 260 if big else 170, "filled": True, "color": BLACK},
+                       "encoding": {"x": x_bare, "y": y_enc, "tooltip": [
+                           {"field": "label", "type": "nominal", "title": "current loading"}]}})
+        layers.append({"data": fig.data(cur),
+                       "mark": {"type": "text", "align": "right", "dx": -12, "dy": -10,
+                                "fontWeight": "bold", "color": BLACK},
+                       "encoding": {"x": x_bare, "y": y_enc,
+                                    "text": {"field": "label", "type": "nominal"}}})
     if wt_ticks:
         top = pd.DataFrame({"phi": [p for p, _ in wt_ticks]})
-        layers.append(fig.chart(top).mark_tick(opacity=0).encode(
-            x=alt.X("phi:Q", scale=x_scale, title="Solids in the formulation [wt%]",
-                    axis=alt.Axis(orient="top", values=[p for p, _ in wt_ticks],
-                                  labelExpr=_top_axis_expr(wt_ticks), grid=False))))
+        layers.append({"data": fig.data(top), "mark": {"type": "tick", "opacity": 0},
+                       "encoding": {"x": {
+                           "field": "phi", "type": "quantitative", "scale": x_scale,
+                           "title": "Solids in the formulation [wt%]",
+                           "axis": {"orient": "top", "values": [p for p, _ in wt_ticks],
+                                    "labelExpr": _top_axis_expr(wt_ticks), "grid": False}}}})
     chart = fig.layer(*layers, resolve={"axis": {"x": "independent"}},
                       height=_height(big), width="container")
     return fig.spec(chart, big)

@@ -22,6 +22,7 @@ leaves a geometric packing limit unchanged).
 from __future__ import annotations
 
 import dataclasses
+import functools
 import re
 import warnings
 from collections.abc import Callable, Iterable
@@ -335,6 +336,11 @@ class _Context:
         self.upper = float(_upper(self.spec, self.params))
         self.rho = np.array([i.density_kg_per_m3 for i in formulation.ingredients], float)
 
+    @functools.cached_property
+    def spread(self) -> dict:
+        """`packing_estimator_spread` of the formulation (asked for once per answer)."""
+        return packing_estimator_spread(self.formulation)
+
     def swelling_per_real(self, size_factor=None):
         """Effective over real solid volume, optionally for sampled size factors."""
         sw = self.mix.swelling
@@ -401,7 +407,7 @@ def _param_samples(ctx: _Context, n, seed, fit, phi_max_sd, param_sd, packing_sp
     if phi_max_sd is not None:
         sds["phi_max"] = phi_max_sd
     if packing_spread:
-        sd = packing_estimator_spread(ctx.formulation)["relative_sd"] * ctx.params.get(
+        sd = ctx.spread["relative_sd"] * ctx.params.get(
             "phi_max", np.nan)
         if "phi_max" in samples and np.isfinite(sd):
             sds["phi_max"] = float(np.hypot(sds.get("phi_max", 0.0), sd))
@@ -639,7 +645,9 @@ def loading_sweep_with_band(formulation: fm.Formulation, phi=None, n: int = 200,
     -------
     pandas.DataFrame
         The columns of `loading_sweep` plus viscosity_low_Pa_s, viscosity_high_Pa_s and
-        divergent_fraction (share of samples that jammed at that loading).
+        divergent_fraction (share of samples that jammed at that loading). `attrs`: level,
+        n_samples, sources, and with `packing_spread` the estimators' phi_max values
+        (packing_estimates, as `packing_estimator_spread` gives them).
     """
     if fit is not None:
         formulation = calibrated(formulation, fit)
@@ -671,6 +679,8 @@ def loading_sweep_with_band(formulation: fm.Formulation, phi=None, n: int = 200,
     frame["viscosity_high_Pa_s"] = np.maximum(high * common * eta_l, eta)
     frame["divergent_fraction"] = np.mean(np.isinf(values), axis=0)
     frame.attrs.update(level=level, n_samples=n_s, sources=tuple(sources))
+    if packing_spread:
+        frame.attrs["packing_estimates"] = dict(ctx.spread["estimates"])
     return frame
 
 

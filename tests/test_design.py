@@ -189,6 +189,19 @@ def test_sweep_band_contains_the_sweep_and_diverges_near_phi_max(slurry):
     assert np.isinf(frame["viscosity_high_Pa_s"].iloc[-1])
 
 
+def test_sweep_band_from_the_packing_spread_reports_the_estimates_it_used(slurry):
+    # The app reads the estimators' range from the band instead of asking for it again.
+    frame = design.loading_sweep_with_band(slurry, np.linspace(0.0, 0.5, 20),
+                                           packing_spread=True, n_samples=200)
+    spread = design.packing_estimator_spread(slurry)
+    assert len(spread["estimates"]) >= 2
+    assert frame.attrs["packing_estimates"] == spread["estimates"]
+    assert "spread of packing estimators" in frame.attrs["sources"]
+    plain = design.loading_sweep_with_band(slurry, np.linspace(0.0, 0.5, 20),
+                                           phi_max_sd=0.02, n_samples=200)
+    assert "packing_estimates" not in plain.attrs
+
+
 def test_calibration_feeds_the_answer(slurry):
     from predictor import fitting
     from predictor.suspension import krieger_dougherty
