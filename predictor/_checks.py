@@ -6,6 +6,8 @@ field, the value and the allowed range.
 
 from __future__ import annotations
 
+import math
+
 import numpy as np
 
 from .errors import InputRangeError
@@ -25,6 +27,19 @@ def as_array(value, field: str) -> np.ndarray:
 
 def in_range(value, field: str, low: float, high: float, *, low_open=False, high_open=False):
     """Float array of `value` within [low, high] (ends open where asked)."""
+    try:
+        arr = np.asarray(value, dtype=float)
+    except (TypeError, ValueError):
+        arr = None
+    if arr is not None and arr.size:
+        # Fast path (the solvers check their inputs thousands of times per answer): the
+        # extremes inside the range and finite means every element is; NaN fails both.
+        lo, hi = (float(arr), float(arr)) if arr.ndim == 0 else (float(arr.min()),
+                                                                 float(arr.max()))
+        if (math.isfinite(lo) and math.isfinite(hi)
+                and (lo > low if low_open else lo >= low)
+                and (hi < high if high_open else hi <= high)):
+            return arr
     arr = as_array(value, field)
     too_low = arr <= low if low_open else arr < low
     too_high = arr >= high if high_open else arr > high
