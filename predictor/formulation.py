@@ -877,10 +877,13 @@ def process_viscosities(formulation: Formulation, windows=None) -> pd.DataFrame:
         if not (np.isfinite(low) and np.isfinite(high) and 0 < low <= high):
             raise InputRangeError(f"window {name!r}", (low, high),
                                   "finite shear rates with 0 < low <= high [1/s]")
+    from . import flowset
+
     rates = np.array([[w[1], w[2]] for w in windows], dtype=float).ravel()
-    frame = predict(formulation, rates)
-    eta = frame["viscosity_Pa_s"].to_numpy().reshape(-1, 2)
-    regime = frame["regime"].to_numpy().reshape(-1, 2)
+    # The engine's row (no flow-curve markers to find): the same numbers as `predict`.
+    res = flowset.evaluate(flowset.from_rows([row_inputs(formulation)]), rates)
+    eta = res.viscosity_Pa_s[0].reshape(-1, 2)
+    regime = res.regime[0].reshape(-1, 2)
     return pd.DataFrame({
         "process": [w[0] for w in windows],
         "low_1_per_s": rates[0::2], "high_1_per_s": rates[1::2],

@@ -32,14 +32,6 @@ from .errors import LoadlineError
 from .registry import get_model, models
 from .units import from_si
 
-#: Typical shear rates of process steps [1/s] (common practice, no checked source).
-#: Used when `formulation` offers no process_viscosities.
-PROCESS_STEPS = (
-    ("storage, sedimentation", 1e-6, 1e-3), ("levelling", 1e-2, 1e-1),
-    ("sagging", 1e-1, 1e1), ("pouring, dip coating", 1e1, 1e2),
-    ("mixing, pumping", 1e0, 1e3), ("brushing, spraying", 1e3, 1e4),
-)
-
 
 @dataclass
 class Section:
@@ -107,25 +99,9 @@ def liquid_table(formulation: fm.Formulation, viscosity_unit: str) -> pd.DataFra
     return pd.DataFrame(rows, columns=["quantity", "value", "unit"])
 
 
-def _process_table(form, viscosity_unit: str) -> tuple[pd.DataFrame, str]:
-    """Viscosity over each process step's shear-rate range."""
-    if hasattr(fm, "process_viscosities"):
-        try:
-            frame = fm.process_viscosities(form)
-            if isinstance(frame, pd.DataFrame):
-                return _si_columns(frame, viscosity_unit), "formulation.process_viscosities"
-        except TypeError:
-            pass  # another signature than expected: fall back to the typical rates
-    rows = []
-    for name, low, high in PROCESS_STEPS:
-        curve = fm.predict(form, [low, math.sqrt(low * high), high])
-        eta = from_si(curve["viscosity_Pa_s"].to_numpy(), viscosity_unit, "viscosity")
-        rows.append({"process step": name, "shear rates [1/s]": f"{low:g} to {high:g}",
-                     f"viscosity at low rate [{viscosity_unit}]": float(eta[0]),
-                     f"at mid rate [{viscosity_unit}]": float(eta[1]),
-                     f"at high rate [{viscosity_unit}]": float(eta[2])})
-    return pd.DataFrame(rows), ("typical shear rates of each step (common practice, "
-                                "no checked source)")
+def _process_table(form, viscosity_unit: str) -> pd.DataFrame:
+    """Viscosity at the ends of each process step's shear-rate window."""
+    return _si_columns(fm.process_viscosities(form), viscosity_unit)
 
 
 def _si_columns(frame: pd.DataFrame, viscosity_unit: str) -> pd.DataFrame:
@@ -271,9 +247,9 @@ def build_report(form: fm.Formulation, viscosity_unit: str = "Pa*s",
         sections.append(_design_map_section(form, solids[:2], vu, notes))
 
     sec = Section("Process windows")
-    table, origin = _process_table(form, vu)
-    sec.tables.append(("Viscosity in each process step", table))
-    sec.paragraphs.append(f"Shear rates: {origin}.")
+    sec.tables.append(("Viscosity in each process step", _process_table(form, vu)))
+    sec.paragraphs.append("Shear rates: typical windows of each step (common practice, no "
+                          "checked source), `shear.PROCESS_SHEAR_RATES`.")
     sections.append(sec)
 
     sections.append(_process_checks_section(form, notes))

@@ -113,8 +113,12 @@ def test_process_viscosities_match_predict_at_the_window_ends():
     f = paint(diameter_m=0.3e-6)
     table = fm.process_viscosities(f)
     assert list(table["process"]) == [w[0] for w in shear.PROCESS_SHEAR_RATES]
-    direct = fm.predict(f, table["low_1_per_s"].to_numpy())["viscosity_Pa_s"].to_numpy()
-    assert np.allclose(table["viscosity_low_Pa_s"], direct, rtol=1e-9)
+    direct = fm.predict(f, table["low_1_per_s"].to_numpy())
+    assert np.allclose(table["viscosity_low_Pa_s"], direct["viscosity_Pa_s"], rtol=1e-9)
+    assert list(table["regime_low"]) == list(direct["regime"])
+    high = fm.predict(f, table["high_1_per_s"].to_numpy())
+    assert np.allclose(table["viscosity_high_Pa_s"], high["viscosity_Pa_s"], rtol=1e-9)
+    assert list(table["regime_high"]) == list(high["regime"])
     custom = fm.process_viscosities(f, windows=[("extrusion", 10.0, 100.0)])
     assert custom["high_1_per_s"].iloc[0] == 100.0
     with pytest.raises(fm.InputRangeError, match="window"):
