@@ -25,18 +25,20 @@ import time
 
 from streamlit import config as streamlit_config
 from streamlit import logger as streamlit_logger
-from streamlit.runtime.scriptrunner import script_runner
-from streamlit.runtime.scriptrunner.script_cache import ScriptCache
-from streamlit.testing.v1 import app_test, local_script_runner
 
-from tests.app.conftest import REPO, page, seed_values
-from tests.benchmarks.common import row
-
-# AppTest outside a server logs a harmless 'missing ScriptRunContext' line per element
-# access (thousands per run, none on a real server). Streamlit resets its loggers' level
-# from its configuration option whenever that is read again (AppTest does): set both.
+# Outside a server, the app's cached functions log 'no runtime' as they are imported and
+# AppTest logs 'missing ScriptRunContext' per element access (thousands per run; none on a
+# real server). Streamlit resets its loggers' level from its configuration option whenever
+# that is read again (AppTest does): set both, before the app is imported.
 streamlit_config.set_option("logger.level", "error")
 streamlit_logger.set_log_level("error")
+
+from streamlit.runtime.scriptrunner import script_runner  # noqa: E402
+from streamlit.runtime.scriptrunner.script_cache import ScriptCache  # noqa: E402
+from streamlit.testing.v1 import app_test, local_script_runner  # noqa: E402
+
+from tests.app.conftest import REPO, page, seed_values  # noqa: E402
+from tests.benchmarks.common import row  # noqa: E402
 
 GOAL = "under 100 ms per interaction"
 _RUNS: list[float] = []
