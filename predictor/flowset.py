@@ -319,7 +319,7 @@ def row_notes(fs: FormulationSet) -> tuple[np.ndarray, np.ndarray]:
     return flow, drops
 
 
-def evaluate(fs: FormulationSet, shear_rate_1_per_s) -> Result:
+def evaluate(fs: FormulationSet, shear_rate_1_per_s, regimes: bool = True) -> Result:
     """Flow curves of every row of `fs` at the shear rates (M,), shared by all rows.
 
     Rows are grouped by liquid law and relation; each group is one call of
@@ -332,6 +332,9 @@ def evaluate(fs: FormulationSet, shear_rate_1_per_s) -> Result:
     fs : FormulationSet
     shear_rate_1_per_s : float or array_like
         Shear rates, > 0: (M,) shared by all rows, or (N, M) one set per row. [1/s]
+    regimes : bool, optional
+        Label each point's regime (`shear.flow_curves`); `max_loading`'s search, which
+        needs only the viscosity, turns it off.
 
     Returns
     -------
@@ -342,14 +345,14 @@ def evaluate(fs: FormulationSet, shear_rate_1_per_s) -> Result:
     if rates.ndim == 1:                     # each distinct rate solved once (a map's window
         unique, back = np.unique(rates, return_inverse=True)    # often shares its rate)
         if unique.size < rates.size:
-            res = evaluate(fs, unique)
+            res = evaluate(fs, unique, regimes)
             return Result(rates, *(value[:, back] if value.ndim == 2 else value
                                    for value in (getattr(res, f.name)
                                                  for f in dataclasses.fields(Result)[1:])))
     if n > 64:                              # each distinct row (and its rates) solved once
         first, inverse = fs.distinct(*(() if rates.ndim == 1 else (rates,)))
         if first.size < 0.9 * n:
-            res = evaluate(fs.take(first), rates if rates.ndim == 1 else rates[first])
+            res = evaluate(fs.take(first), rates if rates.ndim == 1 else rates[first], regimes)
             return Result(res.shear_rate_1_per_s if rates.ndim == 1 else rates,
                           *(getattr(res, f.name)[inverse]
                             for f in dataclasses.fields(Result)[1:]))
@@ -376,7 +379,8 @@ def evaluate(fs: FormulationSet, shear_rate_1_per_s) -> Result:
                 phi_max_high_shear=fs.phi_max[sel],
                 phi_max_frictional=fs.phi_max_frictional[sel],
                 onset_stress_Pa=fs.onset_stress_Pa[sel], radius_m=fs.radius_m[sel],
-                temperature_K=fs.temperature_K[sel], yield_stress_Pa=fs.yield_stress_Pa[sel])
+                temperature_K=fs.temperature_K[sel], yield_stress_Pa=fs.yield_stress_Pa[sel],
+                regimes=regimes)
         out["sigma"][sel], out["eta"][sel] = fc.shear_stress_Pa, fc.viscosity_Pa_s
         out["eta_l"][sel], out["regime"][sel] = fc.liquid_viscosity_Pa_s, fc.regime
         out["ys"][sel], out["low"][sel] = fc.apparent_yield_stress_Pa, fc.dst_low_1_per_s
@@ -469,7 +473,7 @@ def max_loading(fs: FormulationSet, viscosity_limit_Pa_s, shear_rate_1_per_s=1.0
         """ln(eta / limit) of the rows at phi; +inf where jammed or not a number."""
         with warnings.catch_warnings():
             warnings.simplefilter("ignore", ValidityWarning)
-            res = evaluate(fs.take(rows).at_loading(phi), rates[rows])
+            res = evaluate(fs.take(rows).at_loading(phi), rates[rows], regimes=False)
         eta = res.viscosity_Pa_s[:, 0]
         with np.errstate(divide="ignore", invalid="ignore"):
             out = np.log(eta / limit[rows])

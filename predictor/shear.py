@@ -661,8 +661,12 @@ class _Solved:
     fall_stress_Pa: np.ndarray
 
 
-def _solve(model, rates, points_per_decade=60.0):
+def _solve(model, rates, points_per_decade=60.0, regimes=True):
     """Stress at every rate of every row (model arrays (n, 1), rates (M,) or (n, M)).
+
+    Without `regimes` the slope labels are left empty ("jammed" and
+    "discontinuous-thickening" are still set): a search that only needs the viscosity
+    skips their six extra model evaluations.
 
     Rows without frictional thickening have a stress-rate curve that rises monotonically
     (g is bounded by its plateaus, the stress rises with g), so the root lies between the
@@ -707,7 +711,8 @@ def _solve(model, rates, points_per_decade=60.0):
             _solve_on_grid(model.take(part), rates[part], sig_jam[part], points_per_decade,
                            part, sigma, dst, low, high, jam_rate, fall)
     ys = _apparent_yield_stress(model, sig_jam)
-    regime = _regimes(model, rates, sigma, ys[:, None])
+    regime = (_regimes(model, rates, sigma, ys[:, None]) if regimes
+              else np.full(sigma.shape, "", dtype=object))
     regime[dst] = "discontinuous-thickening"
     regime[~np.isfinite(sigma)] = "jammed"
     return _Solved(sigma, regime, ys, low, high, jam_rate, fall)
@@ -1178,7 +1183,7 @@ def flow_curves(shear_rate_1_per_s, phi, *, liquid_law_name="newtonian", liquid_
                 phi_max_zero_shear=np.nan, phi_max_high_shear=0.64, phi_max_frictional=np.nan,
                 onset_stress_Pa=np.nan, radius_m=np.nan, temperature_K=298.15,
                 yield_stress_Pa=0.0, critical_reduced_stress=CRITICAL_REDUCED_STRESS,
-                points_per_decade=60):
+                points_per_decade=60, regimes=True):
     r"""`flow_curve` of n suspensions at once: one row per suspension, the same shear rates.
 
     The same model and the same solve as `flow_curve` (which is this function for one row
@@ -1219,6 +1224,10 @@ def flow_curves(shear_rate_1_per_s, phi, *, liquid_law_name="newtonian", liquid_
         As in `flow_curve`. [-]
     points_per_decade : int, optional
         As in `flow_curve`.
+    regimes : bool, optional
+        Label each point's regime from its local slope; False leaves those labels empty
+        (for searches that need only the viscosity; "jammed" and "discontinuous-thickening"
+        are still set).
 
     Returns
     -------
@@ -1257,7 +1266,7 @@ def flow_curves(shear_rate_1_per_s, phi, *, liquid_law_name="newtonian", liquid_
                    float(positive(critical_reduced_stress, "critical_reduced_stress")))
     model.brownian = model.brownian & (model.radius <= BROWNIAN_RADIUS_LIMIT_m) \
         & np.isfinite(model.g0)
-    solved = _solve(model, rates, float(points_per_decade))
+    solved = _solve(model, rates, float(points_per_decade), regimes=bool(regimes))
     with np.errstate(invalid="ignore"):
         eta_l = np.broadcast_to(np.asarray(law.viscosity(rates), dtype=float),
                                 (n, rates.shape[-1]))

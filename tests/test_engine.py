@@ -249,6 +249,24 @@ def test_repeated_rates_are_solved_once_with_the_same_answers():
                                rtol=1e-9)
 
 
+def test_without_regime_labels_the_numbers_are_the_same():
+    # max_loading's search asks for the viscosity only (regimes=False).
+    fs = engine.stack(_mixed_set())
+    fs = fs.take(np.r_[np.arange(len(fs)), 1, 1]).at_loading(      # two rows pushed to jam
+        np.r_[fs.phi, 0.999 * fs.phi_max[1], fs.phi_max[1]])
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore", ValidityWarning)
+        full = engine.evaluate(fs, RATES)
+        bare = engine.evaluate(fs, RATES, regimes=False)
+    for f in dataclasses.fields(full):
+        if f.name != "regime":
+            np.testing.assert_array_equal(getattr(bare, f.name), getattr(full, f.name),
+                                          err_msg=f.name)
+    kept = np.isin(full.regime, ["jammed", "discontinuous-thickening"])
+    assert kept.any() and np.array_equal(bare.regime[kept], full.regime[kept])
+    assert set(bare.regime[~kept & (full.regime != "yield")]) == {""}
+
+
 def test_max_loading_where_the_curve_jumps_answers_a_crossing_of_the_limit():
     # The invented ceramic slip demo thickens at 100 1/s, and near its zero-shear packing
     # limit its viscosity jumps up and falls back (the Brownian term is left out past it).
