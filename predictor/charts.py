@@ -843,8 +843,8 @@ def design_map_chart(cells: pd.DataFrame, *, x_title: str, y_title: str, colour_
     y_loading (what a click selects), feasible and one bool column per window. `windows`:
     (label, column) pairs. `current`: {"x", "y"} of the scenario's own recipe. Returns the
     Vega-Lite spec as a dict; with `selectable`, clicking a cell selects it (param "cell").
-    With `frames` the datasets stay DataFrames (NaN where there is no value; see
-    `_plain_spec`).
+    With `frames` the datasets stay DataFrames (NaN where there is no value) for Streamlit,
+    which sends a frame as Arrow directly; otherwise they are plain JSON records.
 
     Written as plain Vega-Lite, not through Altair: the page rebuilds this chart on every
     change of the map, and Altair's objects cost more than the map's own solve. Three
@@ -946,27 +946,12 @@ def design_map_chart(cells: pd.DataFrame, *, x_title: str, y_title: str, colour_
     return spec
 
 
-def _plain_spec(fig: Figure, chart: dict, frames: bool = False) -> dict:
-    """A `Figure` spec as plain JSON (records, not frames), selections declared on top.
-
-    As Altair writes a layered chart: each layer's selection parameter moves to the top
-    level, naming the layer it belongs to, so Streamlit and the exported files see it.
-    With `frames` the datasets stay DataFrames (NaN, not inf, where there is no value;
-    plain index) for Streamlit, which sends a frame as Arrow directly: no round trip
-    through a list of records.
-    """
+def _plain_spec(fig: Figure, chart: dict) -> dict:
+    """A `Figure` spec as plain JSON: datasets as records (NaN and inf as null), no config
+    (the caller adds it)."""
     spec = fig.spec(chart)
     del spec["config"]
-    params = []
-    for k, part in enumerate(spec.get("layer", [])):
-        for param in part.pop("params", []):
-            part["name"] = f"view_{k}"
-            params.append({**param, "views": [part["name"]]})
-    if params:
-        spec["params"] = params
-    spec["datasets"] = {name: (frame.replace([np.inf, -np.inf], np.nan).reset_index(drop=True)
-                               if frames and isinstance(frame, pd.DataFrame) else
-                               _records(frame)) for name, frame in spec["datasets"].items()}
+    spec["datasets"] = {name: _records(frame) for name, frame in spec["datasets"].items()}
     return spec
 
 
@@ -1105,7 +1090,7 @@ def design_map(grid: pd.DataFrame, viscosity_unit: str, big: bool = False,
                joined: bool = False, frames: bool = False) -> dict:
     """The chart of `design.loading_map` for the app, the report and the CLI; on the page
     (`joined` False: container width) clicking a cell selects it (selection "cell").
-    `frames`: datasets as DataFrames, for Streamlit only (not JSON; see `_plain_spec`)."""
+    `frames`: datasets as DataFrames, for Streamlit only (not JSON; see `design_map_chart`)."""
     spec = loading_map_chart(grid, viscosity_unit, width=EXPORT_WIDTH if joined else "container",
                              height=_height(big, MAP_HEIGHT), selectable=not joined,
                              frames=frames)

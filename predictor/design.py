@@ -407,8 +407,7 @@ def _param_samples(ctx: _Context, n, seed, fit, phi_max_sd, param_sd, packing_sp
     if phi_max_sd is not None:
         sds["phi_max"] = phi_max_sd
     if packing_spread:
-        sd = ctx.spread["relative_sd"] * ctx.params.get(
-            "phi_max", np.nan)
+        sd = ctx.spread["relative_sd"] * ctx.params.get("phi_max", np.nan)
         if "phi_max" in samples and np.isfinite(sd):
             sds["phi_max"] = float(np.hypot(sds.get("phi_max", 0.0), sd))
             sources.append("spread of packing estimators")
